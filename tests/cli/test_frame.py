@@ -1,0 +1,129 @@
+"""The `fieldkit` command frame: JSON in from a file or stdin, one clear line and exit 2 on bad input.
+
+These run the installed console script as a user would (a real process, no mocks).
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from fieldkit import __version__, jsonio, paths
+from fieldkit.errors import InputError, check_keys, number
+
+ROOT = Path(__file__).resolve().parents[2]
+
+
+def run(
+    *args: str, stdin: str | None = None, env: dict | None = None
+) -> subprocess.CompletedProcess:
+    return subprocess.run(
+        [sys.executable, "-m", "fieldkit", *args],
+        input=stdin,
+        capture_output=True,
+        text=True,
+        timeout=120,
+        cwd=ROOT,
+        env={**os.environ, **(env or {})},
+    )
+
+
+def test_version():
+    r = run("--version")
+    assert r.returncode == 0
+    assert r.stdout.strip() == f"fieldkit {__version__}"
+
+
+@pytest.mark.parametrize("command", ["model", "sky", "plan"])
+def test_malformed_json_names_line_and_column(command):
+    r = run(command, "-", stdin='{\n  "frequency_mhz": 3.6,\n  "ground": }\n')
+    assert r.returncode == 2
+    assert "line 3, column 13" in r.stderr
+    assert "Traceback" not in r.stderr
+    assert len(r.stderr.strip().splitlines()) == 1
+
+
+@pytest.mark.parametrize(
+    ("stdin", "expected"),
+    [
+        ("", "empty input"),
+        ('{"frequency_mhz": NaN}', "NaN is not valid JSON"),
+        ('{"frequency_mhz": Infinity}', "Infinity is not valid JSON"),
+        ("[" * 100000 + "]" * 100000, "nested too deeply"),
+    ],
+)
+def test_bad_json_one_clear_line(stdin, expected):
+    r = run("model", "-", stdin=stdin)
+    assert r.returncode == 2
+    assert expected in r.stderr
+    assert "Traceback" not in r.stderr
+
+
+def test_missing_file():
+    r = run("plan", "no-such-file.json")
+    assert r.returncode == 2
+    assert "no such file: no-such-file.json" in r.stderr
+
+
+def test_unknown_subcommand_is_a_usage_error():
+    r = run("fly")
+    assert r.returncode == 2
+    assert "invalid choice" in r.stderr
+
+
+def test_not_utf8(tmp_path):
+    f = tmp_path / "bad.json"
+    f.write_bytes(b'{"name": "\xff"}')
+    r = run("plan", str(f))
+    assert r.returncode == 2
+    assert "not UTF-8" in r.stderr
+
+
+def test_data_dir_override(tmp_path):
+    os.environ["FIELDKIT_HOME"] = str(tmp_path / "home")
+    try:
+        assert paths.data_dir() == tmp_path / "home"
+        assert (tmp_path / "home").is_dir()
+    finally:
+        del os.environ["FIELDKIT_HOME"]
+
+
+def test_output_refuses_nan():
+    with pytest.raises(ValueError):
+        jsonio.dumps({"x": float("nan")})
+
+
+@pytest.mark.parametrize(
+    ("value", "kwargs", "message"),
+    [
+        (True, {}, "expected a number"),
+        ("12", {"unit": "m"}, "expected a number in m"),
+        (float("inf"), {}, "finite"),
+        (-1.0, {"minimum": 0, "unit": "m"}, "at least 0 m"),
+        (0.0, {"minimum": 0, "exclusive_minimum": True}, "more than 0"),
+        (31.0, {"maximum": 30, "unit": "MHz"}, "at most 30 MHz"),
+        (2.5, {"integer": True}, "an integer"),
+    ],
+)
+def test_number_errors_name_the_field(value, kwargs, message):
+    with pytest.raises(InputError) as err:
+        number(value, "site.supports[0].height_m", **kwargs)
+    assert err.value.field == "site.supports[0].height_m"
+    assert message in err.value.detail
+
+
+def test_unknown_field_refused_by_name():
+    with pytest.raises(InputError) as err:
+        check_keys({"heigth_m": 3}, "site.supports[1]", ["height_m", "id"])
+    assert err.value.field == "site.supports[1].heigth_m"
+    assert "unknown field" in err.value.detail
+
+
+def test_demo_files_are_json():
+    for f in (ROOT / "assets" / "demo").glob("*.json"):
+        json.loads(f.read_text())
