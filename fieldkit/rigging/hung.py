@@ -1,0 +1,251 @@
+"""The dipole as it really hangs: flat or sloping between two supports, drooping ends on a short span,
+or an inverted-V from a centre mast — as a 3-D polyline the engine can solve, with the loads.
+
+The chain for two supports is rope – leg – feedpoint load – leg – rope, all catenaries
+(:mod:`fieldkit.rigging.catenary`). Both halyards pay out the same rope length. When the span is too
+short for the wire at the applied pull, the insulators sit at the supports and the rest of each leg
+droops outward and down toward a stake (``DROOP_ANGLE_DEG``).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from fieldkit.rigging.catenary import (
+    ChainShape,
+    HangError,
+    Piece,
+    hang_between,
+    hang_to_height,
+)
+
+# A drooping end runs outward and down at 45° to its stake: far enough from the trunk to keep the
+# wire off the bark, steep enough to keep the stake close (common practice, no single source).
+DROOP_ANGLE_DEG = 45.0
+SAMPLES_PER_LEG = 6  # polyline points per leg: sag of a tensioned leg is smooth (checked in tests)
+
+
+@dataclass(frozen=True)
+class HungDipole:
+    """A hung dipole.
+
+    Attributes
+    ----------
+    points_m : the wire polyline, end to end (n, 3) [m]
+    feed_distance_m : distance along the polyline to the feedpoint [m]
+    feedpoint_height_m : [m]
+    end_heights_m : heights of the two wire ends [m]
+    sag_m : feedpoint below the straight line between the insulators (flat/sloping) [m]
+    span_rope_m : rope between each support and its end insulator [m]
+    tail_m : drooping length of each leg beyond its support (short span) [m]
+    horizontal_tension_n : [N]
+    end_tension_n : tension at each support/anchor end [N]
+    support_vertical_n : vertical pull on each support from the span [N]
+    apex_angle_deg : angle between the legs at the feedpoint (inverted-V), None otherwise [deg]
+    top_load_n : load on the mast head (inverted-V) [N]
+    stake_distance_m : horizontal distance from the mast to each end stake (inverted-V) [m]
+    """
+
+    points_m: np.ndarray
+    feed_distance_m: float
+    feedpoint_height_m: float
+    end_heights_m: tuple[float, float]
+    sag_m: float
+    span_rope_m: tuple[float, float]
+    tail_m: float
+    horizontal_tension_n: float
+    end_tension_n: tuple[float, float]
+    support_vertical_n: tuple[float, float]
+    apex_angle_deg: float | None = None
+    top_load_n: float | None = None
+    stake_distance_m: float | None = None
+    notes: tuple[str, ...] = field(default_factory=tuple)
+
+
+def _polyline_length(points: np.ndarray) -> float:
+    return float(np.sum(np.linalg.norm(np.diff(points, axis=0), axis=1)))
+
+
+def _plane_to_site(
+    shape: ChainShape, first: int, last: int, origin: np.ndarray, axis: np.ndarray, z0: float
+) -> np.ndarray:
+    u = shape.u_m[first : last + 1]
+    z = shape.z_m[first : last + 1] + z0
+    xy = origin[None, :] + u[:, None] * axis[None, :]
+    return np.column_stack([xy, z])
+
+
+def hang_span(
+    *,
+    a_xy: tuple[float, float],
+    a_height_m: float,
+    b_xy: tuple[float, float],
+    b_height_m: float,
+    leg_m: float,
+    wire_weight_n_per_m: float,
+    rope_weight_n_per_m: float,
+    feed_load_n: float,
+    tension_n: float,
+) -> HungDipole:
+    """Hang a centre-fed dipole between two supports (flat when the rope heights match, else sloping).
+
+    Parameters
+    ----------
+    a_xy, b_xy : support positions [m]
+    a_height_m, b_height_m : rope heights (branch or pulley) [m]
+    leg_m : electrical length of each leg [m]
+    wire_weight_n_per_m, rope_weight_n_per_m : weights per length [N/m]
+    feed_load_n : balun plus hanging coax at the feedpoint [N]
+    tension_n : pull applied at the halyards (the larger end tension) [N]
+
+    Raises
+    ------
+    HangError
+        When the wire cannot be hung between these points at this pull.
+    """
+    a = np.asarray(a_xy, dtype=float)
+    b = np.asarray(b_xy, dtype=float)
+    span = float(np.linalg.norm(b - a))
+    if span < 1.0:
+        raise HangError("the two supports are at the same place")
+    axis = (b - a) / span
+    rise = b_height_m - a_height_m
+    ww, wr = wire_weight_n_per_m, rope_weight_n_per_m
+
+    def with_ropes(r: float) -> tuple[Piece, ...]:
+        return (
+            Piece(r, wr, False),
+            Piece(leg_m, ww, True, feed_load_n),
+            Piece(leg_m, ww, True),
+            Piece(r, wr, False),
+        )
+
+    notes: list[str] = []
+    tail = 0.0
+    try:
+        if span - 2 * leg_m < 0.02 * span:
+            raise HangError("short span")
+        shape, rope = hang_between(
+            with_ropes,
+            span_m=span,
+            rise_m=rise,
+            end_tension_n=tension_n,
+            free_guess=(span - 2 * leg_m) / 2,
+        )
+        if rope < 0:
+            raise HangError("short span")
+        wire_first, feed_idx, wire_last = (
+            shape.piece_bounds[1][0],
+            shape.piece_bounds[1][1],
+            shape.piece_bounds[2][1],
+        )
+    except HangError:
+        # short span: insulators at the supports, the rest of each leg droops toward a stake
+        def no_ropes(half: float) -> tuple[Piece, ...]:
+            return (Piece(half, ww, True, feed_load_n), Piece(half, ww, True))
+
+        shape, half = hang_between(
+            no_ropes, span_m=span, rise_m=rise, end_tension_n=tension_n, free_guess=span / 2
+        )
+        rope = 0.0
+        tail = leg_m - half
+        if tail < 0:
+            raise HangError("inconsistent short-span hang") from None
+        wire_first, feed_idx, wire_last = 0, shape.piece_bounds[0][1], shape.piece_bounds[1][1]
+    pts = _plane_to_site(shape, wire_first, wire_last, a, axis, a_height_m)
+    if tail > 0:
+        drop = tail * math.sin(math.radians(DROOP_ANGLE_DEG))
+        run = tail * math.cos(math.radians(DROOP_ANGLE_DEG))
+        start = pts[0] + np.array([-axis[0] * run, -axis[1] * run, -drop])
+        end = pts[-1] + np.array([axis[0] * run, axis[1] * run, -drop])
+        pts = np.vstack([start, pts, end])
+        feed_idx += 1
+        notes.append(
+            f"short span: {tail:.2f} m of each leg droops from its support to a stake "
+            f"at {DROOP_ANGLE_DEG:.0f}° (end {drop:.1f} m below the insulator point)"
+        )
+    feed_point = pts[feed_idx - wire_first]
+    feed_distance = _polyline_length(pts[: feed_idx - wire_first + 1])
+    ends = (float(pts[0, 2]), float(pts[-1, 2]))
+    # the insulators (wire ends within the span) and the straight line between them
+    ins_a = _plane_to_site(shape, wire_first, wire_first, a, axis, a_height_m)[0]
+    ins_b = _plane_to_site(shape, wire_last, wire_last, a, axis, a_height_m)[0]
+    t = float(
+        np.dot(feed_point[:2] - ins_a[:2], axis) / max(np.dot(ins_b[:2] - ins_a[:2], axis), 1e-9)
+    )
+    sag = float(ins_a[2] + t * (ins_b[2] - ins_a[2]) - feed_point[2])
+    return HungDipole(
+        points_m=pts,
+        feed_distance_m=feed_distance,
+        feedpoint_height_m=float(feed_point[2]),
+        end_heights_m=ends,
+        sag_m=sag,
+        span_rope_m=(rope, rope),
+        tail_m=tail,
+        horizontal_tension_n=shape.horizontal_tension_n,
+        end_tension_n=shape.end_tensions_n,
+        support_vertical_n=shape.end_vertical_n,
+        notes=tuple(notes),
+    )
+
+
+def hang_inverted_v(
+    *,
+    centre_xy: tuple[float, float],
+    axis_xy: tuple[float, float],
+    apex_height_m: float,
+    end_height_m: float,
+    leg_m: float,
+    wire_weight_n_per_m: float,
+    feed_load_n: float,
+    tension_n: float,
+) -> HungDipole:
+    """Hang an inverted-V from a centre mast, each leg pulled down to an end insulator and a stake rope.
+
+    Parameters
+    ----------
+    centre_xy : mast position [m]
+    axis_xy : horizontal direction of the legs (normalised here) [-]
+    apex_height_m : feedpoint height on the mast [m]
+    end_height_m : height of both end insulators [m]
+    leg_m : leg length [m]
+    wire_weight_n_per_m : [N/m]
+    feed_load_n : balun plus hanging coax (carried by the mast) [N]
+    tension_n : pull at each end insulator [N]
+    """
+    c = np.asarray(centre_xy, dtype=float)
+    axis = np.asarray(axis_xy, dtype=float)
+    axis = axis / np.linalg.norm(axis)
+    drop = apex_height_m - end_height_m
+    if drop <= 0:
+        raise HangError("the ends must hang below the apex")
+    leg = (Piece(leg_m, wire_weight_n_per_m, True),)
+    shape, reach = hang_to_height(leg, drop_m=drop, end_tension_n=tension_n)
+    n = shape.piece_bounds[0][1]
+    right = _plane_to_site(shape, 0, n, c, axis, apex_height_m)
+    left = _plane_to_site(shape, 0, n, c, -axis, apex_height_m)[::-1]
+    pts = np.vstack([left, right[1:]])
+    h = shape.horizontal_tension_n
+    v_end = -shape.end_vertical_n[1]  # downward slope at the end: component along the stake rope
+    apex_vertical = shape.end_vertical_n[0]  # what the mast supplies per leg
+    top_load = 2 * apex_vertical + feed_load_n
+    stake = reach + end_height_m * h / max(abs(v_end), 1e-9)
+    apex_angle = 2 * math.degrees(math.atan2(reach, drop))
+    return HungDipole(
+        points_m=pts,
+        feed_distance_m=_polyline_length(left),
+        feedpoint_height_m=apex_height_m,
+        end_heights_m=(end_height_m, end_height_m),
+        sag_m=0.0,
+        span_rope_m=(0.0, 0.0),
+        tail_m=0.0,
+        horizontal_tension_n=h,
+        end_tension_n=(shape.end_tensions_n[1], shape.end_tensions_n[1]),
+        support_vertical_n=(apex_vertical, apex_vertical),
+        apex_angle_deg=apex_angle,
+        top_load_n=top_load,
+        stake_distance_m=stake,
+    )

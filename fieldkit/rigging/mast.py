@@ -1,0 +1,105 @@
+"""Centre mast: which kit mast holds the feedpoint, its top load against its rating, guys.
+
+The top load is what the mast head carries straight down: the vertical components of both legs'
+tension at the apex, plus the balun and the hanging coax. A rating is stated by the maker as a mass
+[kg] at the top; fieldkit compares like with like (newtons / g).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Any
+
+from fieldkit.errors import InputError, array, check_keys, join, number, require_mapping, text
+from fieldkit.rigging.catenary import STANDARD_GRAVITY_M_S2
+
+# Guy anchors at about 0.7 × the guy attachment height from the mast foot (guys near 55° to the
+# ground) — common practice for light telescopic masts, no single source.
+GUY_RADIUS_FRACTION = 0.7
+MIN_GUYS = 3  # three guys at 120° is the least that holds a mast in every direction (statics)
+
+
+@dataclass(frozen=True)
+class Mast:
+    """A kit mast: id, extended height [m], rated top load [kg], number of guys."""
+
+    id: str
+    height_m: float
+    top_load_kg: float
+    guys: int
+
+
+def parse_masts(value: Any, field: str = "kit.masts") -> list[Mast]:
+    items = array(value, field, max_items=10)
+    out = []
+    for i, item in enumerate(items):
+        f = join(field, i)
+        obj = require_mapping(item, f)
+        check_keys(obj, f, ("id", "kind", "height_m", "top_load_kg", "guys", "note"))
+        for key in ("id", "height_m", "top_load_kg"):
+            if key not in obj:
+                raise InputError(join(f, key), "required")
+        guys = int(number(obj.get("guys", 3), join(f, "guys"), minimum=0, maximum=12, integer=True))
+        out.append(
+            Mast(
+                id=text(obj["id"], join(f, "id"), max_length=20),
+                height_m=number(
+                    obj["height_m"], join(f, "height_m"), unit="m", minimum=1, maximum=40
+                ),
+                top_load_kg=number(
+                    obj["top_load_kg"], join(f, "top_load_kg"), unit="kg", minimum=0, maximum=200
+                ),
+                guys=guys,
+            )
+        )
+    return out
+
+
+def max_pull_for_mast(
+    *, rating_kg: float, fixed_load_n: float, leg_weight_n: float, apex_sin: float
+) -> float:
+    """A first guess at the largest end pull the mast can carry [N].
+
+    Each leg puts about half its weight plus pull × sin(leg angle below horizontal at the apex) on the
+    mast head; the exact figure comes from the hung shape (mast_json).
+    """
+    spare = rating_kg * STANDARD_GRAVITY_M_S2 - fixed_load_n - leg_weight_n
+    return max(spare, 0.0) / max(2 * apex_sin, 1e-3)
+
+
+def mast_json(
+    mast: Mast, *, apex_height_m: float, top_load_n: float, unbalance_n: float = 0.0
+) -> dict[str, Any]:
+    """The option's mast block: load against rating, guys and their radius.
+
+    Parameters
+    ----------
+    apex_height_m : height of the feedpoint on the mast [m]
+    top_load_n : downward load at the mast head [N]
+    unbalance_n : net horizontal pull at the head that the guys must hold [N]
+    """
+    load_kg = top_load_n / STANDARD_GRAVITY_M_S2
+    ok = load_kg <= mast.top_load_kg and apex_height_m <= mast.height_m + 1e-9
+    radius = GUY_RADIUS_FRACTION * apex_height_m
+    guy_angle = math.atan2(apex_height_m, radius)
+    # the guy on the pulled side takes the unbalance: T cos(angle) = unbalance
+    guy_tension = unbalance_n / math.cos(guy_angle) if unbalance_n > 0 else 0.0
+    out = {
+        "id": mast.id,
+        "height_m": round(apex_height_m, 2),
+        "top_load_kg": round(load_kg, 2),
+        "rating_kg": mast.top_load_kg,
+        "ok": ok,
+        "guys": max(mast.guys, MIN_GUYS),
+        "guy_radius_m": round(radius, 2),
+        "guy_tension_n": round(guy_tension, 1),
+        "why": (
+            f"top load {load_kg:.2f} kg within the {mast.top_load_kg:g} kg rating"
+            if ok
+            else f"top load {load_kg:.2f} kg exceeds the {mast.top_load_kg:g} kg rating: do not use {mast.id}"
+        ),
+    }
+    if mast.guys < MIN_GUYS:
+        out["why"] += f"; {mast.id} lists {mast.guys} guys, use at least {MIN_GUYS}"
+    return out

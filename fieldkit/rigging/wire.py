@@ -1,0 +1,119 @@
+"""The kit's antenna wire: diameter (or AWG gauge), conductor, insulation jacket, mass per metre.
+
+References
+----------
+.. [1] ASTM B258, Standard Specification for Standard Nominal Diameters and Cross-Sectional Areas of
+   AWG Sizes of Solid Round Wires Used as Electrical Conductors.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Any
+
+from fieldkit.errors import InputError, check_keys, choice, join, number, require_mapping
+
+CONDUCTORS = ("perfect", "copper", "aluminium", "copper-clad-steel", "steel")
+# Densities [kg/m³]: copper 8890 (REFERENCES.md, from memory); aluminium 2700, steel 7850, PVC jacket
+# 1400 (from memory, handbook values). Copper-clad steel taken as steel (the cladding is thin).
+DENSITY_KG_M3 = {
+    "perfect": 8890.0,
+    "copper": 8890.0,
+    "aluminium": 2700.0,
+    "copper-clad-steel": 7850.0,
+    "steel": 7850.0,
+}
+JACKET_DENSITY_KG_M3 = 1400.0  # PVC, from memory
+
+
+def awg_diameter_m(gauge: int) -> float:
+    """Nominal diameter of AWG gauge n: d = 0.127 mm × 92^((36 − n)/39) (ASTM B258) [m]."""
+    return 0.127e-3 * 92.0 ** ((36 - gauge) / 39)
+
+
+@dataclass(frozen=True)
+class KitWire:
+    """Antenna wire from the kit.
+
+    Attributes
+    ----------
+    diameter_m : conductor diameter [m]
+    conductor : conductor material name
+    insulation_thickness_m : jacket thickness, 0 for bare wire [m]
+    insulation_permittivity : relative permittivity of the jacket [-]
+    spool_m : wire on the spool, None if not stated [m]
+    """
+
+    diameter_m: float
+    conductor: str
+    insulation_thickness_m: float = 0.0
+    insulation_permittivity: float = 1.0
+    spool_m: float | None = None
+
+    @property
+    def mass_kg_per_m(self) -> float:
+        """Conductor (treated as solid) plus jacket [kg/m]."""
+        a = self.diameter_m / 2
+        b = a + self.insulation_thickness_m
+        return math.pi * (
+            a * a * DENSITY_KG_M3[self.conductor] + (b * b - a * a) * JACKET_DENSITY_KG_M3
+        )
+
+    def to_json(self) -> dict[str, Any]:
+        out: dict[str, Any] = {
+            "diameter_mm": round(self.diameter_m * 1e3, 4),
+            "conductor": self.conductor,
+        }
+        if self.insulation_thickness_m > 0:
+            out["insulation"] = {
+                "thickness_mm": round(self.insulation_thickness_m * 1e3, 4),
+                "relative_permittivity": self.insulation_permittivity,
+            }
+        return out
+
+
+def parse_wire(value: Any, field: str = "kit.wire") -> KitWire:
+    """Validate the kit wire: ``diameter_mm`` or ``awg``, ``conductor``, optional ``insulation``, ``spool_m``."""
+    obj = require_mapping(value, field)
+    check_keys(obj, field, ("diameter_mm", "awg", "conductor", "insulation", "spool_m", "note"))
+    if "diameter_mm" in obj and "awg" in obj:
+        raise InputError(join(field, "awg"), "give either diameter_mm or awg, not both")
+    if "awg" in obj:
+        gauge = number(obj["awg"], join(field, "awg"), minimum=0, maximum=40, integer=True)
+        diameter = awg_diameter_m(int(gauge))
+    elif "diameter_mm" in obj:
+        diameter = (
+            number(
+                obj["diameter_mm"], join(field, "diameter_mm"), unit="mm", minimum=0.2, maximum=20
+            )
+            * 1e-3
+        )
+    else:
+        raise InputError(join(field, "diameter_mm"), "required: the wire diameter in mm (or awg)")
+    conductor = choice(obj.get("conductor", "copper"), join(field, "conductor"), CONDUCTORS)
+    thickness, eps = 0.0, 1.0
+    if obj.get("insulation") is not None:
+        ifield = join(field, "insulation")
+        ins = require_mapping(obj["insulation"], ifield)
+        check_keys(ins, ifield, ("thickness_mm", "relative_permittivity"))
+        if "thickness_mm" not in ins or "relative_permittivity" not in ins:
+            raise InputError(ifield, "expected thickness_mm and relative_permittivity")
+        thickness = (
+            number(
+                ins["thickness_mm"], join(ifield, "thickness_mm"), unit="mm", minimum=0, maximum=10
+            )
+            * 1e-3
+        )
+        eps = number(
+            ins["relative_permittivity"],
+            join(ifield, "relative_permittivity"),
+            minimum=1,
+            maximum=20,
+        )
+    spool = None
+    if obj.get("spool_m") is not None:
+        spool = number(
+            obj["spool_m"], join(field, "spool_m"), unit="m", exclusive_minimum=True, minimum=0
+        )
+    return KitWire(diameter, conductor, thickness, eps, spool)
