@@ -1,0 +1,109 @@
+"""Checklist items of a deployment, their acknowledgements, and the CSV export."""
+
+from __future__ import annotations
+
+import uuid
+from typing import Any
+
+from flask import Blueprint, Response, jsonify
+
+from fieldkit.errors import InputError, check_keys, text
+from fieldkit.service.db import get_db
+from fieldkit.service.http import json_body
+from fieldkit.service.planning import CONFLICT_RULE, items_with_state, readiness
+from fieldkit.store import checks, deployments, transaction, transfer
+from fieldkit.store.errors import NotFound
+
+bp = Blueprint("checks", __name__, url_prefix="/api/deployments/<deployment_id>")
+
+MAX_BY_LENGTH = 40
+
+
+def _client_id(value: Any) -> str:
+    if not isinstance(value, str) or len(value) > 64:
+        raise InputError("client_id", f"expected a UUID string, got {value!r}"[:200])
+    try:
+        return str(uuid.UUID(value))
+    except ValueError:
+        raise InputError("client_id", f"expected a UUID string, got {value!r}"[:200]) from None
+
+
+def acknowledgement_body(body: dict[str, Any]) -> dict[str, Any]:
+    check_keys(body, "", ("done", "by", "at", "client_id"))
+    for key in ("done", "by", "at", "client_id"):
+        if key not in body:
+            raise InputError(key, "missing; expected done, by, at and client_id")
+    if not isinstance(body["done"], bool):
+        raise InputError("done", f"expected true or false, got {body['done']!r}"[:200])
+    by = text(body["by"], "by", max_length=MAX_BY_LENGTH).strip()
+    checks.instant_utc(body["at"], "at")
+    return {
+        "done": body["done"],
+        "by": by,
+        "at": body["at"],
+        "client_id": _client_id(body["client_id"]),
+    }
+
+
+def _state(conn, deployment_id: str) -> tuple[deployments.Deployment, list[dict]]:
+    found = deployments.get(conn, deployment_id)
+    return found, items_with_state(conn, deployment_id, found.plan_result)
+
+
+@bp.get("/checks")
+def list_checks(deployment_id: str):
+    found, items = _state(get_db(), deployment_id)
+    return jsonify(
+        {
+            "deployment_id": found.id,
+            "revision": found.revision,
+            "rule": CONFLICT_RULE,
+            "items": items,
+            **readiness(found.plan_result, items),
+        }
+    )
+
+
+@bp.get("/checks.csv")
+def checks_csv(deployment_id: str):
+    found, items = _state(get_db(), deployment_id)
+    response = Response(transfer.checklist_csv(items), mimetype="text/csv")
+    response.headers["Content-Disposition"] = (
+        f'attachment; filename="fieldkit-checks-{found.id}.csv"'
+    )
+    return response
+
+
+def _item(items: list[dict], item_id: str) -> dict:
+    for item in items:
+        if item["id"] == item_id:
+            return item
+    raise NotFound("item_id", f"the deployment's checklist has no item {item_id!r}", value=item_id)
+
+
+@bp.get("/checks/<item_id>")
+def read_check(deployment_id: str, item_id: str):
+    conn = get_db()
+    _found, items = _state(conn, deployment_id)
+    item = _item(items, item_id)
+    history = [ack.to_json() for ack in checks.history(conn, deployment_id, item_id)]
+    return jsonify({"item": item, "history": history, "rule": CONFLICT_RULE})
+
+
+@bp.put("/checks/<item_id>")
+def acknowledge(deployment_id: str, item_id: str):
+    fields = acknowledgement_body(json_body())
+    conn = get_db()
+    with transaction(conn):
+        found = deployments.get(conn, deployment_id)
+        _item(items_with_state(conn, deployment_id, found.plan_result), item_id)
+        ack, replayed = checks.insert(conn, deployment_id=deployment_id, item_id=item_id, **fields)
+    items = items_with_state(conn, deployment_id, found.plan_result)
+    return jsonify(
+        {
+            "acknowledgement": ack.to_json(),
+            "replayed": replayed,
+            "item": _item(items, item_id),
+            **readiness(found.plan_result, items),
+        }
+    )

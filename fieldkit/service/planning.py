@@ -1,0 +1,90 @@
+"""The plan of a deployment and its checklist: run the plan layer, derive items and readiness."""
+
+from __future__ import annotations
+
+import sqlite3
+from collections.abc import Mapping
+from typing import Any
+
+from fieldkit.service.layers import LayerUnavailable, layer_function
+from fieldkit.store import checks
+
+PRE_RAISE = "pre-raise"
+CONFLICT_RULE = (
+    "per item, the acknowledgement with the latest 'at' (UTC) is the current state; equal times go "
+    "to the later arrival; the history keeps every acknowledgement; a repeated client_id is one record"
+)
+
+
+def run_plan(plan_input: Mapping[str, Any]) -> tuple[dict[str, Any] | None, dict[str, Any] | None]:
+    """The plan result, or ``(None, error)`` when the plan layer is not in this build.
+
+    Bad input raises :class:`fieldkit.errors.InputError` from the plan layer itself.
+    """
+    try:
+        plan = layer_function("fieldkit.plan", "plan")
+    except LayerUnavailable as exc:
+        return None, exc.to_json()
+    return plan(dict(plan_input)), None
+
+
+def chosen_option(result: Mapping[str, Any] | None) -> Mapping[str, Any] | None:
+    """The option the deployment follows: the plan's best (first) one."""
+    if not isinstance(result, Mapping):
+        return None
+    options = result.get("options")
+    if isinstance(options, list) and options and isinstance(options[0], Mapping):
+        return options[0]
+    return None
+
+
+def checklist(result: Mapping[str, Any] | None) -> list[Mapping[str, Any]]:
+    """The checklist items of the chosen option's safety block (empty without a plan result)."""
+    option = chosen_option(result)
+    safety = option.get("safety") if option else None
+    items = safety.get("checklist") if isinstance(safety, Mapping) else None
+    if not isinstance(items, list):
+        return []
+    return [item for item in items if isinstance(item, Mapping) and isinstance(item.get("id"), str)]
+
+
+def raise_ok(result: Mapping[str, Any] | None) -> bool | None:
+    option = chosen_option(result)
+    safety = option.get("safety") if option else None
+    value = safety.get("raise_ok") if isinstance(safety, Mapping) else None
+    return value if isinstance(value, bool) else None
+
+
+def items_with_state(conn: sqlite3.Connection, deployment_id: str, result: Any) -> list[dict]:
+    """Each checklist item with its current state (done, by, at) and how many acknowledgements it has."""
+    state = checks.current_state(conn, deployment_id)
+    counts: dict[str, int] = {}
+    for ack in checks.history(conn, deployment_id):
+        counts[ack.item_id] = counts.get(ack.item_id, 0) + 1
+    out = []
+    for item in checklist(result):
+        held = state.get(item["id"])
+        out.append(
+            {
+                **item,
+                "required": bool(item.get("required", False)),
+                "done": bool(held.done) if held else False,
+                "by": held.by if held else None,
+                "at": held.at if held else None,
+                "acknowledgements": counts.get(item["id"], 0),
+            }
+        )
+    return out
+
+
+def readiness(result: Any, items: list[dict]) -> dict[str, Any]:
+    """Ready to raise: a plan exists, its safety block does not forbid raising, and every required
+    pre-raise item is acknowledged done. Without a plan result nothing is ready."""
+    missing = [
+        item["id"]
+        for item in items
+        if item.get("stage") == PRE_RAISE and item["required"] and not item["done"]
+    ]
+    ok = raise_ok(result)
+    ready = chosen_option(result) is not None and ok is not False and not missing
+    return {"ready_to_raise": ready, "raise_ok": ok, "missing_checks": missing}

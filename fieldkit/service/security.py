@@ -1,0 +1,127 @@
+"""Security headers on every response and the LAN access key.
+
+In LAN mode every ``/api/`` route except health needs the key: the ``X-Fieldkit-Key`` header or the
+``fieldkit_key`` cookie (HttpOnly, SameSite=Strict) that a first visit with ``?key=KEY`` sets. The key
+is never written to a log. Writes accept ``application/json`` only: a cross-site HTML form cannot send
+that content type, and the SameSite=Strict cookie is not sent on cross-site requests, which together
+close cross-site request forgery.
+"""
+
+from __future__ import annotations
+
+import hmac
+import secrets
+import threading
+from urllib.parse import urlencode
+
+from flask import Flask, Response, current_app, redirect, request
+from werkzeug.datastructures import MultiDict
+
+from fieldkit.service.http import WRITE_METHODS, UnsupportedMedia, error_response
+
+KEY_HEADER = "X-Fieldkit-Key"
+KEY_COOKIE = "fieldkit_key"
+KEY_QUERY = "key"
+KEY_BYTES = 24  # secrets.token_urlsafe(24): 192 bits, 32 characters
+# The app needs nothing else: no inline script, no external origin, no framing.
+CONTENT_SECURITY_POLICY = (
+    "default-src 'self'; script-src 'self'; style-src 'self'; img-src 'self' data:; "
+    "connect-src 'self'; frame-ancestors 'none'; base-uri 'none'; form-action 'self'"
+)
+SECURITY_HEADERS = {
+    "Content-Security-Policy": CONTENT_SECURITY_POLICY,
+    "X-Content-Type-Options": "nosniff",
+    "Referrer-Policy": "no-referrer",
+    "X-Frame-Options": "DENY",
+    "Cross-Origin-Opener-Policy": "same-origin",
+    "Cross-Origin-Resource-Policy": "same-origin",
+    "Permissions-Policy": "camera=(), microphone=(), payment=(), usb=()",
+}
+OPEN_API_PATHS = frozenset({"/api/health"})
+
+
+def new_key() -> str:
+    return secrets.token_urlsafe(KEY_BYTES)
+
+
+class KeyRing:
+    """The current access key; :meth:`rotate` replaces it and the old one stops working at once."""
+
+    def __init__(self, key: str | None) -> None:
+        self._key = key
+        self._lock = threading.Lock()
+
+    @property
+    def key(self) -> str | None:
+        with self._lock:
+            return self._key
+
+    def rotate(self) -> str:
+        with self._lock:
+            self._key = new_key()
+            return self._key
+
+    def matches(self, candidate: str | None) -> bool:
+        current = self.key
+        if not current or not candidate:
+            return False
+        return hmac.compare_digest(candidate.encode(), current.encode())
+
+
+def keyring(app: Flask | None = None) -> KeyRing:
+    return (app or current_app).extensions["fieldkit_keyring"]
+
+
+def set_key_cookie(response: Response, key: str) -> None:
+    response.set_cookie(KEY_COOKIE, key, httponly=True, samesite="Strict", path="/")
+
+
+def _unauthorized(detail: str) -> Response:
+    response = error_response(401, "unauthorized", detail, "key")
+    response.headers["WWW-Authenticate"] = f'{KEY_HEADER} realm="fieldkit"'
+    return response
+
+
+def _guard() -> Response | None:
+    """Before every request: the LAN key for the API, the cookie from ``?key=``, JSON-only writes."""
+    path = request.path
+    is_api = path == "/api" or path.startswith("/api/")
+    if current_app.config["LAN"]:
+        ring = keyring()
+        if is_api and path not in OPEN_API_PATHS:
+            sent = request.headers.get(KEY_HEADER) or request.cookies.get(KEY_COOKIE)
+            if not ring.matches(sent):
+                return _unauthorized(
+                    "this fieldkit is on the local network: open the address with ?key=… shown on "
+                    f"the laptop, or send the {KEY_HEADER} header"
+                )
+        elif not is_api and KEY_QUERY in request.args:
+            if not ring.matches(request.args.get(KEY_QUERY)):
+                return _unauthorized("wrong or old access key: scan the code on the laptop again")
+            # Move the key from the address into the cookie, so it does not stay in the history.
+            rest = MultiDict(request.args)
+            rest.pop(KEY_QUERY)
+            # request.path "//host" would be a protocol-relative redirect off the laptop: never.
+            target = "/" if path.startswith("//") else path
+            if rest:
+                target += "?" + urlencode(list(rest.items(multi=True)))
+            response = redirect(target, code=303)
+            set_key_cookie(response, ring.key or "")
+            return response
+    if is_api and request.method in WRITE_METHODS and request.mimetype != "application/json":
+        raise UnsupportedMedia()
+    return None
+
+
+def _headers(response: Response) -> Response:
+    for name, value in SECURITY_HEADERS.items():
+        response.headers.setdefault(name, value)
+    if request.path.startswith("/api/"):
+        response.headers.setdefault("Cache-Control", "no-store")
+    return response
+
+
+def install(app: Flask) -> None:
+    app.extensions["fieldkit_keyring"] = KeyRing(app.config.get("KEY"))
+    app.before_request(_guard)
+    app.after_request(_headers)

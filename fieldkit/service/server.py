@@ -1,0 +1,131 @@
+"""Running the service with waitress: ``serve()`` in the foreground, or a server in a thread.
+
+``serve`` handles SIGINT and SIGTERM: in-flight requests finish (up to waitress's shutdown timeout),
+the sockets close and the database's write-ahead log is checkpointed before it returns.
+"""
+
+from __future__ import annotations
+
+import ipaddress
+import logging
+import signal
+import sys
+import threading
+from dataclasses import dataclass
+from pathlib import Path
+from typing import TextIO
+
+from flask import Flask
+from waitress import wasyncore
+from waitress.server import create_server
+
+from fieldkit.service.app import create_app
+from fieldkit.service.lan import access_url, lan_address, qr_terminal
+from fieldkit.store.db import checkpoint_and_close
+
+log = logging.getLogger("fieldkit.service")
+
+# Worker threads: plan requests are CPU-bound on a 2-4 core laptop, so more threads only queue;
+# six keep reads and checklist writes from phones flowing while two plans run.
+THREADS = 6
+LOOPBACK = "127.0.0.1"
+
+
+@dataclass
+class RunningServer:
+    """A waitress server running in a daemon thread; :meth:`stop` ends it from any thread."""
+
+    server: object
+    thread: threading.Thread
+    host: str
+    port: int
+
+    @property
+    def url(self) -> str:
+        return f"http://{self.host}:{self.port}/"
+
+    def stop(self, timeout_s: float = 10.0) -> None:
+        server = self.server
+        # Close every socket from inside the server's own loop: the loop ends when its map is empty.
+        server.trigger.pull_trigger(lambda: wasyncore.close_all(server._map))
+        self.thread.join(timeout_s)
+        server.task_dispatcher.shutdown()
+
+
+def start_in_thread(
+    app: Flask, *, host: str = LOOPBACK, port: int = 0, threads: int = THREADS
+) -> RunningServer:
+    """Start waitress for ``app`` on ``host:port`` (0: a free port) in a daemon thread."""
+    server = create_server(app, host=host, port=port, threads=threads, ident="fieldkit")
+    thread = threading.Thread(target=server.run, name="fieldkit-waitress", daemon=True)
+    thread.start()
+    return RunningServer(server=server, thread=thread, host=host, port=server.effective_port)
+
+
+def _is_loopback(host: str) -> bool:
+    if host == "localhost":
+        return True
+    try:
+        return ipaddress.ip_address(host).is_loopback
+    except ValueError:
+        return False
+
+
+def _stop(signum: int, _frame: object) -> None:
+    raise KeyboardInterrupt(signal.Signals(signum).name)
+
+
+def serve(
+    *,
+    host: str = LOOPBACK,
+    port: int = 8765,
+    data_dir: str | Path | None = None,
+    lan: bool = False,
+    out: TextIO | None = None,
+) -> None:
+    """Serve the app and the API until SIGINT or SIGTERM.
+
+    Parameters
+    ----------
+    host : str
+        Address to bind. With ``lan`` a loopback host becomes 0.0.0.0 (every interface). A
+        non-loopback host always turns LAN mode on: nothing is served to the network without a key.
+    port : int
+        TCP port; 0 picks a free one (the line printed at start shows which).
+    data_dir : path, optional
+        Where the database lives; default the user data directory (or ``FIELDKIT_HOME``).
+    lan : bool
+        Serve phones on the local network: access key, printed address and QR code.
+    """
+    out = out or sys.stdout
+    if lan and _is_loopback(host):
+        host = "0.0.0.0"
+    if not lan and not _is_loopback(host):
+        lan = True
+        print(f"{host} is not a loopback address: LAN mode with an access key is on.", file=out)
+    app = create_app({"DATA_DIR": data_dir, "LAN": lan})
+    server = create_server(app, host=host, port=port, threads=THREADS, ident="fieldkit")
+    port = server.effective_port
+    if lan:
+        address = lan_address() if host in ("0.0.0.0", "") else host
+        app.config["PUBLIC_URL"] = f"http://{address}:{port}/"
+        url = access_url(app.config["PUBLIC_URL"], app.config["KEY"])
+        print(f"fieldkit on the local network: {url}", file=out)
+        print("Phones on the same network: scan this code, or type the address.", file=out)
+        print(qr_terminal(url), file=out)
+    else:
+        print(f"fieldkit serving on http://{host}:{port}/ (this computer only)", file=out)
+    out.flush()
+
+    previous = {}
+    if threading.current_thread() is threading.main_thread():
+        for sig in (signal.SIGINT, signal.SIGTERM):
+            previous[sig] = signal.signal(sig, _stop)
+    try:
+        server.run()  # returns after SIGINT/SIGTERM, once the worker threads have finished
+    finally:
+        wasyncore.close_all(server._map)
+        for sig, handler in previous.items():
+            signal.signal(sig, handler)
+        checkpoint_and_close(app.config["DATABASE"])
+        print("fieldkit stopped; database closed.", file=out, flush=True)

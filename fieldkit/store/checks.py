@@ -1,0 +1,161 @@
+"""Checklist acknowledgements: an append-only history per item; the current state is derived from it.
+
+Rule for conflicts (stated in docs/service.md): for each item the acknowledgement with the latest
+``at`` (the time the person ticked it, as sent by their device, compared in UTC) is the current state;
+two with the same ``at`` are ordered by arrival. The history keeps every acknowledgement. The same
+``client_id`` sent again (a phone replaying its offline queue) is the same record: nothing changes.
+"""
+
+from __future__ import annotations
+
+import sqlite3
+from dataclasses import asdict, dataclass
+from datetime import UTC, datetime
+from typing import Any
+
+from fieldkit.errors import InputError
+from fieldkit.store.db import transaction
+from fieldkit.store.deployments import utc_now
+from fieldkit.store.errors import Conflict, NotFound
+
+
+@dataclass(frozen=True)
+class Acknowledgement:
+    seq: int
+    client_id: str
+    deployment_id: str
+    item_id: str
+    done: bool
+    by: str
+    at: str
+    at_utc: str
+    received_at: str
+
+    def to_json(self) -> dict[str, Any]:
+        out = asdict(self)
+        del out["seq"]
+        return out
+
+
+def instant_utc(value: Any, field: str) -> str:
+    """An ISO-8601 date-time with a time zone, as sortable UTC text; refuses anything else."""
+    if not isinstance(value, str) or len(value) > 40:
+        raise InputError(field, f"expected an ISO-8601 date-time string, got {value!r}"[:160])
+    try:
+        moment = datetime.fromisoformat(value)
+    except ValueError:
+        raise InputError(
+            field, f"expected an ISO-8601 date-time such as 2026-12-01T14:05:00Z, got {value!r}"
+        ) from None
+    if moment.tzinfo is None or moment.utcoffset() is None:
+        raise InputError(field, f"expected a time zone (Z or ±hh:mm) in {value!r}")
+    return moment.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%S.%fZ")
+
+
+def _row(row: sqlite3.Row) -> Acknowledgement:
+    return Acknowledgement(
+        seq=row["seq"],
+        client_id=row["client_id"],
+        deployment_id=row["deployment_id"],
+        item_id=row["item_id"],
+        done=bool(row["done"]),
+        by=row["by"],
+        at=row["at"],
+        at_utc=row["at_utc"],
+        received_at=row["received_at"],
+    )
+
+
+def insert(
+    conn: sqlite3.Connection,
+    *,
+    deployment_id: str,
+    item_id: str,
+    done: bool,
+    by: str,
+    at: str,
+    client_id: str,
+    received_at: str | None = None,
+) -> tuple[Acknowledgement, bool]:
+    """Append one acknowledgement inside the caller's transaction; return it and whether it was a replay.
+
+    A replay (same ``client_id``, same content) returns the stored record unchanged. The same
+    ``client_id`` with different content is refused: a device never reuses an id for another tick.
+    """
+    at_utc = instant_utc(at, "at")
+    row = conn.execute(
+        "SELECT * FROM acknowledgements WHERE client_id = ?", (client_id,)
+    ).fetchone()
+    if row is not None:
+        stored = _row(row)
+        same = (stored.deployment_id, stored.item_id, stored.done, stored.by, stored.at_utc) == (
+            deployment_id,
+            item_id,
+            bool(done),
+            by,
+            at_utc,
+        )
+        if not same:
+            raise Conflict(
+                "client_id",
+                f"client_id {client_id!r} was already used for another acknowledgement "
+                f"(item {stored.item_id!r}, done={stored.done}, at {stored.at}); use a new id",
+                value=client_id,
+            )
+        return stored, True
+    cursor = conn.execute(
+        "INSERT INTO acknowledgements (client_id, deployment_id, item_id, done, by, at, at_utc,"
+        " received_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
+        (
+            client_id,
+            deployment_id,
+            item_id,
+            int(bool(done)),
+            by,
+            at,
+            at_utc,
+            received_at or utc_now(),
+        ),
+    )
+    stored = conn.execute(
+        "SELECT * FROM acknowledgements WHERE seq = ?", (cursor.lastrowid,)
+    ).fetchone()
+    return _row(stored), False
+
+
+def acknowledge(conn: sqlite3.Connection, **fields: Any) -> tuple[Acknowledgement, bool]:
+    """:func:`insert` in its own transaction, after checking the deployment exists."""
+    with transaction(conn):
+        deployment_id = fields["deployment_id"]
+        if (
+            conn.execute("SELECT 1 FROM deployments WHERE id = ?", (deployment_id,)).fetchone()
+            is None
+        ):
+            raise NotFound("id", f"no deployment with id {deployment_id!r}", value=deployment_id)
+        return insert(conn, **fields)
+
+
+def history(
+    conn: sqlite3.Connection, deployment_id: str, item_id: str | None = None
+) -> list[Acknowledgement]:
+    """Every acknowledgement of a deployment (or one item), in order of arrival."""
+    if item_id is None:
+        rows = conn.execute(
+            "SELECT * FROM acknowledgements WHERE deployment_id = ? ORDER BY seq", (deployment_id,)
+        )
+    else:
+        rows = conn.execute(
+            "SELECT * FROM acknowledgements WHERE deployment_id = ? AND item_id = ? ORDER BY seq",
+            (deployment_id, item_id),
+        )
+    return [_row(row) for row in rows.fetchall()]
+
+
+def current_state(conn: sqlite3.Connection, deployment_id: str) -> dict[str, Acknowledgement]:
+    """The deciding acknowledgement per item: latest ``at`` (UTC) wins, ties go to the later arrival."""
+    state: dict[str, Acknowledgement] = {}
+    for ack in history(conn, deployment_id):
+        held = state.get(ack.item_id)
+        if held is None or (ack.at_utc, ack.seq) > (held.at_utc, held.seq):
+            state[ack.item_id] = ack
+    return state

@@ -1,0 +1,186 @@
+"""Moving a deployment between laptops: JSON export/import (lossless) and the checklist as CSV."""
+
+from __future__ import annotations
+
+import csv
+import io
+import re
+import sqlite3
+from collections.abc import Iterable, Mapping
+from typing import Any
+
+from fieldkit.errors import InputError, array, check_keys, join, number, require_mapping, text
+from fieldkit.store import checks, deployments
+from fieldkit.store.db import transaction
+from fieldkit.store.errors import Conflict
+
+FORMAT = "fieldkit-deployment"
+FORMAT_VERSION = 1
+MAX_IMPORTED_ACKNOWLEDGEMENTS = 20_000
+_ID = re.compile(r"^[A-Za-z0-9_.:-]{1,64}$")
+
+
+def identifier(value: Any, field: str) -> str:
+    """An id made by a client or the store: 1–64 characters of letters, digits and ``_.:-``."""
+    if not isinstance(value, str) or not _ID.match(value):
+        raise InputError(
+            field,
+            f"expected an id of 1-64 letters, digits, '_', '.', ':' or '-', got {value!r}"[:200],
+        )
+    return value
+
+
+def export_deployment(conn: sqlite3.Connection, deployment_id: str) -> dict[str, Any]:
+    """The deployment with its input, last result and the full acknowledgement history."""
+    found = deployments.get(conn, deployment_id)
+    return {
+        "format": FORMAT,
+        "format_version": FORMAT_VERSION,
+        "deployment": {
+            "id": found.id,
+            "name": found.name,
+            "input": found.plan_input,
+            "result": found.plan_result,
+            "plan_error": found.plan_error,
+            "created_at": found.created_at,
+            "updated_at": found.updated_at,
+            "revision": found.revision,
+        },
+        "acknowledgements": [
+            {
+                "client_id": ack.client_id,
+                "item_id": ack.item_id,
+                "done": ack.done,
+                "by": ack.by,
+                "at": ack.at,
+                "received_at": ack.received_at,
+            }
+            for ack in checks.history(conn, deployment_id)
+        ],
+    }
+
+
+def _optional_mapping(value: Any, field: str) -> dict[str, Any] | None:
+    return None if value is None else dict(require_mapping(value, field))
+
+
+def _validated(doc: Any) -> dict[str, Any]:
+    doc = require_mapping(doc, "")
+    check_keys(doc, "", ("format", "format_version", "deployment", "acknowledgements"))
+    if doc.get("format") != FORMAT:
+        raise InputError("format", f"expected {FORMAT!r}, got {doc.get('format')!r}"[:200])
+    if doc.get("format_version") != FORMAT_VERSION:
+        raise InputError(
+            "format_version", f"expected {FORMAT_VERSION}, got {doc.get('format_version')!r}"[:200]
+        )
+    dep = require_mapping(doc.get("deployment"), "deployment")
+    keys = ("id", "name", "input", "result", "plan_error", "created_at", "updated_at", "revision")
+    check_keys(dep, "deployment", keys)
+    for key in ("id", "name", "input", "created_at", "updated_at", "revision"):
+        if key not in dep:
+            raise InputError(join("deployment", key), "missing; expected by the export format")
+    clean = {
+        "id": identifier(dep["id"], "deployment.id"),
+        "name": text(dep["name"], "deployment.name"),
+        "input": dict(require_mapping(dep["input"], "deployment.input")),
+        "result": _optional_mapping(dep.get("result"), "deployment.result"),
+        "plan_error": _optional_mapping(dep.get("plan_error"), "deployment.plan_error"),
+        "created_at": text(dep["created_at"], "deployment.created_at", max_length=40),
+        "updated_at": text(dep["updated_at"], "deployment.updated_at", max_length=40),
+        "revision": number(dep["revision"], "deployment.revision", minimum=1, integer=True),
+    }
+    checks.instant_utc(clean["created_at"], "deployment.created_at")
+    checks.instant_utc(clean["updated_at"], "deployment.updated_at")
+    acks = array(
+        doc.get("acknowledgements", []), "acknowledgements", max_items=MAX_IMPORTED_ACKNOWLEDGEMENTS
+    )
+    clean_acks = []
+    for i, ack in enumerate(acks):
+        field = join("acknowledgements", i)
+        ack = require_mapping(ack, field)
+        check_keys(ack, field, ("client_id", "item_id", "done", "by", "at", "received_at"))
+        if not isinstance(ack.get("done"), bool):
+            raise InputError(
+                join(field, "done"), f"expected true or false, got {ack.get('done')!r}"[:200]
+            )
+        item = {
+            "client_id": identifier(ack.get("client_id"), join(field, "client_id")),
+            "item_id": identifier(ack.get("item_id"), join(field, "item_id")),
+            "done": ack["done"],
+            "by": text(ack.get("by"), join(field, "by"), max_length=40),
+            "at": ack.get("at"),
+            "received_at": text(ack.get("received_at"), join(field, "received_at"), max_length=40),
+        }
+        checks.instant_utc(item["at"], join(field, "at"))
+        checks.instant_utc(item["received_at"], join(field, "received_at"))
+        clean_acks.append(item)
+    return {"deployment": clean, "acknowledgements": clean_acks}
+
+
+def _comparable(doc: Mapping[str, Any]) -> dict[str, Any]:
+    return {
+        "deployment": dict(doc["deployment"]),
+        "acknowledgements": list(doc["acknowledgements"]),
+    }
+
+
+def import_deployment(conn: sqlite3.Connection, doc: Any) -> tuple[str, bool]:
+    """Store an exported deployment as it was; return its id and whether it was newly created.
+
+    Importing the same export twice is a replay (nothing changes). An export whose id exists here with
+    other content is refused with 409: delete the local copy first, or edit the id in the file.
+    """
+    clean = _validated(doc)
+    dep = clean["deployment"]
+    with transaction(conn):
+        if deployments.find(conn, dep["id"]) is not None:
+            if _comparable(_validated(export_deployment(conn, dep["id"]))) == _comparable(clean):
+                return dep["id"], False
+            raise Conflict(
+                "deployment.id",
+                f"a different deployment with id {dep['id']!r} is already stored",
+                value=dep["id"],
+            )
+        deployments.insert(
+            conn,
+            deployment_id=dep["id"],
+            name=dep["name"],
+            plan_input=dep["input"],
+            plan_result=dep["result"],
+            plan_error=dep["plan_error"],
+            created_at=dep["created_at"],
+            updated_at=dep["updated_at"],
+            revision=dep["revision"],
+        )
+        for i, ack in enumerate(clean["acknowledgements"]):
+            _, replayed = checks.insert(conn, deployment_id=dep["id"], **ack)
+            if replayed:
+                raise Conflict(
+                    join(join("acknowledgements", i), "client_id"),
+                    f"client_id {ack['client_id']!r} appears twice in the file",
+                )
+    return dep["id"], True
+
+
+# A cell starting with one of these is read as a formula by spreadsheet programs (CSV injection).
+_FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
+CSV_COLUMNS = ("item_id", "stage", "required", "text", "done", "by", "at", "acknowledgements")
+
+
+def _cell(value: Any) -> str:
+    if value is None:
+        return ""
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    out = str(value)
+    return "'" + out if out.startswith(_FORMULA_START) else out
+
+
+def checklist_csv(items: Iterable[Mapping[str, Any]]) -> str:
+    """The checklist with its current state, one row per item, for print or a spreadsheet."""
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\r\n")
+    writer.writerow(CSV_COLUMNS)
+    for item in items:
+        writer.writerow([_cell(item.get(column)) for column in CSV_COLUMNS])
+    return buffer.getvalue()
