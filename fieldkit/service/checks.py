@@ -10,7 +10,7 @@ from flask import Blueprint, Response, jsonify
 from fieldkit.errors import InputError, check_keys, text
 from fieldkit.service.db import get_db
 from fieldkit.service.http import json_body
-from fieldkit.service.planning import CONFLICT_RULE, items_with_state, readiness
+from fieldkit.service.planning import CONFLICT_RULE, checklist_state
 from fieldkit.store import checks, deployments, transaction, transfer
 from fieldkit.store.errors import NotFound
 
@@ -45,28 +45,28 @@ def acknowledgement_body(body: dict[str, Any]) -> dict[str, Any]:
     }
 
 
-def _state(conn, deployment_id: str) -> tuple[deployments.Deployment, list[dict]]:
+def _state(conn, deployment_id: str) -> tuple[deployments.Deployment, list[dict], dict]:
     found = deployments.get(conn, deployment_id)
-    return found, items_with_state(conn, deployment_id, found.plan_result)
+    return found, *checklist_state(conn, deployment_id, found.plan_result)
 
 
 @bp.get("/checks")
 def list_checks(deployment_id: str):
-    found, items = _state(get_db(), deployment_id)
+    found, items, ready = _state(get_db(), deployment_id)
     return jsonify(
         {
             "deployment_id": found.id,
             "revision": found.revision,
             "rule": CONFLICT_RULE,
             "items": items,
-            **readiness(found.plan_result, items),
+            **ready,
         }
     )
 
 
 @bp.get("/checks.csv")
 def checks_csv(deployment_id: str):
-    found, items = _state(get_db(), deployment_id)
+    found, items, _ready = _state(get_db(), deployment_id)
     response = Response(transfer.checklist_csv(items), mimetype="text/csv")
     response.headers["Content-Disposition"] = (
         f'attachment; filename="fieldkit-checks-{found.id}.csv"'
@@ -84,7 +84,7 @@ def _item(items: list[dict], item_id: str) -> dict:
 @bp.get("/checks/<item_id>")
 def read_check(deployment_id: str, item_id: str):
     conn = get_db()
-    _found, items = _state(conn, deployment_id)
+    _found, items, _ready = _state(conn, deployment_id)
     item = _item(items, item_id)
     history = [ack.to_json() for ack in checks.history(conn, deployment_id, item_id)]
     return jsonify({"item": item, "history": history, "rule": CONFLICT_RULE})
@@ -96,14 +96,14 @@ def acknowledge(deployment_id: str, item_id: str):
     conn = get_db()
     with transaction(conn):
         found = deployments.get(conn, deployment_id)
-        _item(items_with_state(conn, deployment_id, found.plan_result), item_id)
+        _item(checklist_state(conn, deployment_id, found.plan_result)[0], item_id)
         ack, replayed = checks.insert(conn, deployment_id=deployment_id, item_id=item_id, **fields)
-    items = items_with_state(conn, deployment_id, found.plan_result)
+    items, ready = checklist_state(conn, deployment_id, found.plan_result)
     return jsonify(
         {
             "acknowledgement": ack.to_json(),
             "replayed": replayed,
             "item": _item(items, item_id),
-            **readiness(found.plan_result, items),
+            **ready,
         }
     )

@@ -9,7 +9,7 @@ from flask import Blueprint, jsonify
 from fieldkit.errors import InputError, text
 from fieldkit.service.db import get_db
 from fieldkit.service.http import json_body
-from fieldkit.service.planning import items_with_state, readiness, run_plan
+from fieldkit.service.planning import checklist_state, run_plan
 from fieldkit.store import deployments, transaction, transfer
 from fieldkit.store.errors import Conflict
 
@@ -32,7 +32,7 @@ def split_body(body: dict[str, Any]) -> tuple[str, str | None, dict[str, Any]]:
 
 
 def describe(conn, found: deployments.Deployment) -> dict[str, Any]:
-    items = items_with_state(conn, found.id, found.plan_result)
+    _items, ready = checklist_state(conn, found.id, found.plan_result)
     return {
         "id": found.id,
         "name": found.name,
@@ -42,7 +42,7 @@ def describe(conn, found: deployments.Deployment) -> dict[str, Any]:
         "created_at": found.created_at,
         "updated_at": found.updated_at,
         "revision": found.revision,
-        **readiness(found.plan_result, items),
+        **ready,
     }
 
 
@@ -79,8 +79,8 @@ def list_deployments():
     conn = get_db()
     out = []
     for found in deployments.list_all(conn):
-        items = items_with_state(conn, found.id, found.plan_result)
-        out.append({**found.summary(), **readiness(found.plan_result, items)})
+        _items, ready = checklist_state(conn, found.id, found.plan_result)
+        out.append({**found.summary(), **ready})
     return jsonify({"deployments": out})
 
 

@@ -55,36 +55,56 @@ def raise_ok(result: Mapping[str, Any] | None) -> bool | None:
     return value if isinstance(value, bool) else None
 
 
-def items_with_state(conn: sqlite3.Connection, deployment_id: str, result: Any) -> list[dict]:
-    """Each checklist item with its current state (done, by, at) and how many acknowledgements it has."""
+def checklist_state(
+    conn: sqlite3.Connection, deployment_id: str, result: Any
+) -> tuple[list[dict], dict[str, Any]]:
+    """Each checklist item with its current state, and the deployment's readiness to raise.
+
+    Items carry ``done``, ``by``, ``at`` (from the deciding acknowledgement) and ``acknowledgements``
+    (how many the history holds for the item).
+    """
+    history = checks.history(conn, deployment_id)
     state = checks.current_state(conn, deployment_id)
     counts: dict[str, int] = {}
-    for ack in checks.history(conn, deployment_id):
+    for ack in history:
         counts[ack.item_id] = counts.get(ack.item_id, 0) + 1
-    out = []
+    items = []
     for item in checklist(result):
         held = state.get(item["id"])
-        out.append(
+        items.append(
             {
                 **item,
-                "required": bool(item.get("required", False)),
+                # A missing flag counts as required: the safe reading of an incomplete item.
+                "required": bool(item.get("required", True)),
                 "done": bool(held.done) if held else False,
                 "by": held.by if held else None,
                 "at": held.at if held else None,
                 "acknowledgements": counts.get(item["id"], 0),
             }
         )
-    return out
+    return items, readiness(result, items, history)
 
 
-def readiness(result: Any, items: list[dict]) -> dict[str, Any]:
-    """Ready to raise: a plan exists, its safety block does not forbid raising, and every required
-    pre-raise item is acknowledged done. Without a plan result nothing is ready."""
-    missing = [
+def _checks_done(items: list[dict], history: list[checks.Acknowledgement]) -> bool:
+    """The safety layer's rule when it is in this build, else the same rule computed here."""
+    try:
+        rule = layer_function("fieldkit.safety", "ready_to_raise")
+    except LayerUnavailable:
+        return not _missing(items)
+    return bool(rule(items, [ack.to_json() for ack in history]))
+
+
+def _missing(items: list[dict]) -> list[str]:
+    return [
         item["id"]
         for item in items
         if item.get("stage") == PRE_RAISE and item["required"] and not item["done"]
     ]
+
+
+def readiness(result: Any, items: list[dict], history: list[checks.Acknowledgement]) -> dict:
+    """Ready to raise: a plan exists, its safety block does not forbid raising (``raise_ok`` is not
+    false), and every required pre-raise item is acknowledged done. Without a plan nothing is ready."""
     ok = raise_ok(result)
-    ready = chosen_option(result) is not None and ok is not False and not missing
-    return {"ready_to_raise": ready, "raise_ok": ok, "missing_checks": missing}
+    ready = chosen_option(result) is not None and ok is not False and _checks_done(items, history)
+    return {"ready_to_raise": ready, "raise_ok": ok, "missing_checks": _missing(items)}

@@ -108,7 +108,13 @@ def _guard() -> Response | None:
             response = redirect(target, code=303)
             set_key_cookie(response, ring.key or "")
             return response
-    if is_api and request.method in WRITE_METHODS and request.mimetype != "application/json":
+    routed = request.routing_exception is None  # unknown routes answer 404/405, not 415
+    if (
+        is_api
+        and routed
+        and request.method in WRITE_METHODS
+        and request.mimetype != "application/json"
+    ):
         raise UnsupportedMedia()
     return None
 

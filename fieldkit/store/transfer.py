@@ -182,5 +182,6 @@ def checklist_csv(items: Iterable[Mapping[str, Any]]) -> str:
     writer = csv.writer(buffer, lineterminator="\r\n")
     writer.writerow(CSV_COLUMNS)
     for item in items:
-        writer.writerow([_cell(item.get(column)) for column in CSV_COLUMNS])
+        row = {**item, "item_id": item.get("id")}
+        writer.writerow([_cell(row.get(column)) for column in CSV_COLUMNS])
     return buffer.getvalue()

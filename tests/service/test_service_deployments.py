@@ -1,0 +1,326 @@
+"""Deployments, checklist acknowledgements, export/import and kit, through the Flask test client."""
+
+from __future__ import annotations
+
+import csv
+import importlib.util
+import io
+import uuid
+
+import pytest
+from conftest import CHECKLIST, ack, export_doc
+
+PLAN_LAYER = importlib.util.find_spec("fieldkit.plan") is not None
+
+
+def create(client, body):
+    return client.post("/api/deployments", json=body)
+
+
+def test_create_read_list_replace_delete(client, demo_input):
+    response = create(client, demo_input)
+    assert response.status_code == 201, response.json
+    new_id = response.json["id"]
+    assert response.headers["Location"] == f"/api/deployments/{new_id}"
+
+    got = client.get(f"/api/deployments/{new_id}").json
+    assert got["name"] == demo_input["name"]
+    assert got["input"] == {k: v for k, v in demo_input.items() if k != "name"}
+    assert got["revision"] == 1
+    if PLAN_LAYER:
+        assert got["result"]["options"], "the plan layer is present: the deployment must be planned"
+        assert got["plan_error"] is None
+    else:
+        assert got["result"] is None
+        assert got["plan_error"]["error"] == "layer not available"
+    assert got["ready_to_raise"] is False  # nothing is acknowledged yet
+
+    listed = client.get("/api/deployments").json["deployments"]
+    assert [d["id"] for d in listed] == [new_id]
+    assert listed[0]["site_name"] == demo_input["site"]["name"]
+
+    edited = {**demo_input, "name": "Larch Basin, second try", "form": "flat"}
+    replaced = client.put(f"/api/deployments/{new_id}", json=edited)
+    assert replaced.status_code == 200, replaced.json
+    assert replaced.json["revision"] == 2
+    assert replaced.json["name"] == "Larch Basin, second try"
+    assert replaced.json["input"]["form"] == "flat"
+
+    assert client.delete(f"/api/deployments/{new_id}").status_code == 200
+    assert client.get(f"/api/deployments/{new_id}").status_code == 404
+    assert client.get("/api/deployments").json["deployments"] == []
+
+
+@pytest.mark.skipif(not PLAN_LAYER, reason="fieldkit.plan has not landed")
+def test_created_deployment_has_the_plan_layers_checklist(client, demo_input):
+    new_id = create(client, demo_input).json["id"]
+    got = client.get(f"/api/deployments/{new_id}").json
+    items = client.get(f"/api/deployments/{new_id}/checks").json["items"]
+    expected = got["result"]["options"][0]["safety"]["checklist"]
+    assert [i["id"] for i in items] == [i["id"] for i in expected]
+    assert all(i["done"] is False for i in items)
+
+
+@pytest.mark.parametrize(
+    ("body", "field"),
+    [
+        ({"site": {}}, "name"),
+        ({"name": "", "site": {}}, "name"),
+        ({"name": "   ", "site": {}}, "name"),
+        ({"name": 7, "site": {}}, "name"),
+        ({"name": "x" * 201, "site": {}}, "name"),
+        ({"name": "ok", "client_id": "has spaces", "site": {}}, "client_id"),
+        ({"name": "ok", "client_id": 12, "site": {}}, "client_id"),
+    ],
+)
+def test_create_refuses_bad_fields(client, body, field):
+    response = create(client, body)
+    assert response.status_code == 422
+    assert response.json["field"] == field
+    assert client.get("/api/deployments").json["deployments"] == []
+
+
+@pytest.mark.skipif(not PLAN_LAYER, reason="fieldkit.plan has not landed")
+def test_create_with_bad_plan_input_is_422_and_not_stored(client, demo_input):
+    bad = {**demo_input, "channels_mhz": [-3.0]}
+    response = create(client, bad)
+    assert response.status_code == 422
+    assert response.json["field"].startswith("channels_mhz")
+    assert client.get("/api/deployments").json["deployments"] == []
+
+
+def test_create_with_client_id_is_idempotent(client):
+    body = {"name": "Offline-made", "client_id": str(uuid.uuid4()), "site": {"ground": "poor"}}
+    first = create(client, body)
+    assert first.status_code == 201, first.json
+    again = create(client, body)
+    assert again.status_code == 200
+    assert again.json == {"id": first.json["id"], "replayed": True}
+    assert len(client.get("/api/deployments").json["deployments"]) == 1
+    clash = create(client, {**body, "name": "Another"})
+    assert clash.status_code == 409
+    assert clash.json["field"] == "client_id"
+
+
+def test_checks_state_replay_and_conflict_rule(client, planned):
+    base = f"/api/deployments/{planned}/checks"
+    items = client.get(base).json
+    assert [i["id"] for i in items["items"]] == [i["id"] for i in CHECKLIST]
+    assert items["ready_to_raise"] is False
+    assert items["missing_checks"] == ["pre-power-line-0", "pre-weather"]
+
+    first = ack(done=True, by="AB", at="2026-12-01T14:05:00Z")
+    response = client.put(f"{base}/pre-power-line-0", json=first)
+    assert response.status_code == 200, response.json
+    assert response.json["replayed"] is False
+    assert response.json["item"]["done"] is True
+
+    # The phone replays its queue: same client_id, nothing changes, still 200.
+    replay = client.put(f"{base}/pre-power-line-0", json=first)
+    assert replay.status_code == 200
+    assert replay.json["replayed"] is True
+    history = client.get(f"{base}/pre-power-line-0").json["history"]
+    assert len(history) == 1
+
+    # An older un-tick arriving late does not override the newer tick: the later 'at' wins ...
+    late = ack(done=False, by="CD", at="2026-12-01T15:00:00+02:00")  # 13:00 UTC, before 14:05 UTC
+    assert client.put(f"{base}/pre-power-line-0", json=late).json["item"]["done"] is True
+    # ... and the history keeps both.
+    history = client.get(f"{base}/pre-power-line-0").json["history"]
+    assert [h["by"] for h in history] == ["AB", "CD"]
+
+    # A newer un-tick does change it.
+    newer = ack(done=False, by="EF", at="2026-12-01T14:30:00Z")
+    assert client.put(f"{base}/pre-power-line-0", json=newer).json["item"]["done"] is False
+
+    # The same client_id with other content is refused.
+    clash = client.put(f"{base}/pre-weather", json={**first, "by": "ZZ"})
+    assert clash.status_code == 409
+    assert clash.json["field"] == "client_id"
+
+
+def test_ready_to_raise_needs_every_required_pre_raise_item(client, planned):
+    base = f"/api/deployments/{planned}/checks"
+    client.put(f"{base}/pre-power-line-0", json=ack())
+    assert client.get(base).json["ready_to_raise"] is False
+    final = client.put(f"{base}/pre-weather", json=ack())
+    # pre-gloves is optional and after-swr is not a pre-raise item: ready now.
+    assert final.json["ready_to_raise"] is True
+    assert final.json["missing_checks"] == []
+    assert client.get(f"/api/deployments/{planned}").json["ready_to_raise"] is True
+
+
+def test_raise_not_ok_blocks_ready_even_when_all_ticked(client):
+    new_id = client.post("/api/deployments/import", json=export_doc(raise_ok=False)).json["id"]
+    base = f"/api/deployments/{new_id}/checks"
+    for item in CHECKLIST:
+        client.put(f"{base}/{item['id']}", json=ack())
+    state = client.get(base).json
+    assert state["raise_ok"] is False
+    assert state["ready_to_raise"] is False
+
+
+def test_unknown_item_or_deployment_is_404(client, planned):
+    assert (
+        client.put(f"/api/deployments/{planned}/checks/nope", json=ack()).json["field"] == "item_id"
+    )
+    response = client.put("/api/deployments/missing/checks/pre-weather", json=ack())
+    assert response.status_code == 404
+    assert client.get(f"/api/deployments/{planned}/checks/nope").status_code == 404
+
+
+@pytest.mark.parametrize(
+    ("change", "field"),
+    [
+        ({"done": "yes"}, "done"),
+        ({"done": 1}, "done"),
+        ({"by": ""}, "by"),
+        ({"by": "x" * 41}, "by"),
+        ({"by": None}, "by"),
+        ({"at": "yesterday"}, "at"),
+        ({"at": "2026-12-01T14:05:00"}, "at"),  # no time zone
+        ({"at": 1733061900}, "at"),
+        ({"client_id": "not-a-uuid"}, "client_id"),
+        ({"client_id": None}, "client_id"),
+        ({"extra": 1}, "extra"),
+    ],
+)
+def test_acknowledgement_validation(client, planned, change, field):
+    body = {**ack(), **change}
+    response = client.put(f"/api/deployments/{planned}/checks/pre-weather", json=body)
+    assert response.status_code == 422, response.json
+    assert response.json["field"] == field
+
+
+@pytest.mark.parametrize("missing", ["done", "by", "at", "client_id"])
+def test_acknowledgement_fields_are_required(client, planned, missing):
+    body = ack()
+    del body[missing]
+    response = client.put(f"/api/deployments/{planned}/checks/pre-weather", json=body)
+    assert response.status_code == 422
+    assert response.json["field"] == missing
+
+
+def test_checklist_csv(client, planned):
+    client.put(f"/api/deployments/{planned}/checks/pre-weather", json=ack(by="=cmd"))
+    response = client.get(f"/api/deployments/{planned}/checks.csv")
+    assert response.status_code == 200
+    assert response.mimetype == "text/csv"
+    rows = list(csv.DictReader(io.StringIO(response.get_data(as_text=True))))
+    assert [r["item_id"] for r in rows] == [i["id"] for i in CHECKLIST]
+    weather = rows[1]
+    assert (weather["done"], weather["by"], weather["acknowledgements"]) == ("yes", "'=cmd", "1")
+    # Text that a spreadsheet would run as a formula is defused (OWASP "CSV Injection").
+    assert rows[2]["text"].startswith("'=")
+
+
+def test_export_import_round_trip_loses_nothing(client, planned, tmp_path):
+    from fieldkit.service import create_app
+
+    base = f"/api/deployments/{planned}/checks"
+    client.put(f"{base}/pre-weather", json=ack(by="AB", at="2026-12-01T14:05:00Z"))
+    client.put(f"{base}/pre-weather", json=ack(done=False, by="CD", at="2026-12-01T14:06:00+01:00"))
+    client.put(f"{base}/pre-power-line-0", json=ack(by="ÉÑ 🙂"))
+    exported = client.get(f"/api/deployments/{planned}/export")
+    assert exported.status_code == 200
+    assert "attachment" in exported.headers["Content-Disposition"]
+    doc = exported.json
+    assert len(doc["acknowledgements"]) == 3
+
+    other = create_app({"DATA_DIR": tmp_path / "other", "DEMO": False}).test_client()
+    imported = other.post("/api/deployments/import", json=doc)
+    assert imported.status_code == 201, imported.json
+    assert imported.json["id"] == planned
+    assert other.get(f"/api/deployments/{planned}/export").json == doc
+    assert other.get(base).json["items"] == client.get(base).json["items"]
+
+    # Importing the same file again is a replay; a different file with the same id is a conflict.
+    assert other.post("/api/deployments/import", json=doc).status_code == 200
+    changed = {**doc, "deployment": {**doc["deployment"], "name": "Changed"}}
+    assert other.post("/api/deployments/import", json=changed).status_code == 409
+
+
+@pytest.mark.parametrize(
+    ("change", "field"),
+    [
+        ({"format": "something-else"}, "format"),
+        ({"format_version": 2}, "format_version"),
+        ({"deployment": "x"}, "deployment"),
+        ({"surprise": 1}, "surprise"),
+        ({"acknowledgements": {}}, "acknowledgements"),
+        (
+            {"acknowledgements": [{"client_id": "a", "item_id": "b", "done": "no"}]},
+            "acknowledgements[0].done",
+        ),
+    ],
+)
+def test_import_validation(client, change, field):
+    response = client.post("/api/deployments/import", json={**export_doc(), **change})
+    assert response.status_code == 422, response.json
+    assert response.json["field"] == field
+
+
+def test_import_refuses_bad_deployment_fields(client):
+    doc = export_doc(deployment_id="../../etc")
+    assert client.post("/api/deployments/import", json=doc).json["field"] == "deployment.id"
+    doc = export_doc()
+    doc["deployment"]["created_at"] = "not a time"
+    assert client.post("/api/deployments/import", json=doc).json["field"] == "deployment.created_at"
+
+
+def test_import_refuses_duplicate_client_ids_in_one_file(client):
+    one = {**ack(), "item_id": "pre-weather", "received_at": "2026-12-01T14:05:01Z"}
+    response = client.post("/api/deployments/import", json=export_doc(acks=[one, one]))
+    assert response.status_code == 409
+    assert client.get("/api/deployments").json["deployments"] == []  # the transaction rolled back
+
+
+KIT = {
+    "wire": {"diameter_mm": 1.6, "conductor": "copper", "spool_m": 70},
+    "coax": {"class": "rg-58", "length_m": 25},
+    "masts": [{"id": "M1", "height_m": 9.0, "top_load_kg": 2.0, "guys": 3}],
+    "rope": {"length_m": 60},
+    "tension_n": 60,
+}
+
+
+def test_kit_round_trip(client):
+    assert client.get("/api/kit").json == {"kit": {}, "updated_at": None}
+    saved = client.put("/api/kit", json=KIT)
+    assert saved.status_code == 200
+    got = client.get("/api/kit").json
+    assert got["kit"] == KIT
+    assert got["updated_at"] == saved.json["updated_at"]
+
+
+@pytest.mark.parametrize(
+    ("body", "field"),
+    [
+        ({"wires": []}, "wires"),
+        ({"wire": "copper"}, "wire"),
+        ({"wire": {"diameter_mm": -1}}, "wire.diameter_mm"),
+        ({"wire": {"diameter_mm": "1.6"}}, "wire.diameter_mm"),
+        ({"masts": [{"id": "M1"}]}, "masts[0].height_m"),
+        ({"masts": [{"id": "M1", "height_m": 900}]}, "masts[0].height_m"),
+        ({"masts": [{"id": "M1", "height_m": 9, "guys": 2.5}]}, "masts[0].guys"),
+        ({"masts": "M1"}, "masts"),
+        ({"masts": [{"height_m": 9}] * 101}, "masts"),
+        ({"tension_n": True}, "tension_n"),
+        ({"note": "x" * 501}, "note"),
+    ],
+)
+def test_kit_validation(client, body, field):
+    response = client.put("/api/kit", json=body)
+    assert response.status_code == 422, response.json
+    assert response.json["field"] == field
+
+
+def test_demo_loads_once_into_an_empty_database(tmp_path, demo_input):
+    from fieldkit.service import create_app
+
+    client = create_app({"DATA_DIR": tmp_path / "d"}).test_client()
+    listed = client.get("/api/deployments").json["deployments"]
+    assert [d["name"] for d in listed] == [demo_input["name"]]
+    client.delete(f"/api/deployments/{listed[0]['id']}")
+    again = create_app({"DATA_DIR": tmp_path / "d"}).test_client()  # a restart
+    assert again.get("/api/deployments").json["deployments"] == []
