@@ -1,0 +1,394 @@
+"""RF keep-out zones from the near field of the hung antenna.
+
+The fields come from one engine solve of the option's hung wire at the radio's peak-envelope power,
+ground included (:meth:`fieldkit.antenna.Solution.near_field`). They are time-averaged with the mode's
+duty factor and the transmit fraction (:mod:`fieldkit.safety.duty`) and compared with the chosen limit
+set (:mod:`fieldkit.safety.limits`). For fields below 30 MHz in the near field, E and H are both checked;
+the exposure ratio of a point is
+
+    ratio = a · max(|E|² / E_lim², |H|² / H_lim²),     a = duty factor × transmit fraction,
+
+so ratio ≥ 1 means over the limit (ratio scales with power, which gives the power at which no zone is
+left). A person is taken as a column 1.8 m tall: the worst of the fields at 0.5, 1.0 and 1.8 m above
+ground decides (no spatial averaging over the body, which the standards allow — conservative).
+
+Sampling: rays in the ground plane leave the wire's plan view — at right angles on both sides from
+stations along the wire, and in a fan around each end — with samples every 0.25 m; on each ray the last
+sample over the limit and the next one are refined with 8 more samples and log-linear interpolation. The
+ray ends walk around the wire in order, so they form the outline polygon directly. All points go to the
+engine in one vectorised call per pass (three passes: rays, refinement, vertical lines at the ends).
+Points closer than 0.1 m to the wire are "touching": thin-wire fields mean nothing there, and they count
+as inside the zone.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+
+from fieldkit.safety.geometry import distance_to_polyline
+
+FieldFn = Callable[[np.ndarray], tuple[np.ndarray, np.ndarray]]
+
+#: Heights above ground at which a standing person is checked [m] (feet/knees, trunk, head).
+PERSON_HEIGHTS_M = (0.5, 1.0, 1.8)
+#: The person's height [m].
+PERSON_HEIGHT_M = 1.8
+#: Closer than this to the wire a point counts as touching it [m].
+CONTACT_M = 0.1
+#: Ray sample spacing [m], first reach of the rays [m] and the furthest they grow to [m].
+RAY_STEP_M = 0.25
+RAY_START_M = 6.0
+RAY_MAX_M = 96.0
+#: Refinement samples between the last coarse sample over the limit and the next one.
+REFINE = 8
+#: Vertical lines above and below each wire end: spacing and first reach [m].
+END_STEP_M = 0.1
+END_START_M = 8.0
+#: Stations along the wire: at most this spacing [m] and at most this many stations.
+STATION_STEP_M = 1.0
+MAX_STATIONS = 48
+#: Rays in the fan around each wire end (between the two side rays).
+FAN_RAYS = 7
+
+
+def exposure_ratio(
+    e: np.ndarray, h: np.ndarray, *, e_limit: float, h_limit: float, averaging_factor: float
+) -> np.ndarray:
+    """Time-averaged exposure as a fraction of the limit, per point.
+
+    Parameters
+    ----------
+    e, h : complex ndarray (n, 3)
+        RMS phasors of E [V/m] and H [A/m] at peak-envelope power.
+    e_limit, h_limit : float
+        Limits [V/m], [A/m] (RMS, time-averaged).
+    averaging_factor : float
+        Duty factor × transmit fraction.
+    """
+    e2 = np.sum(np.abs(e) ** 2, axis=-1)
+    h2 = np.sum(np.abs(h) ** 2, axis=-1)
+    return averaging_factor * np.maximum(e2 / e_limit**2, h2 / h_limit**2)
+
+
+@dataclass(frozen=True)
+class Landmark:
+    name: str
+    point_m: np.ndarray  # (3,)
+
+
+@dataclass(frozen=True)
+class KeepOut:
+    keep_out_m: float
+    outline_m: list[list[float]]
+    zones_m: list[list[list[float]]]
+    by_landmark: list[tuple[str, np.ndarray, float]]
+    by_height: list[tuple[float, float]]  # (height_m, keep_out_m) on the coarse samples
+    min_end_height_m: float
+    end_separation_m: list[tuple[str, float]]
+    max_ratio: float
+    max_ratio_point_m: np.ndarray
+    touching: bool
+    coax_drop: list[tuple[float, float]]  # (height_m, ratio)
+    beyond_reach: bool  # the zone reached the furthest ray sample
+    n_points: int
+
+
+def _rays(plan: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Ray origins and unit directions walking once around the plan polyline."""
+    seg = np.diff(plan, axis=0)
+    seg_len = np.linalg.norm(seg, axis=1)
+    keep = seg_len > 1e-9
+    length = float(seg_len.sum())
+    if length < 0.5:
+        # vertical or tiny wire: a full circle of rays from its centre
+        phi = np.linspace(0, 2 * np.pi, 4 * (FAN_RAYS + 1), endpoint=False)
+        dirs = np.column_stack([np.cos(phi), np.sin(phi)])
+        return np.repeat(plan.mean(axis=0)[None], len(phi), axis=0), dirs
+    seg, seg_len = seg[keep], seg_len[keep]
+    starts = plan[:-1][keep]
+    cum = np.concatenate([[0.0], np.cumsum(seg_len)])
+    n = int(min(MAX_STATIONS, max(2, math.ceil(length / STATION_STEP_M) + 1)))
+    s = np.linspace(0.0, length, n)
+    k = np.clip(np.searchsorted(cum, s, side="right") - 1, 0, len(seg) - 1)
+    tang = seg[k] / seg_len[k, None]
+    origin = starts[k] + ((s - cum[k]) / seg_len[k])[:, None] * seg[k]
+    normal = np.column_stack([-tang[:, 1], tang[:, 0]])
+    phi = np.linspace(0, np.pi, FAN_RAYS + 2)[1:-1]
+
+    def fan(a: np.ndarray, u: np.ndarray) -> np.ndarray:
+        return np.cos(phi)[:, None] * a + np.sin(phi)[:, None] * u
+
+    o = [
+        origin,
+        np.repeat(origin[-1:], FAN_RAYS, 0),
+        origin[::-1],
+        np.repeat(origin[:1], FAN_RAYS, 0),
+    ]
+    d = [normal, fan(normal[-1], tang[-1]), -normal[::-1], fan(-normal[0], -tang[0])]
+    return np.vstack(o), np.vstack(d)
+
+
+class _Evaluator:
+    """Exposure ratio at points, with touching points marked, counting the points sent to the engine."""
+
+    def __init__(self, fields: FieldFn, wire_m: np.ndarray, *, e_limit, h_limit, averaging_factor):
+        self.fields, self.wire = fields, wire_m
+        self.kw = {"e_limit": e_limit, "h_limit": h_limit, "averaging_factor": averaging_factor}
+        self.n_points = 0
+
+    def __call__(self, pts: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """ratio (inf where touching) and the touching mask."""
+        flat = pts.reshape(-1, 3)
+        touch = distance_to_polyline(flat, self.wire) < CONTACT_M
+        ratio = np.full(len(flat), np.inf)
+        if (~touch).any():
+            e, h = self.fields(flat[~touch])
+            self.n_points += int((~touch).sum())
+            ratio[~touch] = exposure_ratio(np.asarray(e), np.asarray(h), **self.kw)
+        return ratio.reshape(pts.shape[:-1]), touch.reshape(pts.shape[:-1])
+
+
+def _last_over(r: np.ndarray) -> np.ndarray:
+    """Index of the last sample ≥ 1 along the last axis, −1 where none."""
+    over = r >= 1.0
+    idx = r.shape[-1] - 1 - np.argmax(over[..., ::-1], axis=-1)
+    return np.where(over.any(axis=-1), idx, -1)
+
+
+def _crossing(d0: np.ndarray, d1: np.ndarray, r0: np.ndarray, r1: np.ndarray) -> np.ndarray:
+    """Distance where the ratio falls through 1 between (d0, r0 ≥ 1) and (d1, r1 < 1), log-linear."""
+    r0 = np.where(np.isfinite(r0), r0, 1e6)
+    l0, l1 = np.log(np.maximum(r0, 1.0)), np.log(np.maximum(r1, 1e-30))
+    t = np.where(l0 > l1, l0 / np.where(l0 > l1, l0 - l1, 1.0), 0.0)
+    return d0 + np.clip(t, 0.0, 1.0) * (d1 - d0)
+
+
+def keep_out(
+    fields: FieldFn,
+    *,
+    wire_m: np.ndarray,
+    feed_m: np.ndarray,
+    e_limit: float,
+    h_limit: float,
+    averaging_factor: float,
+    landmarks: list[Landmark],
+) -> KeepOut:
+    """Keep-out zone of a wire antenna for a person standing on the ground.
+
+    Parameters
+    ----------
+    fields : callable
+        points (n, 3) [m] → (E, H) complex (n, 3) RMS [V/m], [A/m] at peak-envelope power.
+    wire_m : ndarray (n, 3)
+        The hung wire polyline [m].
+    feed_m : ndarray (3,)
+        Feedpoint [m] (the coax drops vertically from it).
+    e_limit, h_limit : float
+        Limits [V/m], [A/m].
+    averaging_factor : float
+        Duty factor × transmit fraction.
+    landmarks : list of Landmark
+        Wire ends and feedpoint; each zone point is counted against the nearest one.
+
+    Returns
+    -------
+    KeepOut
+    """
+    wire = np.asarray(wire_m, dtype=float)
+    ev = _Evaluator(
+        fields, wire, e_limit=e_limit, h_limit=h_limit, averaging_factor=averaging_factor
+    )
+    plan = wire[:, :2]
+    origins, dirs = _rays(plan)
+    heights = np.array(PERSON_HEIGHTS_M)
+
+    def ray_points(dist: np.ndarray) -> np.ndarray:  # dist (R, K) → (R, K, H, 3)
+        xy = origins[:, None, :] + dist[..., None] * dirs[:, None, :]
+        xy = np.broadcast_to(xy[:, :, None, :], (*dist.shape, len(heights), 2))
+        z = np.broadcast_to(heights, (*dist.shape, len(heights)))
+        return np.concatenate([xy, z[..., None]], axis=-1)
+
+    reach = RAY_START_M
+    while True:
+        dist = np.broadcast_to(
+            np.arange(0.0, reach + 1e-9, RAY_STEP_M),
+            (len(origins), int(round(reach / RAY_STEP_M)) + 1),
+        )
+        ratio_h, touch_h = ev(ray_points(dist))
+        ratio = ratio_h.max(axis=2)
+        last = _last_over(ratio)
+        beyond = bool((last == dist.shape[1] - 1).any())
+        if not beyond or reach >= RAY_MAX_M:
+            break
+        reach = min(RAY_MAX_M, 2 * reach)
+
+    # refinement between the last coarse sample over the limit and the next one
+    boundary = np.zeros(len(origins))
+    inside = last >= 0
+    refine = inside & (last < dist.shape[1] - 1)
+    boundary[inside & ~refine] = reach
+    if refine.any():
+        rows = np.nonzero(refine)[0]
+        d0 = dist[rows, last[rows]]
+        frac = np.arange(REFINE + 2) / (REFINE + 1)  # includes both coarse samples
+        fine_d = d0[:, None] + frac[None, :] * RAY_STEP_M
+        inner = fine_d[:, 1:-1]
+        pts = origins[rows, None, :] + inner[..., None] * dirs[rows, None, :]
+        pts3 = np.concatenate(
+            [
+                np.broadcast_to(pts[:, :, None, :], (*inner.shape, len(heights), 2)),
+                np.broadcast_to(heights, (*inner.shape, len(heights)))[..., None],
+            ],
+            axis=-1,
+        )
+        r_inner, _ = ev(pts3)
+        r_fine = np.concatenate(
+            [
+                ratio[rows, last[rows]][:, None],
+                r_inner.max(axis=2),
+                ratio[rows, last[rows] + 1][:, None],
+            ],
+            axis=1,
+        )
+        j = _last_over(r_fine)
+        jj = np.arange(len(rows))
+        boundary[rows] = _crossing(
+            fine_d[jj, j], fine_d[jj, j + 1], r_fine[jj, j], r_fine[jj, j + 1]
+        )
+
+    edge = origins + boundary[:, None] * dirs
+    zone_pts = edge[inside]
+    keep = float(distance_to_polyline(zone_pts, plan).max()) if inside.any() else 0.0
+    outline, zones = _polygons(origins, edge, inside)
+
+    marks = np.array([lm.point_m[:2] for lm in landmarks]) if landmarks else np.zeros((0, 2))
+    by_landmark = []
+    if len(marks):
+        dm = (
+            np.linalg.norm(zone_pts[:, None, :] - marks[None], axis=2)
+            if len(zone_pts)
+            else np.zeros((0, len(marks)))
+        )
+        owner = dm.argmin(axis=1) if len(zone_pts) else np.zeros(0, int)
+        for i, lm in enumerate(landmarks):
+            mine = dm[owner == i, i]
+            by_landmark.append((lm.name, lm.point_m, float(mine.max()) if len(mine) else 0.0))
+
+    by_height = []
+    for ih, hz in enumerate(heights):
+        r = ratio_h[:, :, ih]
+        li = _last_over(r)
+        ok = li >= 0
+        b = np.zeros(len(origins))
+        nxt = np.minimum(li + 1, r.shape[1] - 1)
+        rr = np.arange(len(origins))
+        b[ok] = _crossing(dist[rr, li][ok], dist[rr, nxt][ok], r[rr, li][ok], r[rr, nxt][ok])
+        pts = (origins + b[:, None] * dirs)[ok]
+        by_height.append(
+            (float(hz), float(distance_to_polyline(pts, plan).max()) if ok.any() else 0.0)
+        )
+
+    # vertical lines below and above each wire end: how far from the end the limit is met
+    end_sep = []
+    ends = [lm for lm in landmarks if lm.name != "feedpoint"] or [
+        Landmark("end", wire[0]),
+        Landmark("end", wire[-1]),
+    ]
+    span = END_START_M
+    while True:
+        s = np.arange(END_STEP_M, span + 1e-9, END_STEP_M)
+        pts = []
+        for lm in ends:
+            p = lm.point_m
+            below = np.column_stack([np.full_like(s, p[0]), np.full_like(s, p[1]), p[2] - s])
+            above = np.column_stack([np.full_like(s, p[0]), np.full_like(s, p[1]), p[2] + s])
+            pts.append(np.stack([below, above]))
+        pts = np.array(pts)  # (ends, 2, S, 3)
+        r_end, _ = ev(pts)
+        r_end = np.where(pts[..., 2] > 0.05, r_end, 0.0)  # below ground is no place to stand
+        r_end = np.where(np.isfinite(r_end), r_end, 1e6).max(axis=1)  # (ends, S)
+        li = _last_over(r_end)
+        if not (li == len(s) - 1).any() or span >= 4 * END_START_M:
+            break
+        span *= 2
+    for e_i, lm in enumerate(ends):
+        if li[e_i] < 0:
+            sep = 0.0
+        elif li[e_i] == len(s) - 1:
+            sep = float(s[-1])
+        else:
+            k = li[e_i]
+            sep = float(_crossing(s[k], s[k + 1], r_end[e_i, k], r_end[e_i, k + 1]))
+        end_sep.append((lm.name, sep))
+    min_end = PERSON_HEIGHT_M + max(CONTACT_M, max(v for _, v in end_sep))
+
+    # coax drop: under the feedpoint, at the person's heights
+    drop_h = heights[heights < feed_m[2] - CONTACT_M]
+    coax = []
+    if len(drop_h):
+        pts = np.column_stack(
+            [np.full(len(drop_h), feed_m[0]), np.full(len(drop_h), feed_m[1]), drop_h]
+        )
+        r_drop, _ = ev(pts)
+        coax = [(float(z), float(r)) for z, r in zip(drop_h, r_drop, strict=True)]
+
+    finite = np.where(np.isfinite(ratio_h), ratio_h, -1.0)
+    flat = int(np.argmax(finite))
+    worst = ray_points(dist).reshape(-1, 3)[flat]
+    max_ratio = max(float(finite.reshape(-1)[flat]), max((r for _, r in coax), default=0.0))
+    return KeepOut(
+        keep_out_m=keep,
+        outline_m=outline,
+        zones_m=zones,
+        by_landmark=by_landmark,
+        by_height=by_height,
+        min_end_height_m=min_end,
+        end_separation_m=end_sep,
+        max_ratio=max_ratio,
+        max_ratio_point_m=worst,
+        touching=bool(touch_h.any()),
+        coax_drop=coax,
+        beyond_reach=beyond,
+        n_points=ev.n_points,
+    )
+
+
+def _polygons(origins: np.ndarray, edge: np.ndarray, inside: np.ndarray):
+    """The outline polygon (all zones, joined along the wire) and one polygon per zone."""
+    if not inside.any():
+        return [], []
+    n = len(inside)
+    outline = []
+    for i in range(n):
+        if inside[i]:
+            outline.append(edge[i])
+        elif inside[i - 1] or inside[(i + 1) % n]:
+            outline.append(origins[i])
+    zones = []
+    if inside.all():
+        zones.append(edge)
+    else:
+        start = int(np.argmin(inside))  # a ray outside every zone
+        run: list[np.ndarray] = []
+        for step in range(1, n + 1):
+            i = (start + step) % n
+            if inside[i]:
+                if not run:
+                    run.append(origins[i])
+                run.append(edge[i])
+            elif run:
+                run.append(origins[(i - 1) % n])
+                zones.append(np.array(run))
+                run = []
+        if run:
+            run.append(origins[start - 1])
+            zones.append(np.array(run))
+
+    def rounded(poly):
+        return [[round(float(x), 2), round(float(y), 2)] for x, y in poly]
+
+    return rounded(outline), [rounded(z) for z in zones]
