@@ -1,0 +1,151 @@
+"""Antenna gain against elevation for the reach estimate, from the fieldkit antenna engine.
+
+The gain at an elevation is averaged in power over azimuth (the stations being reached lie in all
+directions), once per channel: it does not depend on the hour.
+"""
+
+from __future__ import annotations
+
+import copy
+import functools
+import json
+from dataclasses import dataclass
+
+import numpy as np
+
+from fieldkit.errors import InputError, join
+
+SPEED_OF_LIGHT_M_S = 299_792_458.0  # SI definition
+DEFAULT_HEIGHT_WAVELENGTHS = 0.15  # default NVIS dipole height, 0.15 lambda (issue 4)
+# Cut length of a wire half-wave dipole, 468/f(MHz) ft = 142.6/f m (common practice, handbook rule)
+DEFAULT_LENGTH_M_MHZ = 468.0 * 0.3048
+DEFAULT_WIRE_DIAMETER_MM = 2.0  # about AWG 12 (ASTM B258: 2.053 mm)
+DEFAULT_GROUND = "average"  # issue 4: default antenna over average ground
+ELEVATIONS_DEG = tuple(float(e) for e in range(10, 91, 2))
+AZIMUTHS_SYMMETRIC_DEG = tuple(float(a) for a in range(0, 91, 15))  # centred dipole along x
+AZIMUTHS_FULL_DEG = tuple(float(a) for a in range(0, 360, 15))
+FREQUENCY_KEYS = ("frequency_mhz", "frequencies_mhz", "pattern", "near_field")
+
+
+@dataclass(frozen=True)
+class ElevationGain:
+    """Azimuth-averaged gain of one antenna at one frequency.
+
+    Attributes
+    ----------
+    frequency_mhz : float
+    elevation_deg : ndarray
+        Ascending elevation angles [deg].
+    gain_dbi : ndarray
+        Power-average over azimuth of the total gain [dBi] (ground and conductor loss included).
+    zenith_gain_dbi, swr, radiation_efficiency : float
+        From the engine's solution.
+    """
+
+    frequency_mhz: float
+    elevation_deg: np.ndarray
+    gain_dbi: np.ndarray
+    zenith_gain_dbi: float
+    swr: float
+    radiation_efficiency: float
+
+    def at(self, elevation_deg):
+        """Gain [dBi] at elevations [deg], linear interpolation; below the grid the lowest value."""
+        return np.interp(elevation_deg, self.elevation_deg, self.gain_dbi)
+
+
+def default_dipole_spec(*, frequency_mhz: float, ground) -> dict:
+    """Model spec of the default antenna: a centre-fed wire half-wave dipole 0.15 lambda high."""
+    wavelength_m = SPEED_OF_LIGHT_M_S / (frequency_mhz * 1e6)
+    half = DEFAULT_LENGTH_M_MHZ / frequency_mhz / 2.0
+    height = DEFAULT_HEIGHT_WAVELENGTHS * wavelength_m
+    return {
+        "ground": ground if ground is not None else DEFAULT_GROUND,
+        "wires": [
+            {
+                "points_m": [[-half, 0.0, height], [half, 0.0, height]],
+                "diameter_mm": DEFAULT_WIRE_DIAMETER_MM,
+                "conductor": "copper",
+            }
+        ],
+        "feed": {"wire": 0, "distance_m": half},
+    }
+
+
+def _model_json():
+    from fieldkit.antenna import model_json
+
+    return model_json
+
+
+def _reduce(result: dict, azimuths, frequency_mhz: float) -> ElevationGain:
+    gains = np.asarray(result["gain_dbi"], dtype=float)  # [n_azimuth, n_elevation]
+    if gains.shape != (len(azimuths), len(ELEVATIONS_DEG)):
+        raise RuntimeError(f"engine returned gain_dbi of shape {gains.shape}")
+    mean = 10.0 * np.log10(np.mean(10.0 ** (gains / 10.0), axis=0))
+    elev = np.array(ELEVATIONS_DEG)
+    elev.setflags(write=False)
+    mean.setflags(write=False)
+    return ElevationGain(
+        frequency_mhz=frequency_mhz,
+        elevation_deg=elev,
+        gain_dbi=mean,
+        zenith_gain_dbi=float(result["zenith_gain_dbi"]),
+        swr=float(result["swr"]),
+        radiation_efficiency=float(result["radiation_efficiency"]),
+    )
+
+
+def _solve(spec: dict, frequencies_mhz: tuple[float, ...], azimuths, field: str) -> list[dict]:
+    spec = copy.deepcopy(spec)
+    for key in FREQUENCY_KEYS:
+        spec.pop(key, None)
+    spec["frequencies_mhz"] = list(frequencies_mhz)
+    spec["pattern"] = {"elevation_deg": list(ELEVATIONS_DEG), "azimuth_deg": list(azimuths)}
+    try:
+        out = _model_json()(spec)
+    except InputError as exc:
+        raise InputError(
+            join(field, exc.field) if exc.field else field, exc.detail, value=exc.value
+        ) from None
+    return out["results"]
+
+
+@functools.lru_cache(maxsize=128)
+def _default_gain(frequency_mhz: float, ground_json: str) -> ElevationGain:
+    spec = default_dipole_spec(frequency_mhz=frequency_mhz, ground=json.loads(ground_json))
+    (result,) = _solve(spec, (frequency_mhz,), AZIMUTHS_SYMMETRIC_DEG, "site.ground")
+    return _reduce(result, AZIMUTHS_SYMMETRIC_DEG, frequency_mhz)
+
+
+@functools.lru_cache(maxsize=32)
+def _given_gains(spec_json: str, frequencies_mhz: tuple[float, ...]) -> tuple[ElevationGain, ...]:
+    results = _solve(json.loads(spec_json), frequencies_mhz, AZIMUTHS_FULL_DEG, "antenna")
+    return tuple(
+        _reduce(r, AZIMUTHS_FULL_DEG, f) for r, f in zip(results, frequencies_mhz, strict=True)
+    )
+
+
+def elevation_gains(*, frequencies_mhz, antenna: dict | None, ground) -> list[ElevationGain]:
+    """Azimuth-averaged gain against elevation per channel, one engine solve per channel.
+
+    Parameters
+    ----------
+    frequencies_mhz : sequence of float
+        Channels [MHz].
+    antenna : dict or None
+        A `fieldkit model` spec (its frequency, pattern and near-field fields are replaced by the
+        channels); None for the default half-wave dipole 0.15 lambda high, cut for each channel.
+    ground : str or dict or None
+        Ground of the default dipole (preset name or constants); None for average ground.
+
+    Returns
+    -------
+    list of ElevationGain
+        Results are cached in the process by antenna, ground and frequency.
+    """
+    freqs = tuple(float(f) for f in frequencies_mhz)
+    if antenna is not None:
+        return list(_given_gains(json.dumps(antenna, sort_keys=True), freqs))
+    ground_json = json.dumps(ground if ground is not None else DEFAULT_GROUND, sort_keys=True)
+    return [_default_gain(f, ground_json) for f in freqs]

@@ -1,0 +1,296 @@
+"""Validation of the `fieldkit sky` input: every bad value is refused with the field named."""
+
+from __future__ import annotations
+
+import datetime as dt
+import re
+from dataclasses import dataclass
+from typing import Any
+
+from fieldkit.errors import InputError, array, check_keys, choice, join, number, require_mapping
+from fieldkit.sky.noise import NOISE_ENVIRONMENTS
+from fieldkit.sky.solar import f107_from_sunspot
+from fieldkit.sky.sounding import Sounding
+
+MIN_CHANNEL_MHZ = 1.8  # the HF range fieldkit plans for (issue 4)
+MAX_CHANNEL_MHZ = 30.0
+MAX_CHANNELS = 24
+# F10.7 monthly means seen since 1947 lie between about 64 and 370 sfu (from memory); the IRI maps
+# are interpolated between IG12 = 0 and 100 and extrapolate beyond, so refuse what no sun produces.
+MIN_F107 = 60.0
+MAX_F107 = 400.0
+MAX_SUNSPOT = 400.0
+MIN_YEAR, MAX_YEAR = 1958, 2050  # IGRF-13 (in PyIRI) covers 1900-2025 and is extrapolated after
+
+# Amateur-band presets (ITU Radio Regulations Art. 5; 60 m: WRC-15, 5351.5-5366.5 kHz): one
+# representative NVIS channel each, for operators who type a band instead of a frequency.
+BAND_PRESETS_MHZ = {"80m": 3.6, "60m": 5.3595, "40m": 7.1}
+
+
+@dataclass(frozen=True)
+class Mode:
+    """Emission mode: receiver bandwidth [Hz] and the signal-to-noise it needs in that bandwidth [dB]."""
+
+    name: str
+    bandwidth_hz: float
+    required_snr_db: float
+    source: str
+
+
+# common practice, no single source: SNR for just-usable copy by trained operators
+MODES = {
+    "ssb": Mode("ssb", 2700.0, 10.0, "common practice: SSB voice, 2.7 kHz, just usable at ~10 dB"),
+    "cw": Mode("cw", 500.0, 3.0, "common practice: CW by ear, 500 Hz filter, ~3 dB"),
+    "am": Mode("am", 6000.0, 20.0, "common practice: AM voice, 6 kHz, ~20 dB"),
+    "data": Mode(
+        "data", 2700.0, 5.0, "common practice: robust HF data modem in a voice channel, ~5 dB"
+    ),
+}
+
+
+@dataclass(frozen=True)
+class Schedule:
+    """A window of the day, inclusive hour samples; wraps past midnight when end < start."""
+
+    start_utc_h: float
+    end_utc_h: float
+    distances_km: tuple[float, ...] | None
+    start_text: str
+    end_text: str
+
+
+@dataclass(frozen=True)
+class SkySpec:
+    lat_deg: float
+    lon_deg: float
+    utc_offset_h: float | None
+    ground: Any  # engine ground spec (preset name or constants), passed to the engine as given
+    day: dt.date
+    f107: float
+    sunspot_number: float | None
+    solar_given: str
+    channels_mhz: tuple[float, ...]
+    sounding: Sounding | None
+    antenna: dict | None
+    power_w: float
+    mode: Mode
+    noise_environment: str
+    schedule: Schedule | None
+    defaults_used: tuple[str, ...]
+
+
+TOP_KEYS = (
+    "site",
+    "date",
+    "solar",
+    "channels_mhz",
+    "sounding",
+    "antenna",
+    "power_w",
+    "mode",
+    "noise_environment",
+    "bandwidth_hz",
+    "required_snr_db",
+    "schedule",
+)
+DEFAULTS = {"power_w": 100.0, "mode": "ssb", "noise_environment": "rural"}
+
+
+def _date(value: Any, field: str) -> dt.date:
+    if not isinstance(value, str) or not re.fullmatch(r"\d{4}-\d{2}-\d{2}", value):
+        raise InputError(field, f"expected a date as YYYY-MM-DD, got {value!r}", value=value)
+    try:
+        day = dt.date.fromisoformat(value)
+    except ValueError:
+        raise InputError(
+            field, f"{value!r} is not a calendar date (YYYY-MM-DD)", value=value
+        ) from None
+    if not MIN_YEAR <= day.year <= MAX_YEAR:
+        raise InputError(
+            field, f"expected a year from {MIN_YEAR} to {MAX_YEAR}, got {day.year}", value=value
+        )
+    return day
+
+
+def _clock(value: Any, field: str) -> float:
+    m = re.fullmatch(r"(\d{1,2}):(\d{2})", value) if isinstance(value, str) else None
+    if (
+        not m
+        or int(m.group(1)) > 24
+        or int(m.group(2)) > 59
+        or (int(m.group(1)) == 24 and int(m.group(2)))
+    ):
+        raise InputError(
+            field, f"expected a UTC time as HH:MM (00:00-24:00), got {value!r}", value=value
+        )
+    return int(m.group(1)) + int(m.group(2)) / 60.0
+
+
+def _site(value: Any) -> tuple[float, float, float | None, Any]:
+    site = require_mapping(value, "site")
+    check_keys(site, "site", ("lat_deg", "lon_deg", "utc_offset_h", "ground"))
+    for key in ("lat_deg", "lon_deg"):
+        if key not in site:
+            raise InputError(
+                join("site", key), "required: the site's latitude and longitude in degrees"
+            )
+    lat = number(site["lat_deg"], "site.lat_deg", unit="deg", minimum=-90, maximum=90)
+    lon = number(site["lon_deg"], "site.lon_deg", unit="deg", minimum=-180, maximum=180)
+    offset = None
+    if "utc_offset_h" in site:
+        offset = number(
+            site["utc_offset_h"], "site.utc_offset_h", unit="h", minimum=-12, maximum=14
+        )
+    return lat, lon, offset, site.get("ground")
+
+
+def _solar(value: Any) -> tuple[float, float | None, str]:
+    solar = require_mapping(value, "solar")
+    check_keys(solar, "solar", ("f107", "sunspot_number"))
+    if len(solar) != 1:
+        raise InputError(
+            "solar", "expected exactly one of f107 (sfu) or sunspot_number (R12)", value=solar
+        )
+    if "f107" in solar:
+        f107 = number(solar["f107"], "solar.f107", unit="sfu", minimum=MIN_F107, maximum=MAX_F107)
+        return f107, None, "f107"
+    r12 = number(solar["sunspot_number"], "solar.sunspot_number", minimum=0, maximum=MAX_SUNSPOT)
+    return f107_from_sunspot(sunspot_number=r12), r12, "sunspot_number"
+
+
+def _channels(value: Any) -> tuple[float, ...]:
+    items = array(value, "channels_mhz", min_items=1, max_items=MAX_CHANNELS)
+    out = []
+    for i, item in enumerate(items):
+        field = join("channels_mhz", i)
+        if isinstance(item, str):
+            out.append(BAND_PRESETS_MHZ[choice(item, field, BAND_PRESETS_MHZ)])
+        else:
+            out.append(
+                number(item, field, unit="MHz", minimum=MIN_CHANNEL_MHZ, maximum=MAX_CHANNEL_MHZ)
+            )
+    return tuple(out)
+
+
+def _sounding(value: Any) -> Sounding:
+    s = require_mapping(value, "sounding")
+    check_keys(
+        s, "sounding", ("hour_utc", "fof2_mhz", "virtual_height_km", "hmf2_km", "muf3000_mhz")
+    )
+    for key, what in (
+        ("hour_utc", "the UTC hour of the reading, 0 to 23.99"),
+        ("fof2_mhz", "the observed foF2 in MHz"),
+        ("virtual_height_km", "the observed virtual height h'F in km"),
+    ):
+        if key not in s:
+            raise InputError(join("sounding", key), f"required: {what}")
+    hour = number(s["hour_utc"], "sounding.hour_utc", unit="h", minimum=0)
+    if hour >= 24:
+        raise InputError(
+            "sounding.hour_utc", f"expected an hour below 24, got {hour:g}", value=hour
+        )
+    fof2 = number(s["fof2_mhz"], "sounding.fof2_mhz", unit="MHz", minimum=0.5, maximum=20)
+    hv = number(
+        s["virtual_height_km"], "sounding.virtual_height_km", unit="km", minimum=150, maximum=800
+    )
+    hm = None
+    if "hmf2_km" in s:
+        hm = number(s["hmf2_km"], "sounding.hmf2_km", unit="km", minimum=150, maximum=800)
+    muf = None
+    if "muf3000_mhz" in s:
+        muf = number(s["muf3000_mhz"], "sounding.muf3000_mhz", unit="MHz", minimum=fof2, maximum=80)
+    return Sounding(hour_utc=hour, fof2_mhz=fof2, virtual_height_km=hv, hmf2_km=hm, muf3000_mhz=muf)
+
+
+def _schedule(value: Any) -> Schedule:
+    s = require_mapping(value, "schedule")
+    check_keys(s, "schedule", ("start_utc", "end_utc", "distances_km"))
+    for key in ("start_utc", "end_utc"):
+        if key not in s:
+            raise InputError(join("schedule", key), "required: a UTC time as HH:MM")
+    start = _clock(s["start_utc"], "schedule.start_utc")
+    end = _clock(s["end_utc"], "schedule.end_utc")
+    distances = None
+    if "distances_km" in s:
+        items = array(s["distances_km"], "schedule.distances_km", min_items=1, max_items=20)
+        distances = tuple(
+            number(d, join("schedule.distances_km", i), unit="km", minimum=0, maximum=600)
+            for i, d in enumerate(items)
+        )
+    return Schedule(
+        start % 24.0, end % 24.0 if end < 24 else 24.0, distances, s["start_utc"], s["end_utc"]
+    )
+
+
+def parse_sky_spec(spec: Any) -> SkySpec:
+    """Validate a `fieldkit sky` input object and return it as a :class:`SkySpec`.
+
+    Raises
+    ------
+    fieldkit.errors.InputError
+        Naming the first bad field and what is expected.
+    """
+    spec = require_mapping(spec, "")
+    check_keys(spec, "", TOP_KEYS)
+    for key in ("site", "date", "solar", "channels_mhz"):
+        if key not in spec:
+            raise InputError(key, "required field is missing")
+    lat, lon, offset, ground = _site(spec["site"])
+    day = _date(spec["date"], "date")
+    f107, r12, solar_given = _solar(spec["solar"])
+    channels = _channels(spec["channels_mhz"])
+    sounding = _sounding(spec["sounding"]) if "sounding" in spec else None
+    antenna = None
+    if "antenna" in spec:
+        antenna = dict(require_mapping(spec["antenna"], "antenna"))
+        if ground is not None:
+            raise InputError(
+                "site.ground", "give the ground inside the antenna spec when an antenna is given"
+            )
+    defaults_used = tuple(k for k in DEFAULTS if k not in spec)
+    power = number(
+        spec.get("power_w", DEFAULTS["power_w"]),
+        "power_w",
+        unit="W",
+        minimum=0,
+        exclusive_minimum=True,
+        maximum=100000,
+    )
+    mode_name = choice(spec.get("mode", DEFAULTS["mode"]), "mode", MODES)
+    mode = MODES[mode_name]
+    if "bandwidth_hz" in spec or "required_snr_db" in spec:
+        bandwidth = mode.bandwidth_hz
+        required = mode.required_snr_db
+        if "bandwidth_hz" in spec:
+            bandwidth = number(
+                spec["bandwidth_hz"], "bandwidth_hz", unit="Hz", minimum=10, maximum=20000
+            )
+        if "required_snr_db" in spec:
+            required = number(
+                spec["required_snr_db"], "required_snr_db", unit="dB", minimum=-30, maximum=60
+            )
+        mode = Mode(mode.name, bandwidth, required, "given by the operator")
+    environment = choice(
+        spec.get("noise_environment", DEFAULTS["noise_environment"]),
+        "noise_environment",
+        NOISE_ENVIRONMENTS,
+    )
+    schedule = _schedule(spec["schedule"]) if "schedule" in spec else None
+    return SkySpec(
+        lat_deg=lat,
+        lon_deg=lon,
+        utc_offset_h=offset,
+        ground=ground,
+        day=day,
+        f107=f107,
+        sunspot_number=r12,
+        solar_given=solar_given,
+        channels_mhz=channels,
+        sounding=sounding,
+        antenna=antenna,
+        power_w=power,
+        mode=mode,
+        noise_environment=environment,
+        schedule=schedule,
+        defaults_used=defaults_used,
+    )
