@@ -1,8 +1,9 @@
 """Calling the layers below the service, imported when first needed.
 
-A layer that is not there (its module does not exist, or lacks the function) makes the endpoint answer
-503 ``{"error": "layer not available"}``; an import error from *inside* a layer that exists is a bug
-and propagates (500).
+A layer that is not there makes the endpoint answer 503 ``{"error": "layer not available"}``: its
+module does not exist, lacks the function, or needs a fieldkit module that does not exist in this
+build (a layer that has only partly landed). Any other import error (a missing third-party package)
+is a broken installation and propagates (500).
 """
 
 from __future__ import annotations
@@ -17,8 +18,11 @@ from fieldkit.errors import InputError
 class LayerUnavailable(InputError):
     """The module implementing an endpoint is not installed in this build (HTTP 503)."""
 
-    def __init__(self, module: str, name: str) -> None:
-        super().__init__("(service)", f"{module}.{name} is not part of this build yet", status=503)
+    def __init__(self, module: str, name: str, missing: str | None = None) -> None:
+        detail = f"{module}.{name} is not part of this build yet"
+        if missing and missing != module:
+            detail += f" (it needs {missing}, which does not exist yet)"
+        super().__init__("(service)", detail, status=503)
         self.module = module
 
     def to_json(self) -> dict[str, Any]:
@@ -30,10 +34,25 @@ def layer_function(module: str, name: str) -> Callable[..., Any]:
     try:
         loaded = importlib.import_module(module)
     except ModuleNotFoundError as exc:
-        if exc.name is not None and (exc.name == module or module.startswith(exc.name + ".")):
-            raise LayerUnavailable(module, name) from None
+        if _own_module(exc):
+            raise LayerUnavailable(module, name, exc.name) from None
         raise
     function = getattr(loaded, name, None)
     if function is None:
         raise LayerUnavailable(module, name)
     return function
+
+
+def _own_module(exc: ModuleNotFoundError) -> bool:
+    return exc.name is not None and (exc.name == "fieldkit" or exc.name.startswith("fieldkit."))
+
+
+def call_layer(module: str, name: str, *args: Any) -> Any:
+    """Call ``module.name(*args)``; a fieldkit module missing on the way is :class:`LayerUnavailable`."""
+    function = layer_function(module, name)
+    try:
+        return function(*args)
+    except ModuleNotFoundError as exc:  # imported lazily inside the layer
+        if _own_module(exc):
+            raise LayerUnavailable(module, name, exc.name) from None
+        raise

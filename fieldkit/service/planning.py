@@ -6,7 +6,7 @@ import sqlite3
 from collections.abc import Mapping
 from typing import Any
 
-from fieldkit.service.layers import LayerUnavailable, layer_function
+from fieldkit.service.layers import LayerUnavailable, call_layer, layer_function
 from fieldkit.store import checks
 
 PRE_RAISE = "pre-raise"
@@ -22,10 +22,9 @@ def run_plan(plan_input: Mapping[str, Any]) -> tuple[dict[str, Any] | None, dict
     Bad input raises :class:`fieldkit.errors.InputError` from the plan layer itself.
     """
     try:
-        plan = layer_function("fieldkit.plan", "plan")
+        return call_layer("fieldkit.plan", "plan", dict(plan_input)), None
     except LayerUnavailable as exc:
         return None, exc.to_json()
-    return plan(dict(plan_input)), None
 
 
 def chosen_option(result: Mapping[str, Any] | None) -> Mapping[str, Any] | None:

