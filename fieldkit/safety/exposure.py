@@ -92,6 +92,7 @@ class KeepOut:
     max_ratio: float
     max_ratio_point_m: np.ndarray
     touching: bool
+    end_extrapolated: bool  # the end field was followed above the end (the end is lower than s*)
     coax_drop: list[tuple[float, float]]  # (height_m, ratio)
     beyond_reach: bool  # the zone reached the furthest ray sample
     n_points: int
@@ -300,7 +301,7 @@ def keep_out(
     ]
     span = END_START_M
     while True:
-        s = np.arange(END_STEP_M, span + 1e-9, END_STEP_M)
+        s = np.arange(CONTACT_M + END_STEP_M / 2, span + 1e-9, END_STEP_M)
         pts = []
         for lm in ends:
             p = lm.point_m
@@ -308,9 +309,12 @@ def keep_out(
             above = np.column_stack([np.full_like(s, p[0]), np.full_like(s, p[1]), p[2] + s])
             pts.append(np.stack([below, above]))
         pts = np.array(pts)  # (ends, 2, S, 3)
-        r_end, _ = ev(pts)
-        r_end = np.where(pts[..., 2] > 0.05, r_end, 0.0)  # below ground is no place to stand
-        r_end = np.where(np.isfinite(r_end), r_end, 1e6).max(axis=1)  # (ends, S)
+        r_end, touch_end = ev(pts)
+        # below the end while above ground; past the ground, the same distance above the end (the
+        # end's field moves with it when the end is raised; stated as an extrapolation)
+        # past a point on the wire the line is under another part of the antenna, not under this end
+        r_end = np.where(np.logical_or.accumulate(touch_end, axis=2), 0.0, r_end)
+        r_end = np.where(pts[:, 0, :, 2] > 0.05, r_end[:, 0], r_end[:, 1])  # (ends, S)
         li = _last_over(r_end)
         if not (li == len(s) - 1).any() or span >= 4 * END_START_M:
             break
@@ -325,6 +329,9 @@ def keep_out(
             sep = float(_crossing(s[k], s[k + 1], r_end[e_i, k], r_end[e_i, k + 1]))
         end_sep.append((lm.name, sep))
     min_end = PERSON_HEIGHT_M + max(CONTACT_M, max(v for _, v in end_sep))
+    extrapolated = any(
+        sep > lm.point_m[2] - 0.05 for (_, sep), lm in zip(end_sep, ends, strict=True)
+    )
 
     # coax drop: under the feedpoint, at the person's heights
     drop_h = heights[heights < feed_m[2] - CONTACT_M]
@@ -351,6 +358,7 @@ def keep_out(
         max_ratio=max_ratio,
         max_ratio_point_m=worst,
         touching=bool(touch_h.any()),
+        end_extrapolated=extrapolated,
         coax_drop=coax,
         beyond_reach=beyond,
         n_points=ev.n_points,

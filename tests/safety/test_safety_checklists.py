@@ -75,7 +75,7 @@ def test_missing_required_flag_counts_as_required():
 
 
 def test_csv_export_round_trips_and_defuses_formulas():
-    acks = [_ack("pre-power-line-0", by="=HYPERLINK(\"x\")")]
+    acks = [_ack("pre-power-line-0", by='=HYPERLINK("x")')]
     text = checklist_csv(ITEMS, acks)
     rows = list(csv.DictReader(io.StringIO(text)))
     assert [r["id"] for r in rows] == [it["id"] for it in ITEMS]
@@ -85,7 +85,10 @@ def test_csv_export_round_trips_and_defuses_formulas():
 
 
 def test_json_export_keeps_every_acknowledgement():
-    acks = [_ack("pre-lightning"), _ack("pre-lightning", done=False, at="2026-12-01T14:09:00Z", cid="c2")]
+    acks = [
+        _ack("pre-lightning"),
+        _ack("pre-lightning", done=False, at="2026-12-01T14:09:00Z", cid="c2"),
+    ]
     out = checklist_json(ITEMS, acks, cautions=["planning aid"])
     assert len(out["acknowledgements"]) == 2
     assert out["ready_to_raise"] is False
@@ -110,4 +113,6 @@ def test_mast_wind_limits():
     # default: Beaufort 6 starts at 10.8 m/s (WMO Beaufort scale; common practice for masts)
     assert limits[0].limit_m_s == 10.8 and not limits[0].rated
     assert limits[1].limit_m_s == 8.0 and limits[1].rated
-    assert mast_wind_ok(gust_m_s=8.0, limit_m_s=8.0) and not mast_wind_ok(gust_m_s=8.1, limit_m_s=8.0)
+    assert mast_wind_ok(gust_m_s=8.0, limit_m_s=8.0) and not mast_wind_ok(
+        gust_m_s=8.1, limit_m_s=8.0
+    )
