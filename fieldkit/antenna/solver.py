@@ -1,0 +1,272 @@
+"""Solve the antenna: impedance, currents, power accounting and the far-field figures.
+
+The thin-wire moment-method system of :mod:`fieldkit.antenna.kernel` (free space and image) and
+:mod:`fieldkit.antenna.sommerfeld` (lossy ground) plus the wires' series loading
+(:mod:`fieldkit.antenna.materials`) is solved once per frequency for a 1 V gap at the feed; currents
+are then scaled to the requested input power and reported as RMS values.
+
+References
+----------
+.. [1] R. F. Harrington, *Field Computation by Moment Methods*, Macmillan 1968, ch. 4.
+.. [2] C. A. Balanis, *Antenna Theory*, 4th ed., Wiley 2016, §2.15 (gain, efficiency), §2.13 (SWR).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Iterable
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from fieldkit.errors import InputError
+
+from . import farfield
+from .geometry import Antenna, Mesh, build_mesh, check_antenna
+from .grounds import Ground
+from .kernel import free_space_matrix, loading_matrix, perfect_image_matrix, segment_end_currents
+from .materials import C0, conductor_impedance_per_m, insulation_impedance_per_m
+
+MIN_FREQUENCY_HZ = 0.1e6
+MAX_FREQUENCY_HZ = 60e6
+BEAMWIDTH_STEP_DEG = 0.25  # sampling of the elevation cuts for −3 dB widths
+
+
+@dataclass(frozen=True)
+class Solution:
+    """The solved antenna at one frequency. Currents and fields are RMS at ``power_w["input"]``."""
+
+    frequency_hz: float
+    impedance_ohm: complex
+    swr: float
+    radiation_efficiency: float
+    power_w: dict
+    currents_a: np.ndarray
+    segment_centres_m: np.ndarray
+    mesh: Mesh = field(repr=False)
+    ground: Ground = field(repr=False)
+    segment_currents_a: tuple[np.ndarray, np.ndarray] = field(repr=False)
+    _cache: dict = field(default_factory=dict, repr=False, compare=False)
+
+    # -- far field ---------------------------------------------------------------------------
+    def partial_gains(self, elevation_deg, azimuth_deg) -> tuple[np.ndarray, np.ndarray]:
+        """Linear partial gains (θ/vertical, φ/horizontal) [n_azimuth, n_elevation] [-]."""
+        rhat = farfield.directions(elevation_deg, azimuth_deg)
+        e_th, e_ph = farfield.far_field(
+            self.mesh, *self.segment_currents_a, self.ground, self.frequency_hz, rhat
+        )
+        return farfield.gain_from_field(e_th, e_ph, self.power_w["input"])
+
+    def gain_dbi(self, elevation_deg, azimuth_deg) -> np.ndarray:
+        """Total gain in dBi re input power, [n_azimuth, n_elevation]; ground and conductor loss included."""
+        g_th, g_ph = self.partial_gains(elevation_deg, azimuth_deg)
+        return 10 * np.log10(np.maximum(g_th + g_ph, 1e-30))
+
+    def gain_dbi_by_polarisation(self, elevation_deg, azimuth_deg) -> dict[str, np.ndarray]:
+        """``{"vertical": …, "horizontal": …}`` partial gains (θ and φ components) in dBi."""
+        g_th, g_ph = self.partial_gains(elevation_deg, azimuth_deg)
+        return {
+            "vertical": 10 * np.log10(np.maximum(g_th, 1e-30)),
+            "horizontal": 10 * np.log10(np.maximum(g_ph, 1e-30)),
+        }
+
+    @property
+    def zenith_gain_dbi(self) -> float:
+        return float(self.gain_dbi([90.0], [0.0])[0, 0])
+
+    def _maximum(self) -> tuple[float, float, float]:
+        if "max" not in self._cache:
+            lo = -90.0 if self.ground.kind == "free-space" else 0.0
+            el = np.arange(lo, 90.01, 2.0)
+            az = np.arange(0.0, 360.0, 5.0)
+            g = self.gain_dbi(el, az)
+            ia, ie = np.unravel_index(np.argmax(g), g.shape)
+            el2 = np.clip(el[ie] + np.arange(-2, 2.01, 0.25), lo, 90)
+            az2 = az[ia] + np.arange(-5, 5.01, 0.5)
+            g2 = self.gain_dbi(el2, az2)
+            ja, je = np.unravel_index(np.argmax(g2), g2.shape)
+            self._cache["max"] = (float(g2[ja, je]), float(el2[je]), float(az2[ja] % 360))
+        return self._cache["max"]
+
+    @property
+    def max_gain_dbi(self) -> float:
+        return self._maximum()[0]
+
+    @property
+    def max_gain_elevation_deg(self) -> float:
+        return self._maximum()[1]
+
+    @property
+    def max_gain_azimuth_deg(self) -> float:
+        return self._maximum()[2]
+
+    def wire_azimuth_deg(self) -> float:
+        """Azimuth of the horizontal current moment (the dipole's axis) [deg], in [0, 180)."""
+        i0, i1 = self.segment_currents_a
+        moment = ((i0 + i1)[:, None] * 0.5 * self.mesh.tangent * self.mesh.length[:, None]).sum(0)
+        phase = np.exp(-1j * np.angle(moment[np.argmax(np.abs(moment[:2]))]))
+        h = (moment * phase).real[:2]
+        if np.hypot(*h) < 1e-12:
+            return 0.0
+        return float(math.degrees(math.atan2(h[1], h[0])) % 180.0)
+
+    def beamwidth_deg(self) -> dict[str, float]:
+        """−3 dB width of the elevation cut through zenith, broadside (⟂ wire) and along the wire [deg].
+
+        The width is that of the lobe holding the cut's maximum, measured from its −3 dB points.
+        """
+        if "bw" not in self._cache:
+            axis = self.wire_azimuth_deg()
+            out = {}
+            for name, az in (("broadside", axis + 90.0), ("along_wire", axis)):
+                out[name] = _cut_beamwidth(self, az)
+            self._cache["bw"] = out
+        return dict(self._cache["bw"])
+
+    # -- near field --------------------------------------------------------------------------
+    def near_field(self, points_m) -> tuple[np.ndarray, np.ndarray]:
+        """E [V/m] and H [A/m] complex RMS vectors (n, 3) at points, ground included."""
+        from .nearfield import near_field
+
+        return near_field(self, np.asarray(points_m, dtype=float).reshape(-1, 3))
+
+
+def _cut_beamwidth(sol: Solution, azimuth_deg: float) -> float:
+    """−3 dB width of the lobe holding the maximum of the vertical cut at azimuth and azimuth+180."""
+    step = BEAMWIDTH_STEP_DEG
+    lo = -90.0 if sol.ground.kind == "free-space" else 0.0
+    el = np.arange(lo, 90.0 + step / 2, step)
+    g = sol.gain_dbi(el, [azimuth_deg, azimuth_deg + 180.0])
+    # angle from the horizon on one side (0) over zenith (90) to the other horizon (180)
+    theta = np.concatenate([el, 180.0 - el[::-1][1:]])
+    cut = np.concatenate([g[0], g[1][::-1][1:]])
+    peak = int(np.argmax(cut))
+    level = cut[peak] - 3.0
+    i = peak
+    while i > 0 and cut[i - 1] >= level:
+        i -= 1
+    j = peak
+    while j < len(cut) - 1 and cut[j + 1] >= level:
+        j += 1
+    left = theta[i] if i == 0 else np.interp(level, [cut[i - 1], cut[i]], [theta[i - 1], theta[i]])
+    right = (
+        theta[j]
+        if j == len(cut) - 1
+        else np.interp(level, [cut[j + 1], cut[j]], [theta[j + 1], theta[j]])
+    )
+    return float(right - left)
+
+
+def _ground_matrix(mesh: Mesh, ground: Ground, frequency_hz: float, k: float, omega: float):
+    if ground.kind == "free-space":
+        return 0.0
+    if ground.kind == "perfect":
+        return perfect_image_matrix(mesh, k, omega)
+    from .sommerfeld import lossy_ground_matrix
+
+    return lossy_ground_matrix(mesh, ground, frequency_hz)
+
+
+def _series_loading(antenna: Antenna, mesh: Mesh, frequency_hz: float) -> np.ndarray:
+    per_wire = np.array(
+        [
+            conductor_impedance_per_m(
+                conductor=w.conductor, frequency_hz=frequency_hz, radius_m=w.radius_m
+            )
+            + insulation_impedance_per_m(
+                insulation=w.insulation, frequency_hz=frequency_hz, radius_m=w.radius_m
+            )
+            for w in antenna.wires
+        ]
+    )
+    return per_wire[mesh.wire]
+
+
+def solve(
+    antenna: Antenna,
+    *,
+    frequencies_hz: Iterable[float] | float,
+    ground: Ground,
+    power_w: float = 1.0,
+    reference_impedance_ohm: float = 50.0,
+) -> list[Solution]:
+    """Solve the antenna over ground at each frequency.
+
+    Parameters
+    ----------
+    antenna : Antenna
+        Wires and feed; checked here (bad geometry raises :class:`fieldkit.errors.InputError`).
+    frequencies_hz : float or iterable of float
+        Frequencies [Hz], 0.1–60 MHz.
+    ground : Ground
+        Free space, perfect or lossy ground.
+    power_w : float
+        Power delivered to the feed [W]; scales currents and fields.
+    reference_impedance_ohm : float
+        Reference for SWR [ohm].
+
+    Returns
+    -------
+    list of Solution
+        One per frequency, in the given order.
+    """
+    freqs = np.atleast_1d(np.asarray(frequencies_hz, dtype=float))
+    if freqs.size == 0:
+        raise InputError("frequencies_mhz", "expected at least one frequency")
+    for f in freqs:
+        if not (MIN_FREQUENCY_HZ <= f <= MAX_FREQUENCY_HZ):
+            raise InputError("frequency_mhz", f"expected 0.1 to 60 MHz, got {f / 1e6:g}")
+    if not power_w > 0:
+        raise InputError("power_w", f"expected more than 0 W, got {power_w:g}")
+    if not reference_impedance_ohm > 0:
+        raise InputError(
+            "reference_impedance_ohm", f"expected more than 0 ohm, got {reference_impedance_ohm:g}"
+        )
+    check_antenna(antenna, ground)
+    mesh = build_mesh(antenna, max_frequency_hz=float(freqs.max()))
+    out = []
+    for f in freqs:
+        omega = 2 * math.pi * f
+        k = omega / C0
+        zmat = free_space_matrix(mesh, k, omega) + _ground_matrix(mesh, ground, f, k, omega)
+        z_load = _series_loading(antenna, mesh, f)
+        if np.any(z_load != 0):
+            zmat = zmat + loading_matrix(mesh, z_load)
+        rhs = np.zeros(mesh.n_basis, dtype=complex)
+        rhs[mesh.feed_basis] = 1.0
+        coeff = np.linalg.solve(zmat, rhs)
+        z_in = 1.0 / coeff[mesh.feed_basis]
+        if z_in.real <= 0:
+            raise InputError("wires", "the model gives a feed resistance ≤ 0; check the geometry")
+        # scale so that the delivered power is power_w with RMS currents
+        i_feed = math.sqrt(power_w / z_in.real)
+        coeff = coeff / coeff[mesh.feed_basis] * i_feed
+        i_start, i_end = segment_end_currents(mesh, coeff)
+        seg_sq = (np.abs(i_start) ** 2 + np.abs(i_end) ** 2 + (i_start * i_end.conj()).real) / 3
+        conductor_loss = float((z_load.real * mesh.length * seg_sq).sum())
+        radiated = farfield.radiated_power(mesh, i_start, i_end, ground, f)
+        ground_loss = (
+            max(0.0, power_w - radiated - conductor_loss) if ground.kind == "lossy" else 0.0
+        )
+        gamma = abs((z_in - reference_impedance_ohm) / (z_in + reference_impedance_ohm))
+        swr = float((1 + gamma) / (1 - gamma)) if gamma < 1 else math.inf
+        out.append(
+            Solution(
+                frequency_hz=float(f),
+                impedance_ohm=complex(z_in),
+                swr=swr,
+                radiation_efficiency=radiated / power_w,
+                power_w={
+                    "input": float(power_w),
+                    "radiated": radiated,
+                    "ground_loss": ground_loss,
+                    "conductor_loss": conductor_loss,
+                },
+                currents_a=0.5 * (i_start + i_end),
+                segment_centres_m=mesh.centre,
+                mesh=mesh,
+                ground=ground,
+                segment_currents_a=(i_start, i_end),
+            )
+        )
+    return out

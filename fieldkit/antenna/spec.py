@@ -1,0 +1,293 @@
+"""The `fieldkit model` JSON contract: validate a spec, solve it, and report the results.
+
+See ARCHITECTURE.md, "Contract: fieldkit model". JSON carries units in its names (``_mm``, ``_m``,
+``_mhz``); everything inside is SI.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from typing import Any
+
+import numpy as np
+
+from fieldkit.errors import InputError, array, check_keys, choice, join, number, require_mapping
+
+from .geometry import Antenna, Feed, Wire
+from .grounds import parse_ground
+from .materials import CONDUCTORS, Insulation
+from .solver import MAX_FREQUENCY_HZ, MIN_FREQUENCY_HZ, solve
+
+SPEC_KEYS = (
+    "frequency_mhz",
+    "frequencies_mhz",
+    "ground",
+    "wires",
+    "feed",
+    "power_w",
+    "reference_impedance_ohm",
+    "pattern",
+    "near_field",
+)
+WIRE_KEYS = ("points_m", "diameter_mm", "conductor", "insulation")
+MAX_WIRES = 100
+MAX_PATTERN_POINTS = 200_000
+MAX_NEAR_FIELD_POINTS = 20_000
+MAX_COORDINATE_M = 10_000.0
+
+
+def _point(value: Any, field: str) -> list[float]:
+    pt = array(value, field, min_items=3, max_items=3)
+    return [
+        number(c, join(field, i), unit="m", minimum=-MAX_COORDINATE_M, maximum=MAX_COORDINATE_M)
+        for i, c in enumerate(pt)
+    ]
+
+
+def _frequencies(spec: Mapping[str, Any], field: str) -> list[float]:
+    lo, hi = MIN_FREQUENCY_HZ / 1e6, MAX_FREQUENCY_HZ / 1e6
+    if "frequency_mhz" in spec and "frequencies_mhz" in spec:
+        raise InputError(
+            join(field, "frequencies_mhz"), "give frequency_mhz or frequencies_mhz, not both"
+        )
+    if "frequency_mhz" in spec:
+        return [
+            number(
+                spec["frequency_mhz"],
+                join(field, "frequency_mhz"),
+                unit="MHz",
+                minimum=lo,
+                maximum=hi,
+            )
+        ]
+    if "frequencies_mhz" in spec:
+        name = join(field, "frequencies_mhz")
+        items = array(spec["frequencies_mhz"], name, min_items=1, max_items=200)
+        return [
+            number(v, join(name, i), unit="MHz", minimum=lo, maximum=hi)
+            for i, v in enumerate(items)
+        ]
+    raise InputError(
+        join(field, "frequency_mhz"), "required: a frequency in MHz (or frequencies_mhz)"
+    )
+
+
+def _wire(value: Any, field: str) -> Wire:
+    w = require_mapping(value, field)
+    check_keys(w, field, WIRE_KEYS)
+    for key in ("points_m", "diameter_mm"):
+        if key not in w:
+            raise InputError(join(field, key), "required")
+    pts_name = join(field, "points_m")
+    pts = array(w["points_m"], pts_name, min_items=2, max_items=2000)
+    points = np.array([_point(p, join(pts_name, i)) for i, p in enumerate(pts)])
+    diameter = number(
+        w["diameter_mm"],
+        join(field, "diameter_mm"),
+        unit="mm",
+        minimum=0,
+        exclusive_minimum=True,
+        maximum=100,
+    )
+    conductor = choice(w.get("conductor", "copper"), join(field, "conductor"), CONDUCTORS)
+    insulation = None
+    if w.get("insulation") is not None:
+        ins_name = join(field, "insulation")
+        ins = require_mapping(w["insulation"], ins_name)
+        check_keys(ins, ins_name, ("thickness_mm", "relative_permittivity"))
+        for key in ("thickness_mm", "relative_permittivity"):
+            if key not in ins:
+                raise InputError(join(ins_name, key), "required")
+        insulation = Insulation(
+            thickness_m=number(
+                ins["thickness_mm"],
+                join(ins_name, "thickness_mm"),
+                unit="mm",
+                minimum=0,
+                maximum=50,
+            )
+            / 1e3,
+            relative_permittivity=number(
+                ins["relative_permittivity"],
+                join(ins_name, "relative_permittivity"),
+                minimum=1,
+                maximum=20,
+            ),
+        )
+    return Wire(
+        points_m=points, radius_m=diameter / 2e3, conductor=conductor, insulation=insulation
+    )
+
+
+def _angles(value: Any, field: str, lo: float, hi: float) -> np.ndarray:
+    items = array(value, field, min_items=1, max_items=3601)
+    return np.array(
+        [number(v, join(field, i), unit="deg", minimum=lo, maximum=hi) for i, v in enumerate(items)]
+    )
+
+
+def parse_spec(spec: Any, field: str = "") -> dict[str, Any]:
+    """Validate one model spec; returns the engine objects and options."""
+    spec = require_mapping(spec, field)
+    check_keys(spec, field, SPEC_KEYS)
+    freqs = _frequencies(spec, field)
+    if "ground" not in spec:
+        raise InputError(
+            join(field, "ground"),
+            "required: a ground name or {relative_permittivity, conductivity_s_m}",
+        )
+    ground = parse_ground(spec["ground"], join(field, "ground"))
+    if "wires" not in spec:
+        raise InputError(join(field, "wires"), "required: a list of wires")
+    wires_name = join(field, "wires")
+    wires = tuple(
+        _wire(w, join(wires_name, i))
+        for i, w in enumerate(array(spec["wires"], wires_name, min_items=1, max_items=MAX_WIRES))
+    )
+    if "feed" not in spec:
+        raise InputError(join(field, "feed"), "required: {wire, distance_m}")
+    feed_name = join(field, "feed")
+    feed = require_mapping(spec["feed"], feed_name)
+    check_keys(feed, feed_name, ("wire", "distance_m"))
+    for key in ("wire", "distance_m"):
+        if key not in feed:
+            raise InputError(join(feed_name, key), "required")
+    feed_obj = Feed(
+        wire=number(
+            feed["wire"], join(feed_name, "wire"), minimum=0, maximum=len(wires) - 1, integer=True
+        ),
+        distance_m=number(feed["distance_m"], join(feed_name, "distance_m"), unit="m", minimum=0),
+    )
+    power = number(
+        spec.get("power_w", 1.0),
+        join(field, "power_w"),
+        unit="W",
+        minimum=0,
+        exclusive_minimum=True,
+        maximum=1e6,
+    )
+    z_ref = number(
+        spec.get("reference_impedance_ohm", 50.0),
+        join(field, "reference_impedance_ohm"),
+        unit="ohm",
+        minimum=0,
+        exclusive_minimum=True,
+        maximum=1e4,
+    )
+    pattern = None
+    if spec.get("pattern") is not None:
+        pname = join(field, "pattern")
+        p = require_mapping(spec["pattern"], pname)
+        check_keys(p, pname, ("elevation_deg", "azimuth_deg"))
+        for key in ("elevation_deg", "azimuth_deg"):
+            if key not in p:
+                raise InputError(join(pname, key), "required: a list of angles in degrees")
+        lo = -90.0 if ground.kind == "free-space" else 0.0
+        el = _angles(p["elevation_deg"], join(pname, "elevation_deg"), lo, 90.0)
+        az = _angles(p["azimuth_deg"], join(pname, "azimuth_deg"), -360.0, 360.0)
+        if el.size * az.size > MAX_PATTERN_POINTS:
+            raise InputError(
+                pname, f"expected at most {MAX_PATTERN_POINTS} directions, got {el.size * az.size}"
+            )
+        pattern = (el, az)
+    near = None
+    if spec.get("near_field") is not None:
+        nname = join(field, "near_field")
+        n = require_mapping(spec["near_field"], nname)
+        check_keys(n, nname, ("points_m",))
+        if "points_m" not in n:
+            raise InputError(
+                join(nname, "points_m"), "required: a list of [x, y, z] points in metres"
+            )
+        pts_name = join(nname, "points_m")
+        items = array(n["points_m"], pts_name, min_items=1, max_items=MAX_NEAR_FIELD_POINTS)
+        near = np.array([_point(p, join(pts_name, i)) for i, p in enumerate(items)])
+        if ground.kind != "free-space":
+            low = np.nonzero(near[:, 2] < 0)[0]
+            if low.size:
+                raise InputError(
+                    join(pts_name, int(low[0])), "expected a point at or above the ground (z ≥ 0)"
+                )
+    return {
+        "antenna": Antenna(wires=wires, feed=feed_obj),
+        "frequencies_hz": [f * 1e6 for f in freqs],
+        "ground": ground,
+        "power_w": power,
+        "reference_impedance_ohm": z_ref,
+        "pattern": pattern,
+        "near_field": near,
+    }
+
+
+def _round(x: float, digits: int = 4) -> float:
+    return float(f"{x:.{digits}g}") if np.isfinite(x) else x
+
+
+def _result(sol, pattern, near) -> dict[str, Any]:
+    z = sol.impedance_ohm
+    bw = sol.beamwidth_deg()
+    out: dict[str, Any] = {
+        "frequency_mhz": sol.frequency_hz / 1e6,
+        "impedance_ohm": {"r": round(z.real, 3), "x": round(z.imag, 3)},
+        "swr": round(sol.swr, 3) if np.isfinite(sol.swr) else None,
+        "radiation_efficiency": round(sol.radiation_efficiency, 4),
+        "zenith_gain_dbi": round(sol.zenith_gain_dbi, 2),
+        "max_gain_dbi": round(sol.max_gain_dbi, 2),
+        "max_gain_elevation_deg": round(sol.max_gain_elevation_deg, 2),
+        "max_gain_azimuth_deg": round(sol.max_gain_azimuth_deg, 2),
+        "beamwidth_deg": {k: round(v, 1) for k, v in bw.items()},
+        "wire_azimuth_deg": round(sol.wire_azimuth_deg(), 1),
+        "power_w": {k: _round(v, 5) for k, v in sol.power_w.items()},
+        "segments": sol.mesh.n_segments,
+        "feed_current_a": round((sol.power_w["input"] / z.real) ** 0.5, 5),
+    }
+    if pattern is not None:
+        el, az = pattern
+        pol = sol.gain_dbi_by_polarisation(el, az)
+        total = 10 * np.log10(10 ** (pol["vertical"] / 10) + 10 ** (pol["horizontal"] / 10))
+        out["pattern"] = {"elevation_deg": el.tolist(), "azimuth_deg": az.tolist()}
+        out["gain_dbi"] = np.round(total, 2).tolist()
+        out["gain_dbi_horizontal"] = np.round(pol["horizontal"], 2).tolist()
+        out["gain_dbi_vertical"] = np.round(pol["vertical"], 2).tolist()
+    if near is not None:
+        e, h = sol.near_field(near)
+        out["near_field"] = {
+            "points_m": near.tolist(),
+            "e_v_per_m": np.round(np.linalg.norm(e, axis=1), 4).tolist(),
+            "h_a_per_m": np.round(np.linalg.norm(h, axis=1), 6).tolist(),
+            "e_vector_v_per_m": [[{"re": c.real, "im": c.imag} for c in row] for row in e.tolist()],
+            "h_vector_a_per_m": [[{"re": c.real, "im": c.imag} for c in row] for row in h.tolist()],
+        }
+    return out
+
+
+def _model_one(spec: Any, field: str) -> dict[str, Any]:
+    p = parse_spec(spec, field)
+    try:
+        sols = solve(
+            p["antenna"],
+            frequencies_hz=p["frequencies_hz"],
+            ground=p["ground"],
+            power_w=p["power_w"],
+            reference_impedance_ohm=p["reference_impedance_ohm"],
+        )
+    except InputError as err:
+        if field and not err.field.startswith(field):
+            raise InputError(join(field, err.field), err.detail, value=err.value) from None
+        raise
+    return {"results": [_result(s, p["pattern"], p["near_field"]) for s in sols]}
+
+
+def model_json(spec: dict | list) -> dict | list:
+    """Run the `fieldkit model` contract on one spec (→ object) or a list of specs (→ list).
+
+    Raises
+    ------
+    fieldkit.errors.InputError
+        Any bad input, naming the field (``[i].wires[0].points_m[1]`` for the i-th spec of a list).
+    """
+    if isinstance(spec, list):
+        if not spec:
+            raise InputError("(top level)", "expected a spec object or a non-empty array of specs")
+        return [_model_one(s, f"[{i}]") for i, s in enumerate(spec)]
+    return _model_one(spec, "")
