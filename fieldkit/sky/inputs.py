@@ -141,7 +141,12 @@ def _site(value: Any) -> tuple[float, float, float | None, Any]:
         offset = number(
             site["utc_offset_h"], "site.utc_offset_h", unit="h", minimum=-12, maximum=14
         )
-    return lat, lon, offset, site.get("ground")
+    ground = site.get("ground")
+    if ground is not None:
+        from fieldkit.antenna import parse_ground
+
+        parse_ground(ground, field="site.ground")  # refuse a bad ground before any solving
+    return lat, lon, offset, ground
 
 
 def _solar(value: Any) -> tuple[float, float | None, str]:
