@@ -1,0 +1,292 @@
+"""The SQLite store: migrations (from empty, from the previous schema), transactions, append-only."""
+
+from __future__ import annotations
+
+import json
+import sqlite3
+import threading
+
+import pytest
+
+from fieldkit import store
+from fieldkit.errors import InputError
+from fieldkit.store import checks, deployments, kit, transfer
+from fieldkit.store.schema import MIGRATIONS, SCHEMA_VERSION, SchemaTooNew, migrate, schema_version
+
+PLAN_INPUT = {
+    "site": {"ground": "poor", "supports": [{"id": "T1", "kind": "tree", "height_m": 13.5}]},
+    "kit": {"wire": {"diameter_mm": 1.6}},
+    "channels_mhz": [3.605, 3.79],
+}
+
+
+@pytest.fixture
+def db(tmp_path):
+    path = store.database_path(tmp_path)
+    migrate(path)
+    conn = store.connect(path)
+    yield conn
+    conn.close()
+
+
+def test_migrate_from_empty(tmp_path):
+    path = store.database_path(tmp_path)
+    assert migrate(path) == SCHEMA_VERSION
+    conn = store.connect(path)
+    try:
+        assert schema_version(conn) == SCHEMA_VERSION
+        assert conn.execute("PRAGMA journal_mode").fetchone()[0] == "wal"
+        assert conn.execute("PRAGMA foreign_keys").fetchone()[0] == 1
+        tables = {r[0] for r in conn.execute("SELECT name FROM sqlite_master WHERE type='table'")}
+        assert {"meta", "deployments", "kit", "acknowledgements"} <= tables
+    finally:
+        conn.close()
+    assert migrate(path) == SCHEMA_VERSION  # running again changes nothing
+
+
+def test_migrate_from_previous_schema_keeps_and_fills_data(tmp_path):
+    path = store.database_path(tmp_path)
+    assert migrate(path, target=SCHEMA_VERSION - 1) == SCHEMA_VERSION - 1
+    conn = store.connect(path)
+    # A database as the previous fieldkit wrote it: version-1 columns only.
+    conn.execute(
+        "INSERT INTO deployments (id, name, plan_input, plan_result, created_at, updated_at)"
+        " VALUES ('d1', 'Old one', ?, NULL, '2026-11-30T10:00:00.000000Z', '2026-11-30T10:00:00.000000Z')",
+        (json.dumps(PLAN_INPUT),),
+    )
+    conn.execute(
+        "INSERT INTO acknowledgements (client_id, deployment_id, item_id, done, by, at, at_utc,"
+        " received_at) VALUES ('c1', 'd1', 'pre-weather', 1, 'AB', '2026-11-30T10:05:00Z',"
+        " '2026-11-30T10:05:00.000000Z', '2026-11-30T10:05:01.000000Z')"
+    )
+    conn.close()
+
+    assert migrate(path) == SCHEMA_VERSION
+    conn = store.connect(path)
+    try:
+        found = deployments.get(conn, "d1")
+        assert (found.name, found.plan_input, found.revision) == ("Old one", PLAN_INPUT, 1)
+        row = conn.execute("SELECT site, kit, channels FROM deployments WHERE id = 'd1'").fetchone()
+        assert json.loads(row["site"]) == PLAN_INPUT["site"]
+        assert json.loads(row["kit"]) == PLAN_INPUT["kit"]
+        assert json.loads(row["channels"]) == PLAN_INPUT["channels_mhz"]
+        assert [a.client_id for a in checks.history(conn, "d1")] == ["c1"]
+        with pytest.raises(sqlite3.IntegrityError, match="append-only"):
+            conn.execute("UPDATE acknowledgements SET done = 0")
+    finally:
+        conn.close()
+
+
+def test_a_failed_migration_leaves_the_old_version(tmp_path, monkeypatch):
+    path = store.database_path(tmp_path)
+    migrate(path, target=1)
+    broken = (*MIGRATIONS[:1], (*MIGRATIONS[1][:2], "THIS IS NOT SQL"))
+    monkeypatch.setattr("fieldkit.store.schema.MIGRATIONS", broken)
+    with pytest.raises(sqlite3.OperationalError):
+        migrate(path, target=2)
+    conn = store.connect(path)
+    try:
+        assert schema_version(conn) == 1
+        columns = {r[1] for r in conn.execute("PRAGMA table_info(deployments)")}
+        assert "site" not in columns  # the half-done migration was rolled back
+    finally:
+        conn.close()
+
+
+def test_newer_database_is_refused(tmp_path):
+    path = store.database_path(tmp_path)
+    migrate(path)
+    conn = sqlite3.connect(path)
+    conn.execute(f"PRAGMA user_version = {SCHEMA_VERSION + 1}")
+    conn.close()
+    with pytest.raises(SchemaTooNew, match="newer fieldkit"):
+        migrate(path)
+
+
+def test_transaction_rolls_back_on_error(db):
+    with pytest.raises(RuntimeError), store.transaction(db):
+        deployments.insert(db, name="gone", plan_input=PLAN_INPUT, plan_result=None)
+        raise RuntimeError("power cut")
+    assert deployments.count(db) == 0
+
+
+def test_deployment_crud(db):
+    new_id = deployments.create(db, name="A", plan_input=PLAN_INPUT, plan_result=None)
+    found = deployments.get(db, new_id)
+    assert found.plan_input == PLAN_INPUT and found.plan_result is None and found.revision == 1
+    updated = deployments.update(
+        db, new_id, name="B", plan_input=PLAN_INPUT, plan_result={"options": []}
+    )
+    assert (updated.name, updated.revision, updated.plan_result) == ("B", 2, {"options": []})
+    assert updated.updated_at >= found.updated_at
+    deployments.delete(db, new_id)
+    with pytest.raises(store.NotFound):
+        deployments.get(db, new_id)
+    with pytest.raises(store.NotFound):
+        deployments.delete(db, new_id)
+
+
+def test_deleting_a_deployment_removes_its_history(db):
+    new_id = deployments.create(db, name="A", plan_input=PLAN_INPUT, plan_result=None)
+    checks.acknowledge(
+        db,
+        deployment_id=new_id,
+        item_id="pre-x",
+        done=True,
+        by="AB",
+        at="2026-12-01T10:00:00Z",
+        client_id="c-1",
+    )
+    deployments.delete(db, new_id)
+    assert db.execute("SELECT count(*) FROM acknowledgements").fetchone()[0] == 0
+
+
+@pytest.mark.parametrize(
+    ("value", "utc"),
+    [
+        ("2026-12-01T14:05:00Z", "2026-12-01T14:05:00.000000Z"),
+        ("2026-12-01T15:05:00+01:00", "2026-12-01T14:05:00.000000Z"),
+        ("2026-12-01T09:05:00.250-05:00", "2026-12-01T14:05:00.250000Z"),
+        ("2026-12-01T14:05:00.123Z", "2026-12-01T14:05:00.123000Z"),  # JavaScript toISOString()
+    ],
+)
+def test_instant_utc(value, utc):
+    # ISO 8601 / RFC 3339 date-times with offsets, normalised to UTC.
+    assert checks.instant_utc(value, "at") == utc
+
+
+@pytest.mark.parametrize(
+    "value", ["2026-12-01T14:05:00", "2026-12-01", "noon", "", None, 17, "9" * 50]
+)
+def test_instant_utc_refuses(value):
+    with pytest.raises(InputError) as caught:
+        checks.instant_utc(value, "at")
+    assert caught.value.field == "at"
+
+
+def test_current_state_later_at_wins_and_history_keeps_all(db):
+    new_id = deployments.create(db, name="A", plan_input=PLAN_INPUT, plan_result=None)
+
+    def tick(client_id, done, at):
+        return checks.acknowledge(
+            db,
+            deployment_id=new_id,
+            item_id="pre-x",
+            done=done,
+            by="AB",
+            at=at,
+            client_id=client_id,
+        )
+
+    tick("c1", True, "2026-12-01T14:00:00Z")
+    tick("c2", False, "2026-12-01T13:59:00Z")  # arrives later, happened earlier
+    assert checks.current_state(db, new_id)["pre-x"].client_id == "c1"
+    tick("c3", False, "2026-12-01T15:00:00+01:00")  # same instant as c1: the later arrival wins
+    assert checks.current_state(db, new_id)["pre-x"].client_id == "c3"
+    _, replayed = tick("c1", True, "2026-12-01T14:00:00Z")
+    assert replayed
+    assert [a.client_id for a in checks.history(db, new_id)] == ["c1", "c2", "c3"]
+    with pytest.raises(store.Conflict):
+        tick("c1", False, "2026-12-01T14:00:00Z")
+
+
+def test_acknowledging_a_missing_deployment_is_not_found(db):
+    with pytest.raises(store.NotFound):
+        checks.acknowledge(
+            db,
+            deployment_id="nope",
+            item_id="x",
+            done=True,
+            by="AB",
+            at="2026-12-01T10:00:00Z",
+            client_id="c",
+        )
+
+
+def test_parallel_writers_on_separate_connections(tmp_path):
+    # WAL with BEGIN IMMEDIATE and a busy timeout: concurrent writers wait, none fails.
+    path = store.database_path(tmp_path)
+    migrate(path)
+    setup = store.connect(path)
+    new_id = deployments.create(setup, name="A", plan_input=PLAN_INPUT, plan_result=None)
+    setup.close()
+    errors: list[BaseException] = []
+
+    def writer(n):
+        conn = store.connect(path)
+        try:
+            for i in range(25):
+                checks.acknowledge(
+                    conn,
+                    deployment_id=new_id,
+                    item_id="pre-x",
+                    done=True,
+                    by="AB",
+                    at=f"2026-12-01T10:{i:02d}:00Z",
+                    client_id=f"w{n}-{i}",
+                )
+        except BaseException as exc:  # collected and asserted below
+            errors.append(exc)
+        finally:
+            conn.close()
+
+    threads = [threading.Thread(target=writer, args=(n,)) for n in range(6)]
+    for t in threads:
+        t.start()
+    for t in threads:
+        t.join()
+    assert errors == []
+    conn = store.connect(path)
+    try:
+        assert len(checks.history(conn, new_id)) == 150
+    finally:
+        conn.close()
+
+
+def test_kit_put_get(db):
+    assert kit.get(db) == (None, None)
+    kit.put(db, {"wire": {"diameter_mm": 1.6}})
+    kit.put(db, {"wire": {"diameter_mm": 2.0}})
+    body, updated = kit.get(db)
+    assert body == {"wire": {"diameter_mm": 2.0}} and updated
+
+
+def test_export_import_round_trip(db, tmp_path):
+    new_id = deployments.create(
+        db, name="Ünïcode ☂", plan_input=PLAN_INPUT, plan_result={"options": [{"x": 1.5}]}
+    )
+    for i, done in enumerate((True, False, True)):
+        checks.acknowledge(
+            db,
+            deployment_id=new_id,
+            item_id=f"pre-{i % 2}",
+            done=done,
+            by="AB",
+            at=f"2026-12-01T10:0{i}:00+02:00",
+            client_id=f"c{i}",
+        )
+    doc = transfer.export_deployment(db, new_id)
+    text = json.dumps(doc)  # through a file, as between laptops
+
+    other_path = store.database_path(tmp_path / "other")
+    (tmp_path / "other").mkdir()
+    migrate(other_path)
+    other = store.connect(other_path)
+    try:
+        assert transfer.import_deployment(other, json.loads(text)) == (new_id, True)
+        assert transfer.export_deployment(other, new_id) == doc
+        assert checks.current_state(other, new_id) == checks.current_state(db, new_id)
+        assert transfer.import_deployment(other, json.loads(text)) == (new_id, False)
+    finally:
+        other.close()
+
+
+def test_csv_defuses_formulas():
+    # OWASP "CSV Injection": cells starting with = + - @ are prefixed so spreadsheets show text.
+    out = transfer.checklist_csv(
+        [{"id": "a", "text": "=1+1", "by": "@x", "done": True, "required": False}]
+    )
+    lines = out.splitlines()
+    assert lines[0] == ",".join(transfer.CSV_COLUMNS)
+    assert lines[1].split(",")[3] == "'=1+1"
+    assert "'@x" in lines[1]
