@@ -1,0 +1,469 @@
+// The field app: state, section switching, saving and planning, the offline tick queue.
+
+import { api, ApiError, onBusy, onSavedCopy, UnreachableError } from "./api.js";
+import { clear, h } from "./dom.js";
+import { kvGet, kvSet } from "./store.js";
+import { deploymentList, planInput, readChecks, readDeployment } from "./shapes.js";
+import { currentUnits, setUnits } from "./units.js";
+import * as queue from "./queue.js";
+import * as site from "./site.js";
+import * as sky from "./sky.js";
+import * as wire from "./wire.js";
+import * as mast from "./mast.js";
+import * as checks from "./checks.js";
+import * as card from "./card.js";
+
+const SECTIONS = { site, sky, wire, mast, checks, card };
+const SECTION_ORDER = ["site", "sky", "wire", "mast", "checks", "card"];
+const PLAN_DEBOUNCE_MS = 900;
+const REPLAY_EVERY_MS = 5000;
+
+const app = {
+  state: {
+    units: currentUnits(),
+    deployments: [],
+    id: null,
+    dep: null,
+    revision: null,
+    plan: null,
+    planFor: null,
+    planError: null,
+    chosen: 0,
+    sky: null,
+    skyFor: null,
+    skyError: null,
+    checks: [],
+    checksError: null,
+    pending: [],
+    online: true,
+    fromCache: false,
+    section: "site",
+    extra: {},
+  },
+  api,
+};
+
+// ---------------------------------------------------------------- status, banner, busy
+function setStatus() {
+  const el = document.getElementById("status");
+  const st = app.state;
+  clear(el);
+  el.append(h("span", { class: `dot ${st.online ? "ok" : "off"}`, "aria-hidden": "true" }));
+  el.append(h("span", { "data-testid": "online-state", text: st.online ? "service connected" : "service unreachable — working from this device" }));
+  if (st.pending.length) {
+    el.append(h("span", { class: "pending-count", "data-testid": "pending-count", text: `${st.pending.length} tick(s) pending` }));
+  }
+  if (st.fromCache) el.append(h("span", { class: "cached", text: "saved copy" }));
+}
+
+export function showBanner(message, kind = "error") {
+  const el = document.getElementById("banner");
+  if (!message) {
+    el.hidden = true;
+    return;
+  }
+  el.hidden = false;
+  el.className = `banner ${kind}`;
+  clear(el).append(h("span", { text: message }), h("button", { type: "button", class: "close", text: "Close", on: { click: () => (el.hidden = true) } }));
+}
+
+onBusy((busy, label) => {
+  const el = document.getElementById("busy");
+  el.hidden = !busy;
+  if (busy) document.getElementById("busy-text").textContent = label || "Working…";
+});
+
+function noteReachable(ok) {
+  if (app.state.online !== ok) {
+    app.state.online = ok;
+    setStatus();
+    if (ok) replay();
+  }
+}
+
+let savedCopySeen = false;
+onSavedCopy(() => {
+  savedCopySeen = true;
+  app.state.fromCache = true;
+});
+
+/** Run an API call, tracking whether the service is reachable. */
+async function call(fn) {
+  try {
+    savedCopySeen = false;
+    const out = await fn();
+    noteReachable(!savedCopySeen);
+    return out;
+  } catch (e) {
+    if (e instanceof UnreachableError) noteReachable(false);
+    else noteReachable(true);
+    throw e;
+  }
+}
+app.call = call;
+
+// ---------------------------------------------------------------- rendering
+function render() {
+  const st = app.state;
+  for (const a of document.querySelectorAll("nav.sections a")) {
+    a.classList.toggle("current", a.dataset.section === st.section);
+    if (a.dataset.section === st.section) a.setAttribute("aria-current", "page");
+    else a.removeAttribute("aria-current");
+  }
+  for (const name of SECTION_ORDER) {
+    const panel = document.getElementById(`sec-${name}`);
+    panel.hidden = name !== st.section;
+  }
+  const panel = document.getElementById(`sec-${st.section}`);
+  if (!st.dep) {
+    clear(panel).append(emptyState());
+  } else {
+    SECTIONS[st.section].render(app, panel);
+  }
+  renderDeploymentSelect();
+  setStatus();
+  document.getElementById("units-toggle").textContent = st.units === "imperial" ? "ft" : "m";
+  document.getElementById("units-toggle").setAttribute("aria-pressed", String(st.units === "imperial"));
+}
+app.render = render;
+
+/** Re-render only the current section's dependent parts (site sketch keeps its inputs). */
+app.refresh = () => {
+  const panel = document.getElementById(`sec-${app.state.section}`);
+  const mod = SECTIONS[app.state.section];
+  if (app.state.dep && mod.refresh) mod.refresh(app, panel);
+  else render();
+  setStatus();
+};
+
+function emptyState() {
+  return h("div", { class: "empty" }, [
+    h("h2", { text: "No deployment yet" }),
+    h("p", { text: "A deployment is one planned raising of one antenna at one site. Start one here, then add the supports in Site." }),
+    newDeploymentForm(),
+  ]);
+}
+
+function newDeploymentForm() {
+  const form = h("form", { class: "grid-form", "data-testid": "new-deployment" });
+  const name = h("input", { id: "new-name", name: "name", required: true, autocomplete: "off", value: "" });
+  form.append(h("label", { for: "new-name", text: "Name" }), name);
+  form.append(h("button", { type: "submit", class: "primary", text: "Start deployment" }));
+  form.addEventListener("submit", async (ev) => {
+    ev.preventDefault();
+    await createDeployment(name.value.trim() || "New deployment");
+  });
+  return form;
+}
+
+function renderDeploymentSelect() {
+  const sel = document.getElementById("deployment-select");
+  const st = app.state;
+  clear(sel);
+  for (const d of st.deployments) sel.append(h("option", { value: d.id, text: d.name }));
+  sel.append(h("option", { value: "__new", text: "+ New deployment" }));
+  sel.value = st.id ?? "__new";
+}
+
+// ---------------------------------------------------------------- deployments
+async function loadList() {
+  try {
+    const data = await call(api.listDeployments);
+    app.state.deployments = deploymentList(data);
+    await kvSet("deployments", app.state.deployments);
+  } catch (e) {
+    if (!(e instanceof UnreachableError)) showBanner(`Could not list deployments: ${e.message}`);
+    app.state.deployments = (await kvGet("deployments")) ?? [];
+  }
+}
+
+async function openDeployment(id) {
+  const st = app.state;
+  st.id = id;
+  st.plan = null;
+  st.planFor = null;
+  st.planError = null;
+  st.sky = null;
+  st.skyFor = null;
+  st.checks = [];
+  st.chosen = 0;
+  st.extra = {};
+  st.fromCache = false;
+  try {
+    localStorage.setItem("fieldkit.last", id);
+  } catch {
+    /* ignore */
+  }
+  try {
+    const data = await call(() => api.getDeployment(id));
+    const d = readDeployment(data);
+    st.dep = d.dep;
+    st.revision = d.revision;
+    if (d.plan) {
+      st.plan = d.plan;
+      st.planFor = JSON.stringify(planInput(d.dep));
+    } else if (d.planError) st.planError = d.planError.detail ?? String(d.planError.error);
+    await kvSet(`dep:${id}`, { dep: st.dep, revision: st.revision });
+  } catch (e) {
+    const saved = await kvGet(`dep:${id}`);
+    if (!saved) {
+      st.dep = null;
+      showBanner(e instanceof UnreachableError ? "The service cannot be reached and this deployment was never opened on this device." : `Could not open the deployment: ${e.message}`);
+      render();
+      return;
+    }
+    st.dep = saved.dep;
+    st.revision = saved.revision;
+    st.fromCache = true;
+  }
+  const savedView = await kvGet(`view:${id}`);
+  if (savedView) {
+    if (!st.plan && savedView.plan) {
+      st.plan = savedView.plan;
+      st.planFor = savedView.planFor;
+    }
+    if (savedView.sky) {
+      st.sky = savedView.sky;
+      st.skyFor = savedView.skyFor;
+    }
+    if (Number.isInteger(savedView.chosen)) st.chosen = savedView.chosen;
+    if (savedView.checks) st.checks = savedView.checks;
+  }
+  st.pending = await queue.list();
+  overlayPending();
+  render();
+  await loadChecks();
+  render();
+}
+app.openDeployment = openDeployment;
+
+async function createDeployment(name) {
+  let kit = {};
+  try {
+    kit = (await call(api.kit)) ?? {};
+    if (kit.kit) kit = kit.kit;
+  } catch (e) {
+    showBanner(`Could not read the kit: ${e.message}`);
+    return;
+  }
+  const today = new Date().toISOString().slice(0, 10);
+  const dep = {
+    name,
+    site: { name, lat_deg: 46.8, lon_deg: 8.2, ground: "average", supports: [], hazards: [] },
+    channels_mhz: [3.605],
+    form: "auto",
+    kit,
+    radio: { power_w: 100, mode: "ssb" },
+    schedule: { start_utc: "16:00", end_utc: "20:00" },
+    sky: { site: { lat_deg: 46.8, lon_deg: 8.2 }, date: today, solar: { f107: 120 }, channels_mhz: [3.605] },
+  };
+  try {
+    const out = await call(() => api.createDeployment(dep));
+    await loadList();
+    app.state.section = "site";
+    location.hash = "#site";
+    await openDeployment(String(out.id));
+  } catch (e) {
+    showBanner(`Could not start the deployment: ${e.message}`);
+  }
+}
+
+let saveTimer = null;
+/** Change the deployment: fn(dep) edits it in place; then save and re-plan after a pause. */
+app.change = (fn, { now = false } = {}) => {
+  fn(app.state.dep);
+  kvSet(`dep:${app.state.id}`, { dep: app.state.dep, revision: app.state.revision });
+  clearTimeout(saveTimer);
+  saveTimer = setTimeout(saveAndPlan, now ? 0 : PLAN_DEBOUNCE_MS);
+};
+
+async function saveAndPlan() {
+  const st = app.state;
+  const id = st.id;
+  try {
+    const out = await call(() => app.api.saveDeployment(id, structuredClone(st.dep)));
+    const d = readDeployment(out);
+    st.revision = d.revision;
+    st.plan = d.plan;
+    st.planFor = d.plan ? JSON.stringify(planInput(st.dep)) : null;
+    st.planError = d.plan ? null : d.planError?.detail ?? "The service returned no plan.";
+    if (st.chosen >= (st.plan?.options?.length ?? 0)) st.chosen = 0;
+    st.extra = {};
+    await kvSet(`dep:${id}`, { dep: st.dep, revision: st.revision });
+    await saveView();
+    showBanner(null);
+  } catch (e) {
+    if (e instanceof UnreachableError) {
+      showBanner("The service cannot be reached: the change is kept on this device; press Plan again when it is back.", "warn");
+      return;
+    }
+    st.planError = e.message;
+    reportFieldError(e);
+    app.refresh();
+    return;
+  }
+  await loadChecks();
+  app.refresh();
+}
+
+/** Show an API error at the input it names (data-field), else in the banner. */
+function reportFieldError(e) {
+  if (e instanceof ApiError && e.field) {
+    const input = document.querySelector(`[data-field="${CSS.escape(e.field)}"]`);
+    if (input) {
+      site.showFieldError(input, e.detail);
+      return;
+    }
+  }
+  showBanner(e.message);
+}
+app.reportFieldError = reportFieldError;
+
+async function saveView() {
+  const st = app.state;
+  if (!st.id) return;
+  await kvSet(`view:${st.id}`, { plan: st.plan, planFor: st.planFor, sky: st.sky, skyFor: st.skyFor, chosen: st.chosen, checks: st.checks });
+}
+app.saveView = saveView;
+
+app.choose = async (index) => {
+  app.state.chosen = index;
+  app.state.extra = {};
+  await saveView();
+  render();
+};
+
+// ---------------------------------------------------------------- checks and the pending queue
+/** Lay the ticks still waiting on this device over the items, in the order they were made. */
+function overlayPending() {
+  const st = app.state;
+  for (const p of st.pending) {
+    if (p.deployment_id !== st.id) continue;
+    const item = st.checks.find((c) => c.id === p.item_id);
+    if (item) Object.assign(item, { done: p.body.done, by: p.body.by, at: p.body.at });
+  }
+}
+
+async function loadChecks() {
+  const st = app.state;
+  if (!st.id) return;
+  try {
+    const data = await call(() => api.checks(st.id));
+    st.checks = readChecks(data);
+    st.readiness = { ready: data?.ready_to_raise ?? null, raiseOk: data?.raise_ok ?? null, missing: data?.missing_checks ?? [] };
+    st.checksError = null;
+    await saveView();
+  } catch (e) {
+    st.checksError = e instanceof UnreachableError ? null : e.message;
+  }
+  st.pending = await queue.list();
+  overlayPending();
+}
+app.loadChecks = loadChecks;
+
+/** Tick (or untick) an item: queue it on the device first, then try to send it. */
+app.tick = async (item, done, by) => {
+  const st = app.state;
+  await queue.add({ deployment_id: st.id, item_id: item.id, done, by, at: new Date().toISOString() });
+  st.pending = await queue.list();
+  overlayPending();
+  await saveView();
+  app.refresh();
+  await replay();
+};
+
+let replaying = null;
+async function replay() {
+  if (replaying) return replaying;
+  replaying = (async () => {
+    const { sent, failed, unreachable } = await queue.replay((e) => call(() => api.tick(e.deployment_id, e.item_id, e.body)));
+    app.state.pending = await queue.list();
+    for (const f of failed) showBanner(`A tick for "${f.entry.item_id}" was refused: ${f.error.message}`);
+    if (sent && !unreachable) await loadChecks();
+    app.refresh();
+  })();
+  try {
+    await replaying;
+  } finally {
+    replaying = null;
+  }
+}
+app.replay = replay;
+
+// ---------------------------------------------------------------- header controls and routing
+function go(section) {
+  app.state.section = SECTIONS[section] ? section : "site";
+  render();
+  window.scrollTo(0, 0);
+}
+
+function setNight(on) {
+  document.documentElement.classList.toggle("night", on);
+  const b = document.getElementById("night-toggle");
+  b.setAttribute("aria-pressed", String(on));
+  b.textContent = on ? "Day" : "Night";
+  document.querySelector('meta[name="theme-color"]').setAttribute("content", on ? "#1a0000" : "#1d4d3a");
+  try {
+    localStorage.setItem("fieldkit.night", on ? "1" : "0");
+  } catch {
+    /* ignore */
+  }
+}
+
+async function start() {
+  let night = false;
+  try {
+    night = localStorage.getItem("fieldkit.night") === "1";
+  } catch {
+    /* ignore */
+  }
+  setNight(night);
+  document.getElementById("night-toggle").addEventListener("click", () => setNight(!document.documentElement.classList.contains("night")));
+  document.getElementById("units-toggle").addEventListener("click", () => {
+    app.state.units = app.state.units === "imperial" ? "metric" : "imperial";
+    setUnits(app.state.units);
+    render();
+  });
+  document.getElementById("help-toggle").addEventListener("click", () => {
+    const help = document.getElementById("help");
+    help.hidden = !help.hidden;
+    document.getElementById("help-toggle").setAttribute("aria-expanded", String(!help.hidden));
+    if (!help.hidden) help.scrollIntoView();
+  });
+  document.getElementById("deployment-select").addEventListener("change", async (ev) => {
+    const v = ev.target.value;
+    if (v === "__new") {
+      app.state.dep = null;
+      app.state.id = null;
+      go("site");
+    } else await openDeployment(v);
+  });
+  window.addEventListener("hashchange", () => go(location.hash.slice(1)));
+  window.addEventListener("online", () => replay());
+  setInterval(() => {
+    if (app.state.pending.length) replay();
+  }, REPLAY_EVERY_MS);
+
+  if ("serviceWorker" in navigator && window.isSecureContext) {
+    navigator.serviceWorker.register("sw.js").catch((e) => console.warn("service worker not registered", e));
+  }
+  const params = new URLSearchParams(location.search);
+  app.state.section = SECTIONS[location.hash.slice(1)] ? location.hash.slice(1) : "site";
+  app.state.pending = await queue.list();
+  await loadList();
+  let last = params.get("deployment");
+  if (!last) {
+    try {
+      last = localStorage.getItem("fieldkit.last");
+    } catch {
+      last = null;
+    }
+  }
+  const first = app.state.deployments.find((d) => d.id === last) ?? app.state.deployments[0];
+  if (first) await openDeployment(first.id);
+  else render();
+  document.documentElement.dataset.ready = "1";
+  if (app.state.pending.length) replay();
+}
+
+start().catch((e) => showBanner(`The app could not start: ${e.message}`));

@@ -1,0 +1,175 @@
+// Wire: the ranked options; for the chosen one the cut list in big type, the trim steps, the SWR curve
+// from the model of the hung wire, and the re-trim from a measured SWR dip.
+
+import { ApiError } from "./api.js";
+import { clear, h, linePlot } from "./dom.js";
+import { numberField } from "./fields.js";
+import { legLengths } from "./shapes.js";
+import { formatLength, formatMHz } from "./units.js";
+
+const SWEEP_SPAN = 0.05; // ±5 % around the channel: wide enough to show the dip after a poor first cut
+const SWEEP_POINTS = 21;
+const TRIM_STEPS_KHZ = [10, 25, 50, 100, 200];
+
+/** Model spec of an option's hung wire, as ARCHITECTURE.md's model contract. */
+export function modelSpec(option, dep, extra = {}) {
+  const w = option.wire ?? dep.kit?.wire ?? {};
+  const wire = { points_m: option.hung_wire_m, diameter_mm: w.diameter_mm, conductor: w.conductor ?? "copper" };
+  if (w.insulation) wire.insulation = { thickness_mm: w.insulation.thickness_mm, relative_permittivity: w.insulation.relative_permittivity };
+  return { ground: dep.site.ground ?? "average", wires: [wire], feed: { wire: 0, distance_m: option.feed_distance_m }, power_w: dep.radio?.power_w ?? 100, ...extra };
+}
+
+/**
+ * Length change per leg for a resonance move from f to f + df: the resonant length of a dipole goes as
+ * 1/f to first order (common practice, e.g. the usual "cut long, trim by proportion" rule), so
+ * leg' = leg · f / (f + df).
+ */
+export function trimPerLeg(legM, fMHz, dfMHz) {
+  return legM - (legM * fMHz) / (fMHz + dfMHz);
+}
+
+export function chosen(app) {
+  return app.state.plan?.options?.[app.state.chosen] ?? null;
+}
+
+export function render(app, panel) {
+  const st = app.state;
+  clear(panel);
+  panel.append(h("h2", { text: "Wire — what to cut" }));
+  const options = st.plan?.options ?? [];
+  if (!options.length) {
+    panel.append(h("p", { class: "note warn", text: st.planError || "No plan yet: add the supports in Site." }));
+    return;
+  }
+  const list = h("ol", { class: "options", "data-testid": "options" });
+  options.forEach((o, i) => {
+    const b = h("button", { type: "button", class: `option ${i === st.chosen ? "current" : ""}`, "aria-pressed": String(i === st.chosen), "data-testid": `option-${i}` }, [
+      h("b", { text: `${i + 1}. ${o.form}, ${formatMHz(o.frequency_mhz)}` }),
+      h("span", { text: ` ${(o.supports_used ?? []).join("–")} · SWR ${Number.isFinite(o.swr) ? o.swr.toFixed(2) : "–"} · zenith ${Number.isFinite(o.nvis?.zenith_gain_dbi ?? o.zenith_gain_dbi) ? (o.nvis?.zenith_gain_dbi ?? o.zenith_gain_dbi).toFixed(1) : "–"} dBi` }),
+      o.safety && o.safety.raise_ok === false ? h("span", { class: "warn", text: " · not safe to raise" }) : null,
+    ]);
+    b.addEventListener("click", () => app.choose(i));
+    list.append(h("li", {}, [b]));
+  });
+  panel.append(h("h3", { text: "Options, best first" }), list);
+  if (st.chosen !== 0) panel.append(h("p", { class: "note", text: "You are viewing another option than the plan's first choice. The checks and the field card follow the first choice; change the antenna form in Site to make the plan choose this one." }));
+  const o = chosen(app);
+  panel.append(cutList(o, st.units));
+  for (const w of o.warnings ?? []) panel.append(h("p", { class: "note warn", text: typeof w === "string" ? w : w.text ?? JSON.stringify(w) }));
+  panel.append(trimTable(o, st.units));
+  const swrBox = h("div", { class: "card", "data-swr": "1" });
+  panel.append(swrBox);
+  panel.append(retrim(app, o));
+  drawSwr(app, o, swrBox);
+}
+
+export function refresh(app, panel) {
+  render(app, panel);
+}
+
+function cutList(o, units) {
+  const legs = legLengths(o);
+  const cut = o.cut ?? {};
+  const box = h("div", { class: "card cut-list", "data-testid": "cut-list" });
+  box.append(h("h3", { text: "Cut list" }));
+  const dl = h("dl", { class: "big-list" });
+  legs.forEach((leg, i) => dl.append(h("dt", { text: legs.length === 2 ? `Leg ${i === 0 ? "A" : "B"}` : `Piece ${i + 1}` }), h("dd", { "data-testid": `leg-${i}`, text: formatLength(leg, { units, digits: 2 }) })));
+  dl.append(h("dt", { text: "Wrap allowance (each end of a leg)" }), h("dd", { "data-testid": "wrap", text: formatLength(cut.wrap_allowance_m, { units, digits: 2 }) }));
+  if (Number.isFinite(cut.cut_each_leg_m)) dl.append(h("dt", { text: "Cut each leg" }), h("dd", { "data-testid": "cut-each", text: formatLength(cut.cut_each_leg_m, { units, digits: 2 }) }));
+  dl.append(h("dt", { text: "Total wire" }), h("dd", { class: "total", "data-testid": "total-wire", text: formatLength(cut.total_wire_m, { units, digits: 2 }) }));
+  box.append(dl);
+  box.append(h("p", { class: "hint", text: "A leg is feedpoint to end insulator (electrical length). Each piece is the leg plus a wrap allowance at both ends, folded back through the insulator and the feedpoint." }));
+  if (cut.cut_long_advice) box.append(h("p", { class: "note", text: `Advice: ${cut.cut_long_advice}.` }));
+  return box;
+}
+
+function trimTable(o, units) {
+  const legs = legLengths(o);
+  const leg = legs.length ? legs.reduce((a, b) => a + b, 0) / legs.length : NaN;
+  const box = h("div", { class: "card", "data-testid": "trim-table" });
+  box.append(h("h3", { text: "Trim steps" }));
+  const t = h("table", { class: "plain" });
+  t.append(h("thead", {}, [h("tr", {}, [h("th", { text: "Move the dip by" }), h("th", { text: "cut per leg (dip goes up)" }), h("th", { text: "add per leg (dip goes down)" })])]));
+  const tb = h("tbody");
+  const given = o.cut?.trim_steps;
+  let rows;
+  let source;
+  if (Array.isArray(given) && given.length) {
+    rows = given.map((r) => [r.shift_khz, r.cut_cm_per_leg_to_raise / 100, r.add_cm_per_leg_to_lower / 100]);
+    source = "From the model of the hung wire (its resonance moves by " + (o.cut.sensitivity_khz_per_cm ?? "–") + " kHz per cm of each leg).";
+  } else {
+    rows = TRIM_STEPS_KHZ.map((k) => [k, trimPerLeg(leg, o.frequency_mhz, k / 1000), -trimPerLeg(leg, o.frequency_mhz, -k / 1000)]);
+    source = "From length ∝ 1/frequency (common practice).";
+  }
+  for (const [khz, cutM, addM] of rows) tb.append(h("tr", {}, [h("td", { text: `${khz} kHz` }), h("td", { text: formatLength(cutM, { units, digits: 3 }) }), h("td", { text: formatLength(addM, { units, digits: 3 }) })]));
+  t.append(tb);
+  box.append(h("div", { class: "table-wrap" }, [t]), h("p", { class: "hint", text: `${source} Trim in small steps and measure again.` }));
+  return box;
+}
+
+async function drawSwr(app, o, box) {
+  const st = app.state;
+  const f0 = o.frequency_mhz;
+  const key = `swr:${st.planFor}:${st.chosen}`;
+  clear(box).append(h("h3", { text: "SWR across the channel" }), h("p", { class: "note", text: "Modelling the hung wire…" }));
+  let results = st.extra[key] ?? o.swr_curve?.points ?? o.cut?.swr_curve?.points;
+  if (!results) {
+    const freqs = Array.from({ length: SWEEP_POINTS }, (_, i) => +(f0 * (1 - SWEEP_SPAN + (2 * SWEEP_SPAN * i) / (SWEEP_POINTS - 1))).toFixed(5));
+    try {
+      const out = await app.call(() => app.api.model(modelSpec(o, st.dep, { frequencies_mhz: freqs })));
+      results = out.results;
+      st.extra[key] = results;
+    } catch (e) {
+      clear(box).append(h("h3", { text: "SWR across the channel" }), h("p", { class: "note warn", text: `The SWR curve needs the service: ${e instanceof ApiError ? e.message : e.message}` }));
+      return;
+    }
+  }
+  const pts = results.map((r) => [r.frequency_mhz, Math.min(r.swr, 10)]);
+  const minPt = pts.reduce((a, b) => (b[1] < a[1] ? b : a));
+  const ymax = Math.min(10, Math.max(3, Math.ceil(Math.max(...pts.map((p) => p[1])))));
+  const measured = st.extra.dipMHz;
+  const plot = linePlot({
+    title: `SWR (${o.feedline?.reference_impedance_ohm ?? 50} Ω) at the feedpoint`,
+    testid: "swr-plot",
+    x: { min: pts[0][0], max: pts.at(-1)[0], label: "frequency (MHz)" },
+    y: { min: 1, max: ymax, label: "SWR" },
+    series: [{ points: pts, cls: "series" }],
+    hlines: [{ y: 2, cls: "limit", label: "2:1" }],
+    vlines: [{ x: f0, cls: "mark", label: `channel ${f0}` }, ...(Number.isFinite(measured) ? [{ x: measured, cls: "measured", label: `measured ${measured}`, row: 1 }] : [])],
+    points: [{ x: minPt[0], y: minPt[1], label: `dip ${minPt[0].toFixed(3)}`, cls: "dot" }],
+  });
+  clear(box).append(h("h3", { text: "SWR across the channel" }), plot, h("p", { class: "hint", text: `Model of the wire as it hangs, over ${st.dep.site.ground} ground, without the coax. Dip at ${minPt[0].toFixed(3)} MHz, SWR ${minPt[1].toFixed(2)}.` }));
+}
+
+function retrim(app, o) {
+  const st = app.state;
+  const legs = legLengths(o);
+  const leg = legs.length ? legs.reduce((a, b) => a + b, 0) / legs.length : NaN;
+  const box = h("div", { class: "card", "data-testid": "retrim" });
+  box.append(h("h3", { text: "Re-trim after raising" }));
+  box.append(h("p", { class: "hint", text: "Measure the SWR across the channel with a low-power analyser at the feedpoint or through the coax, and type the frequency of the lowest SWR." }));
+  const out = h("p", { class: "result big-result", "data-testid": "retrim-result", text: "—" });
+  const show = (dip) => {
+    st.extra.dipMHz = dip;
+    let change;
+    const sensKhzPerCm = o.cut?.sensitivity_khz_per_cm;
+    const fModel = o.cut?.model_resonance_mhz;
+    if (Number.isFinite(sensKhzPerCm) && sensKhzPerCm > 0 && Number.isFinite(fModel)) {
+      // The real wire resonates k = f_dip / f_model times the model; move the model's resonance to
+      // target / k along the engine's sensitivity (same rule as fieldkit.rigging.cut.retrim).
+      const sensMHzPerM = -sensKhzPerCm * 0.1; // kHz/cm -> MHz/m; longer wire, lower frequency
+      const k = dip / fModel;
+      change = -((o.frequency_mhz / k - fModel) / sensMHzPerM);
+    } else {
+      // length ∝ 1/f: new leg = leg · f_dip / f_target (common practice)
+      change = leg - (leg * dip) / o.frequency_mhz;
+    }
+    if (Math.abs(change) < 0.005) out.textContent = "The dip is on the channel: leave the wire as it is.";
+    else if (change > 0) out.textContent = `Cut ${formatLength(change, { units: st.units, digits: 2 })} from each leg (dip is low: wire too long).`;
+    else out.textContent = `Add ${formatLength(-change, { units: st.units, digits: 2 })} to each leg (dip is high: wire too short).`;
+  };
+  box.append(numberField({ label: "Measured dip (MHz)", value: st.extra.dipMHz ?? "", min: o.frequency_mhz * 0.7, max: o.frequency_mhz * 1.3, what: "a frequency in MHz near the channel", testid: "dip", fieldPath: "retrim.dip_mhz", onValid: show }));
+  box.append(out);
+  if (Number.isFinite(st.extra.dipMHz)) show(st.extra.dipMHz);
+  return box;
+}
