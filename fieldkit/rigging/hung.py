@@ -249,3 +249,49 @@ def hang_inverted_v(
         top_load_n=top_load,
         stake_distance_m=stake,
     )
+
+
+def _cut_polyline(points: np.ndarray, length_m: float) -> np.ndarray:
+    """The first ``length_m`` of a polyline."""
+    out = [points[0]]
+    left = length_m
+    for p, q in zip(points[:-1], points[1:], strict=True):
+        d = float(np.linalg.norm(q - p))
+        if d >= left - 1e-12:
+            out.append(p + (q - p) * (left / d))
+            return np.array(out)
+        out.append(q)
+        left -= d
+    return np.array(out)
+
+
+def truncate_about_feed(hung: HungDipole, leg_m: float) -> HungDipole:
+    """The inner part of a hung dipole, ``leg_m`` either side of the feedpoint along the wire.
+
+    Used for a linked dipole with its links open: the whole wire still hangs in the same shape, only
+    the part inside the open links is driven. The sections beyond the open links are left out of the
+    model (see linked.py).
+    """
+    pts = np.asarray(hung.points_m)
+    seg = np.linalg.norm(np.diff(pts, axis=0), axis=1)
+    cum = np.concatenate([[0.0], np.cumsum(seg)])
+    k = int(np.argmin(np.abs(cum - hung.feed_distance_m)))
+    left = _cut_polyline(pts[: k + 1][::-1], leg_m)[::-1]
+    right = _cut_polyline(pts[k:], leg_m)
+    new = np.vstack([left, right[1:]])
+    return HungDipole(
+        points_m=new,
+        feed_distance_m=_polyline_length(left),
+        feedpoint_height_m=hung.feedpoint_height_m,
+        end_heights_m=(float(new[0, 2]), float(new[-1, 2])),
+        sag_m=hung.sag_m,
+        span_rope_m=hung.span_rope_m,
+        tail_m=hung.tail_m,
+        horizontal_tension_n=hung.horizontal_tension_n,
+        end_tension_n=hung.end_tension_n,
+        support_vertical_n=hung.support_vertical_n,
+        apex_angle_deg=hung.apex_angle_deg,
+        top_load_n=hung.top_load_n,
+        stake_distance_m=hung.stake_distance_m,
+        notes=hung.notes,
+    )

@@ -1,0 +1,211 @@
+"""The one entry point that composes the layers: ``plan(spec) -> dict`` (the `fieldkit plan` contract).
+
+site + kit + channels → every layout the site allows (pairs of safe supports flat or sloping, an
+inverted-V on each kit mast) × every channel → resonance, height sweep, cut list, SWR, mast, feedline
+from the engine (:mod:`fieldkit.rigging`) → the safety block of each option (:mod:`fieldkit.safety`)
+→ options best first. An option whose safety block says ``raise_ok: false`` is never first.
+"""
+
+from __future__ import annotations
+
+import time
+from typing import Any
+
+from fieldkit.errors import InputError
+from fieldkit.planning.inputs import PlanInput, parse_plan
+from fieldkit.rigging.cut import EngineCounter, retrim
+from fieldkit.rigging.layouts import inverted_v_layouts, span_layouts
+from fieldkit.rigging.linked import linked_option
+from fieldkit.rigging.options import Refusal, Warm, finish, screen
+
+FORMS = ("flat", "inverted-v", "sloping", "linked", "auto")
+MAX_OPTIONS = 8  # options returned in full, best first (the rest are listed in "more")
+MAX_SAFETY_CHECKS = 16  # safety blocks computed while looking for a raisable first option
+
+__all__ = ["FORMS", "plan"]
+
+
+def _safety(
+    option: dict[str, Any], spec: dict[str, Any], inp: PlanInput
+) -> tuple[dict | None, str | None]:
+    try:
+        from fieldkit.safety import safety_block
+    except ImportError:
+        return (
+            None,
+            "safety checks are not available in this build: do not raise without a manual check",
+        )
+    block = safety_block(
+        option={k: v for k, v in option.items() if not k.startswith("_")},
+        site=spec["site"],
+        radio=spec["radio"],
+        ground=inp.kit.ground,
+        limit_set=inp.limit_set,
+    )
+    return block, None
+
+
+def plan(spec: dict) -> dict:
+    """Plan the cut and the hang for a site, a kit and channels.
+
+    Parameters
+    ----------
+    spec : dict
+        The plan input of ARCHITECTURE.md (site, channels_mhz, form, kit, radio, optional sky,
+        schedule, name, limit_set, retrim).
+
+    Returns
+    -------
+    dict
+        ``options`` best first (each with the contract fields, ``safety`` included), ``refused`` (what
+        could not be done and why), ``warnings``, ``engine`` (cost figures).
+
+    Raises
+    ------
+    fieldkit.errors.InputError
+        For bad input, and when nothing at all can be hung (the message says why and what to change).
+    """
+    t0 = time.perf_counter()
+    inp = parse_plan(spec)
+    engine = EngineCounter()
+    warm = Warm({})
+    layouts = []
+    span_forms = (
+        {"flat", "sloping"} if inp.form in ("auto", "linked") else {inp.form} & {"flat", "sloping"}
+    )
+    if span_forms:
+        layouts += span_layouts(inp.supports, inp.kit.mech, forms=span_forms)
+    if inp.form in ("auto", "inverted-v"):
+        layouts += inverted_v_layouts(inp.supports, inp.masts, inp.kit.mech, site_xy=inp.mast_xy)
+    options: list[dict[str, Any]] = []
+    refused: list[dict[str, Any]] = []
+    warnings: list[str] = list(inp.warnings)
+    if not layouts:
+        raise InputError(
+            "site.supports",
+            _no_layout_reason(inp),
+        )
+    channels = sorted(inp.channels_hz)
+    if inp.form == "linked":
+        got = linked_option(layouts, channels, kit=inp.kit, engine=engine, warm=warm)
+        refused.extend(got["refused"])
+        candidates = [(o["score_db"], o) for o in got["options"]]
+    else:
+        candidates = []
+        for f in channels:
+            for lay in layouts:
+                try:
+                    sc = screen(lay, frequency_hz=f, kit=inp.kit, engine=engine, warm=warm)
+                    candidates.append((sc.score_db, sc))
+                except Refusal as e:
+                    refused.append(_refusal(lay, f, e))
+    if not candidates:
+        whys = "; ".join(sorted({r["why"] for r in refused}))
+        raise InputError("site", f"nothing can be hung with this site and kit: {whys}")
+    candidates.sort(key=lambda c: -c[0])
+    # the exact cut, SWR curve and safety block only for the best few, in screened order, until
+    # MAX_OPTIONS are in hand and at least one of them may be raised
+    tried = 0
+    rest = []
+    for _score, cand in candidates:
+        have_ok = any((o["safety"] or {}).get("raise_ok") for o in options)
+        if (len(options) >= MAX_OPTIONS and have_ok) or tried >= MAX_SAFETY_CHECKS:
+            rest.append(cand)
+            continue
+        tried += 1
+        if isinstance(cand, dict):
+            opt = cand
+        else:
+            try:
+                opt = finish(cand, kit=inp.kit, engine=engine, warm=warm)
+            except Refusal as e:
+                refused.append(_refusal(cand.layout, cand.frequency_hz, e))
+                continue
+        block, note = _safety(opt, spec, inp)
+        opt["safety"] = block
+        if note:
+            opt["warnings"].append(note)
+        if block is not None and not block.get("raise_ok", False):
+            reasons = block.get("reasons") or ["a safety check fails"]
+            opt["warnings"].insert(
+                0, "do not raise as planned: " + "; ".join(str(r) for r in reasons)
+            )
+        options.append(opt)
+    # never first when it may not be raised; then by score
+    options.sort(key=lambda o: (not (o["safety"] or {}).get("raise_ok", False), -o["score_db"]))
+    shown = options[:MAX_OPTIONS]
+    more = [_summary(o) for o in options[MAX_OPTIONS:]] + [_summary(c) for c in rest]
+    if inp.retrim is not None:
+        _attach_retrim(shown, inp)
+    for opt in options:
+        opt.pop("_resonance", None)
+    return {
+        "name": inp.name,
+        "options": shown,
+        "more": more,
+        "refused": refused,
+        "warnings": warnings,
+        "ranking": (
+            "score = mean NVIS gain over 0–300 km elevations minus feedline loss; options that fail a "
+            "safety check come after all others"
+        ),
+        "engine": {
+            "solve_calls": engine.calls,
+            "frequencies_solved": engine.frequencies,
+            "total_seconds": round(time.perf_counter() - t0, 3),
+        },
+    }
+
+
+def _summary(c) -> dict[str, Any]:
+    """One line for an option not shown in full."""
+    if isinstance(c, dict):
+        form, f, used, score = c["form"], c["frequency_mhz"], c["supports_used"], c["score_db"]
+    else:
+        form, f, used, score = (
+            c.layout.form,
+            round(c.frequency_hz / 1e6, 6),
+            list(c.layout.supports_used),
+            c.score_db,
+        )
+    return {
+        "form": form,
+        "frequency_mhz": f,
+        "supports_used": used,
+        "score_db": round(score, 2),
+        "note": "not worked out in full; ask for this form and channel alone to see its cut list and checks",
+    }
+
+
+def _refusal(layout, f: float, e: Exception) -> dict[str, Any]:
+    return {
+        "form": layout.form,
+        "supports_used": list(layout.supports_used),
+        "frequency_mhz": round(f / 1e6, 6),
+        "why": str(e),
+    }
+
+
+def _attach_retrim(options: list[dict[str, Any]], inp: PlanInput) -> None:
+    r = inp.retrim
+    for opt in options:
+        if abs(opt["frequency_mhz"] * 1e6 - r["target_hz"]) > 1.0 or opt["form"] != r.get(
+            "form", opt["form"]
+        ):
+            continue
+        opt["retrim"] = retrim(
+            opt["_resonance"],
+            target_hz=r["target_hz"],
+            leg_now_m=r.get("leg_now_m"),
+            dip_hz=r.get("dip_hz"),
+            measured_at_hz=r.get("at_hz"),
+            measured_r_ohm=r.get("r_ohm"),
+            measured_x_ohm=r.get("x_ohm"),
+        )
+
+
+def _no_layout_reason(inp: PlanInput) -> str:
+    safe = [s for s in inp.supports if not s.unsafe]
+    if len(safe) < 2 and not inp.masts:
+        return "need at least two safe supports, or a mast in kit.masts for an inverted-V"
+    return "the supports are too low: every rope height is under the 3 m minimum end height"

@@ -1,0 +1,1 @@
+"""Helpers of fieldkit.plan: input validation."""

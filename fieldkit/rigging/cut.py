@@ -1,0 +1,341 @@
+"""Cut list: the leg length that makes the HUNG dipole resonate at the channel, found with the engine.
+
+Resonance is found on the wire as it will hang (sag, droop, apex), with the kit wire (diameter,
+conductor, jacket) over the site's ground: the engine gives X(f) at the channel and just above it; a
+Newton step on log length (X(f) slope → shift of resonance) and then secant steps on the resonant
+frequency versus leg length converge in two or three engine calls. The same secant gives the trim
+step (how far resonance moves per centimetre of leg).
+
+References
+----------
+.. [1] The half-wave rule of thumb 143/f (m, f in MHz) — 468/f in feet — is common practice in amateur
+   handbooks; it assumes a bare wire far from ground. It is shown beside the engine's answer only.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from fieldkit.rigging.hung import HungDipole
+from fieldkit.rigging.wire import KitWire
+
+SPEED_OF_LIGHT_M_S = 299_792_458.0  # exact, SI definition of the metre
+RULE_OF_THUMB_M_MHZ = 143.0  # half-wave ≈ 143/f m (468/f ft): common practice, not a physical law
+# Wrap allowance: wire folded back and twisted at each end insulator and at the feedpoint, per end of
+# each leg; 15 cm (about 6 in) is the usual figure (common practice, no single source).
+WRAP_ALLOWANCE_M = 0.15
+# Cut long by the length that moves resonance down by about 3 %: nearby trees, the real ground and
+# the coax usually lower resonance by a percent or two against a model, and wire cannot be added back
+# in the field; fold the spare back at the end insulator until the SWR dip is measured (common practice).
+CUT_LONG_FRACTION = 0.03
+STEP_FRACTION = 0.01  # second frequency 1 % above the channel, for the slope of X(f)
+RESONANCE_TOLERANCE = 2e-4  # converge the model resonance to 0.02 % of the channel
+
+
+class ResonanceError(ValueError):
+    """No half-wave resonance near the channel for this hang."""
+
+
+Builder = Callable[[float], HungDipole]  # leg length [m] -> hung dipole
+
+
+def antenna_for(hung: HungDipole, wire: KitWire):
+    """Engine antenna for a hung dipole: one polyline wire, fed at the feedpoint vertex."""
+    from fieldkit.antenna import Antenna, Feed, Insulation, Wire
+
+    insulation = None
+    if wire.insulation_thickness_m > 0:
+        insulation = Insulation(
+            thickness_m=wire.insulation_thickness_m,
+            relative_permittivity=wire.insulation_permittivity,
+        )
+    w = Wire(
+        points_m=np.asarray(hung.points_m, dtype=float),
+        radius_m=wire.diameter_m / 2,
+        conductor=wire.conductor,
+        insulation=insulation,
+    )
+    return Antenna(wires=(w,), feed=Feed(wire=0, distance_m=hung.feed_distance_m))
+
+
+class EngineCounter:
+    """Counts engine frequency-solves (the plan's cost budget)."""
+
+    def __init__(self) -> None:
+        self.calls = 0
+        self.frequencies = 0
+
+    def solve(self, hung: HungDipole, wire: KitWire, *, frequencies_hz, ground) -> list:
+        from fieldkit.antenna import solve
+
+        freqs = [float(f) for f in frequencies_hz]
+        self.calls += 1
+        self.frequencies += len(freqs)
+        return solve(antenna_for(hung, wire), frequencies_hz=freqs, ground=ground)
+
+
+@dataclass(frozen=True)
+class Resonance:
+    """A leg length that resonates the hung dipole at the channel.
+
+    Attributes
+    ----------
+    leg_m : electrical leg length [m]
+    hung : the hung dipole at that length
+    solution : engine solution at the channel
+    resonant_frequency_hz : the model's resonance at ``leg_m`` [Hz]
+    dfres_dleg_hz_per_m : how resonance moves per metre added to each leg (negative) [Hz/m]
+    dx_df_ohm_per_hz : slope of the feed reactance at the channel [Ω/Hz]
+    iterations : engine calls used
+    """
+
+    leg_m: float
+    hung: HungDipole
+    solution: Any
+    resonant_frequency_hz: float
+    dfres_dleg_hz_per_m: float
+    dx_df_ohm_per_hz: float
+    iterations: int
+    step_solution: Any = None
+
+
+def _resonance_at(
+    engine: EngineCounter, hung: HungDipole, wire: KitWire, f: float, ground
+) -> tuple[float, float, tuple[Any, Any]]:
+    sols = engine.solve(hung, wire, frequencies_hz=[f, f * (1 + STEP_FRACTION)], ground=ground)
+    x0, x1 = sols[0].impedance_ohm.imag, sols[1].impedance_ohm.imag
+    slope = (x1 - x0) / (f * STEP_FRACTION)
+    if slope <= 0:
+        raise ResonanceError(
+            "reactance does not rise with frequency here: not near a half-wave resonance"
+        )
+    return f - x0 / slope, slope, (sols[0], sols[1])
+
+
+def resonate(
+    build: Builder,
+    *,
+    engine: EngineCounter,
+    wire: KitWire,
+    ground,
+    frequency_hz: float,
+    leg_guess_m: float,
+    sensitivity_guess_hz_per_m: float | None = None,
+    max_iterations: int = 6,
+) -> Resonance:
+    """Find the leg length whose hung dipole resonates (X = 0) at ``frequency_hz``.
+
+    Parameters
+    ----------
+    build : leg length [m] -> hung dipole (the shape depends on the length)
+    engine : the counted engine
+    wire : kit wire
+    ground : engine ground
+    frequency_hz : the channel [Hz]
+    leg_guess_m : first guess [m]
+    sensitivity_guess_hz_per_m : df_res/dL from a similar solve, to skip the first Newton step [Hz/m]
+    """
+    f = frequency_hz
+    leg0 = leg_guess_m
+    hung0 = build(leg0)
+    fr0, slope0, sol0 = _resonance_at(engine, hung0, wire, f, ground)
+    if abs(fr0 - f) / f < RESONANCE_TOLERANCE and sensitivity_guess_hz_per_m is not None:
+        return Resonance(leg0, hung0, sol0[0], fr0, sensitivity_guess_hz_per_m, slope0, 1, sol0[1])
+    # first step: resonance scales about inversely with length (f·L ≈ const for a thin dipole)
+    leg1 = leg0 * fr0 / f
+    if sensitivity_guess_hz_per_m is not None:
+        leg1 = leg0 + (f - fr0) / sensitivity_guess_hz_per_m
+    hist = [(leg0, fr0, slope0, sol0, hung0)]
+    for it in range(2, max_iterations + 1):
+        hung1 = build(leg1)
+        fr1, slope1, sol1 = _resonance_at(engine, hung1, wire, f, ground)
+        hist.append((leg1, fr1, slope1, sol1, hung1))
+        (la, fa, *_), (lb, fb, *_) = hist[-2], hist[-1]
+        sens = (fb - fa) / (lb - la) if lb != la else -fb / lb
+        if sens >= 0:
+            sens = -fb / lb  # fall back to the thin-dipole scaling
+        if abs(fr1 - f) / f < RESONANCE_TOLERANCE:
+            return Resonance(leg1, hung1, sol1[0], fr1, sens, slope1, it, sol1[1])
+        leg1 = lb + (f - fb) / sens
+    raise ResonanceError(
+        f"resonance at {f / 1e6:.4f} MHz not found in {max_iterations} engine calls "
+        f"(last {hist[-1][1] / 1e6:.4f} MHz at {hist[-1][0]:.2f} m per leg)"
+    )
+
+
+def rule_of_thumb_leg_m(frequency_hz: float) -> float:
+    """Leg from the common 143/f half-wave rule (common practice, marked as such) [m]."""
+    return RULE_OF_THUMB_M_MHZ / (frequency_hz / 1e6) / 2
+
+
+CURVE_OFFSETS = (
+    -0.04,
+    -0.02,
+    0.025,
+    0.04,
+)  # added to the channel and +1 % the resonance search solved
+
+
+def swr_curve(res: Resonance, *, engine: EngineCounter, wire: KitWire, ground) -> dict[str, Any]:
+    """SWR from −4 % to +4 % around the channel at the cut length, and the 2:1 bandwidth [kHz]."""
+    f0 = res.solution.frequency_hz
+    span_fraction = max(abs(o) for o in CURVE_OFFSETS)
+    new = engine.solve(
+        res.hung, wire, frequencies_hz=[f0 * (1 + o) for o in CURVE_OFFSETS], ground=ground
+    )
+    sols = sorted([*new, res.solution, res.step_solution], key=lambda s: s.frequency_hz)
+    freqs = np.array([s.frequency_hz for s in sols])
+    swr = np.array([s.swr for s in sols])
+    fine = np.linspace(freqs[0], freqs[-1], 401)
+    # interpolate SWR through the reflection magnitude, which is smooth across the dip
+    gam = (swr - 1) / (swr + 1)
+    g = np.interp(fine, freqs, gam)
+    swr_fine = (1 + g) / (1 - g)
+    inside = swr_fine <= 2.0
+    if inside.any():
+        idx = np.flatnonzero(inside)
+        lo, hi = fine[idx[0]], fine[idx[-1]]
+        edge = idx[0] == 0 or idx[-1] == len(fine) - 1
+        bw = {
+            "low_mhz": round(lo / 1e6, 4),
+            "high_mhz": round(hi / 1e6, 4),
+            "width_khz": round((hi - lo) / 1e3, 1),
+        }
+        if edge:
+            bw["note"] = (
+                f"SWR stays under 2 beyond ±{span_fraction * 100:.0f} %: the width is at least this"
+            )
+    else:
+        bw = {
+            "low_mhz": None,
+            "high_mhz": None,
+            "width_khz": 0.0,
+            "note": "SWR never falls to 2 near the channel",
+        }
+    return {
+        "points": [
+            {"frequency_mhz": round(f / 1e6, 5), "swr": round(float(s), 3)}
+            for f, s in zip(freqs, swr, strict=True)
+        ],
+        "bandwidth_2to1": bw,
+    }
+
+
+def cut_json(
+    res: Resonance,
+    *,
+    frequency_hz: float,
+    wire: KitWire,
+    wrap_allowance_m: float = WRAP_ALLOWANCE_M,
+) -> dict[str, Any]:
+    """The option's cut block: per-leg lengths, wrap, cut-long spare, rule of thumb, trim steps."""
+    leg = res.leg_m
+    wrap = wrap_allowance_m
+    spare = CUT_LONG_FRACTION * leg
+    rule = rule_of_thumb_leg_m(frequency_hz)
+    diff = (leg - rule) / rule * 100
+    sens = res.dfres_dleg_hz_per_m  # Hz per metre, negative
+
+    def step_cm(shift_hz: float) -> float:
+        return round(-shift_hz / sens * 100, 1)
+
+    return {
+        "leg_m": [round(leg, 3), round(leg, 3)],
+        "wrap_allowance_m": wrap,
+        "wrap_note": "per end of each leg: at the end insulator and at the feedpoint (common practice)",
+        "cut_each_leg_m": round(leg + 2 * wrap, 3),
+        "total_wire_m": round(2 * (leg + 2 * wrap), 3),
+        "cut_long_m": round(spare, 3),
+        "cut_long_advice": (
+            f"cut each leg {spare * 100:.0f} cm long ({leg + 2 * wrap + spare:.2f} m) and fold the spare back at "
+            "the end insulator: nearby trees, the real soil and the coax usually pull resonance a percent or "
+            "two below any model, and wire cannot be added back in the field; trim after the first SWR check"
+        ),
+        "cut_with_spare_total_m": round(2 * (leg + 2 * wrap + spare), 3),
+        "rule_of_thumb": {
+            "leg_m": round(rule, 3),
+            "rule": "143/f MHz metres per half-wave (468/f feet), common practice",
+            "difference_percent": round(diff, 2),
+            "why": (
+                "the rule assumes bare wire well clear of the ground; this wire "
+                + (
+                    "is jacketed (the jacket slows the wave, so the wire resonates shorter), "
+                    if wire.insulation_thickness_m > 0
+                    else ""
+                )
+                + "hangs low over real ground with sag, which the engine includes"
+            ),
+        },
+        "model_resonance_mhz": round(res.resonant_frequency_hz / 1e6, 5),
+        "trim_steps": [
+            {
+                "shift_khz": 10,
+                "cut_cm_per_leg_to_raise": step_cm(10e3),
+                "add_cm_per_leg_to_lower": step_cm(10e3),
+            },
+            {
+                "shift_khz": 100,
+                "cut_cm_per_leg_to_raise": step_cm(100e3),
+                "add_cm_per_leg_to_lower": step_cm(100e3),
+            },
+        ],
+        "sensitivity_khz_per_cm": round(-sens / 1e5, 3),
+    }
+
+
+def retrim(
+    res: Resonance,
+    *,
+    target_hz: float,
+    leg_now_m: float | None = None,
+    dip_hz: float | None = None,
+    measured_at_hz: float | None = None,
+    measured_r_ohm: float | None = None,
+    measured_x_ohm: float | None = None,
+) -> dict[str, Any]:
+    """How much to cut (or add) per leg after raising, from a measured SWR dip or R+jX.
+
+    The real antenna's resonance differs from the model by a factor k = f_dip / f_model(leg now); the
+    new leg makes the model resonate at target/k, moved along the engine's sensitivity.
+    With R+jX measured at f_a, the dip is estimated as f_a − X/(dX/df) with the engine's slope.
+    """
+    leg_now = res.leg_m if leg_now_m is None else leg_now_m
+    sens = res.dfres_dleg_hz_per_m
+    f_model_now = res.resonant_frequency_hz + (leg_now - res.leg_m) * sens
+    if dip_hz is None:
+        if measured_at_hz is None or measured_x_ohm is None:
+            raise ValueError("give the dip frequency, or R and X at a frequency")
+        dip_hz = measured_at_hz - measured_x_ohm / res.dx_df_ohm_per_hz
+    k = dip_hz / f_model_now
+    new_leg = leg_now + (target_hz / k - f_model_now) / sens
+    change = new_leg - leg_now
+    verb = "cut" if change < 0 else "add"
+    out = {
+        "measured_dip_mhz": round(dip_hz / 1e6, 5),
+        "target_mhz": round(target_hz / 1e6, 5),
+        "leg_now_m": round(leg_now, 3),
+        "new_leg_m": round(new_leg, 3),
+        "change_cm_per_leg": round(change * 100, 1),
+        "advice": f"{verb} {abs(change) * 100:.0f} cm from each leg (both legs the same)",
+    }
+    if measured_r_ohm is not None:
+        out["measured_r_ohm"] = measured_r_ohm
+    if change > 0:
+        out["advice"] += "; unfold spare wire at the end insulators, or splice in wire and re-check"
+    return out
+
+
+def leg_fits_spool(total_wire_m: float, spool_m: float | None) -> str | None:
+    """A warning when the spool cannot give the wire, else None."""
+    if spool_m is not None and total_wire_m > spool_m:
+        return f"the dipole needs {total_wire_m:.1f} m of wire but the spool holds {spool_m:g} m"
+    return None
+
+
+def wavelength_m(frequency_hz: float) -> float:
+    """Free-space wavelength [m]."""
+    return SPEED_OF_LIGHT_M_S / frequency_hz
