@@ -40,17 +40,21 @@ PERSON_HEIGHT_M = 1.8
 #: Closer than this to the wire a point counts as touching it [m].
 CONTACT_M = 0.1
 #: Ray sample spacing [m], first reach of the rays [m] and the furthest they grow to [m].
-RAY_STEP_M = 0.25
+RAY_STEP_M = 0.5
 RAY_START_M = 6.0
 RAY_MAX_M = 96.0
 #: Refinement samples between the last coarse sample over the limit and the next one.
-REFINE = 8
+REFINE = 6
+#: Screening: each line is first sampled at its foot and this far out [m]; it is followed further when
+#: over the limit there, or rising outward above this share of the limit.
+SCREEN_STEP_M = 0.5
+SCREEN_RATIO = 0.25
 #: Vertical lines above and below each wire end: spacing and first reach [m].
-END_STEP_M = 0.1
+END_STEP_M = 0.2
 END_START_M = 8.0
 #: Stations along the wire: at most this spacing [m] and at most this many stations.
-STATION_STEP_M = 1.0
-MAX_STATIONS = 48
+STATION_STEP_M = 1.5
+MAX_STATIONS = 32
 #: Rays in the fan around each wire end (between the two side rays).
 FAN_RAYS = 7
 
@@ -168,6 +172,124 @@ def _crossing(d0: np.ndarray, d1: np.ndarray, r0: np.ndarray, r1: np.ndarray) ->
     return d0 + np.clip(t, 0.0, 1.0) * (d1 - d0)
 
 
+@dataclass(frozen=True)
+class _Lines:
+    boundary: np.ndarray  # (rays, heights) distance along the ray where the ratio falls to 1 [m]
+    inside: np.ndarray  # (rays, heights) the ray starts inside a zone at that height
+    max_ratio: float
+    max_point_m: np.ndarray
+    touching: bool
+    beyond: bool
+
+
+def _boundaries(
+    ev: _Evaluator, origins: np.ndarray, dirs: np.ndarray, heights: np.ndarray
+) -> _Lines:
+    """Zone boundary along every (ray, height) line: screen, sample, refine."""
+    n_rays, n_h = len(origins), len(heights)
+    ray = np.repeat(np.arange(n_rays), n_h)
+    z = np.tile(heights, n_rays)
+    best = {"ratio": -1.0, "point": origins[0]}
+    touching = False
+
+    def run(idx: np.ndarray, dist: np.ndarray) -> np.ndarray:
+        nonlocal touching
+        xy = origins[ray[idx], None, :] + dist[..., None] * dirs[ray[idx], None, :]
+        pts = np.concatenate([xy, np.broadcast_to(z[idx, None], dist.shape)[..., None]], axis=-1)
+        r, t = ev(pts)
+        touching |= bool(t.any())
+        finite = np.where(np.isfinite(r), r, -1.0)
+        k = int(np.argmax(finite))
+        if finite.size and finite.flat[k] > best["ratio"]:
+            best["ratio"], best["point"] = float(finite.flat[k]), pts.reshape(-1, 3)[k]
+        return r
+
+    # screening: the foot of each line and one step out; lines below the limit there and falling
+    # away from the wire are outside every zone (the fields of a wire fall off away from it)
+    every = np.arange(n_rays * n_h)
+    r1 = run(every, np.broadcast_to(np.array([0.0, SCREEN_STEP_M]), (len(every), 2)))
+    active = (r1.max(axis=1) >= 1.0) | ((r1[:, 1] > r1[:, 0]) & (r1[:, 1] >= SCREEN_RATIO))
+    boundary = np.zeros(len(every))
+    inside = np.zeros(len(every), dtype=bool)
+    beyond_any = False
+    idx = np.nonzero(active)[0]
+    if len(idx):
+        reach = RAY_START_M
+        while True:
+            n = int(round(reach / RAY_STEP_M)) + 1
+            dist = np.broadcast_to(np.arange(n) * RAY_STEP_M, (len(idx), n))
+            r = run(idx, dist)
+            last = _last_over(r)
+            beyond = last == n - 1
+            if not beyond.any() or reach >= RAY_MAX_M:
+                break
+            reach = min(RAY_MAX_M, 2 * reach)
+        beyond_any = bool(beyond.any())
+        ins = last >= 0
+        inside[idx[ins]] = True
+        boundary[idx[beyond]] = reach
+        rows = np.nonzero(ins & ~beyond)[0]
+        if len(rows):
+            frac = np.arange(REFINE + 2) / (REFINE + 1)
+            fine_d = dist[rows, last[rows]][:, None] + frac[None, :] * RAY_STEP_M
+            r_inner = run(idx[rows], fine_d[:, 1:-1])
+            r_fine = np.concatenate(
+                [r[rows, last[rows]][:, None], r_inner, r[rows, last[rows] + 1][:, None]], axis=1
+            )
+            j = _last_over(r_fine)
+            jj = np.arange(len(rows))
+            boundary[idx[rows]] = _crossing(
+                fine_d[jj, j], fine_d[jj, j + 1], r_fine[jj, j], r_fine[jj, j + 1]
+            )
+    return _Lines(
+        boundary=boundary.reshape(n_rays, n_h),
+        inside=inside.reshape(n_rays, n_h),
+        max_ratio=best["ratio"],
+        max_point_m=np.asarray(best["point"]),
+        touching=touching,
+        beyond=beyond_any,
+    )
+
+
+def _end_separation(ev: _Evaluator, end_m: np.ndarray) -> float:
+    """Distance below a wire end at which the exposure ratio falls to 1 [m].
+
+    Sampled straight down from the end to the ground; past a point on the wire the line is under
+    another part of the antenna and stops. When the zone still reaches the ground, the line goes on
+    above the end to the same distance (the end's field moves with it when the end is raised: an
+    extrapolation, reported as such).
+    """
+    s = np.arange(CONTACT_M + END_STEP_M / 2, END_START_M + 1e-9, END_STEP_M)
+    below = s[end_m[2] - s > 0.05]
+    pts = np.column_stack(
+        [np.full_like(below, end_m[0]), np.full_like(below, end_m[1]), end_m[2] - below]
+    )
+    r, touch = ev(pts) if len(below) else (np.zeros(0), np.zeros(0, bool))
+    r = np.where(np.logical_or.accumulate(touch), 0.0, r)
+    if len(r) and r[-1] < 1.0 or len(below) and np.logical_or.accumulate(touch)[-1]:
+        samples, ratio = below, r
+    else:
+        span = END_START_M
+        while True:
+            s = np.arange(CONTACT_M + END_STEP_M / 2, span + 1e-9, END_STEP_M)
+            up = s[len(below) :]
+            pts = np.column_stack(
+                [np.full_like(up, end_m[0]), np.full_like(up, end_m[1]), end_m[2] + up]
+            )
+            r_up, t_up = ev(pts)
+            samples = s
+            ratio = np.concatenate([r, np.where(np.logical_or.accumulate(t_up), 0.0, r_up)])
+            if ratio[-1] < 1.0 or span >= 4 * END_START_M:
+                break
+            span *= 2
+    k = int(_last_over(ratio)) if len(ratio) else -1
+    if k < 0:
+        return 0.0
+    if k == len(ratio) - 1:
+        return float(samples[-1])
+    return float(_crossing(samples[k], samples[k + 1], ratio[k], ratio[k + 1]))
+
+
 def keep_out(
     fields: FieldFn,
     *,
@@ -206,128 +328,38 @@ def keep_out(
     plan = wire[:, :2]
     origins, dirs = _rays(plan)
     heights = np.array(PERSON_HEIGHTS_M)
-
-    def ray_points(dist: np.ndarray) -> np.ndarray:  # dist (R, K) → (R, K, H, 3)
-        xy = origins[:, None, :] + dist[..., None] * dirs[:, None, :]
-        xy = np.broadcast_to(xy[:, :, None, :], (*dist.shape, len(heights), 2))
-        z = np.broadcast_to(heights, (*dist.shape, len(heights)))
-        return np.concatenate([xy, z[..., None]], axis=-1)
-
-    reach = RAY_START_M
-    while True:
-        dist = np.broadcast_to(
-            np.arange(0.0, reach + 1e-9, RAY_STEP_M),
-            (len(origins), int(round(reach / RAY_STEP_M)) + 1),
-        )
-        ratio_h, touch_h = ev(ray_points(dist))
-        ratio = ratio_h.max(axis=2)
-        last = _last_over(ratio)
-        beyond = bool((last == dist.shape[1] - 1).any())
-        if not beyond or reach >= RAY_MAX_M:
-            break
-        reach = min(RAY_MAX_M, 2 * reach)
-
-    # refinement between the last coarse sample over the limit and the next one
-    boundary = np.zeros(len(origins))
-    inside = last >= 0
-    refine = inside & (last < dist.shape[1] - 1)
-    boundary[inside & ~refine] = reach
-    if refine.any():
-        rows = np.nonzero(refine)[0]
-        d0 = dist[rows, last[rows]]
-        frac = np.arange(REFINE + 2) / (REFINE + 1)  # includes both coarse samples
-        fine_d = d0[:, None] + frac[None, :] * RAY_STEP_M
-        inner = fine_d[:, 1:-1]
-        pts = origins[rows, None, :] + inner[..., None] * dirs[rows, None, :]
-        pts3 = np.concatenate(
-            [
-                np.broadcast_to(pts[:, :, None, :], (*inner.shape, len(heights), 2)),
-                np.broadcast_to(heights, (*inner.shape, len(heights)))[..., None],
-            ],
-            axis=-1,
-        )
-        r_inner, _ = ev(pts3)
-        r_fine = np.concatenate(
-            [
-                ratio[rows, last[rows]][:, None],
-                r_inner.max(axis=2),
-                ratio[rows, last[rows] + 1][:, None],
-            ],
-            axis=1,
-        )
-        j = _last_over(r_fine)
-        jj = np.arange(len(rows))
-        boundary[rows] = _crossing(
-            fine_d[jj, j], fine_d[jj, j + 1], r_fine[jj, j], r_fine[jj, j + 1]
-        )
+    lines = _boundaries(ev, origins, dirs, heights)
+    boundary = lines.boundary.max(axis=1)
+    inside = lines.inside.any(axis=1)
 
     edge = origins + boundary[:, None] * dirs
     zone_pts = edge[inside]
     keep = float(distance_to_polyline(zone_pts, plan).max()) if inside.any() else 0.0
     outline, zones = _polygons(origins, edge, inside)
 
-    marks = np.array([lm.point_m[:2] for lm in landmarks]) if landmarks else np.zeros((0, 2))
     by_landmark = []
-    if len(marks):
-        dm = (
-            np.linalg.norm(zone_pts[:, None, :] - marks[None], axis=2)
-            if len(zone_pts)
-            else np.zeros((0, len(marks)))
-        )
-        owner = dm.argmin(axis=1) if len(zone_pts) else np.zeros(0, int)
+    if landmarks:
+        marks = np.array([lm.point_m[:2] for lm in landmarks])
+        dm = np.linalg.norm(zone_pts[:, None, :] - marks[None], axis=2)
+        owner = dm.argmin(axis=1)
         for i, lm in enumerate(landmarks):
             mine = dm[owner == i, i]
             by_landmark.append((lm.name, lm.point_m, float(mine.max()) if len(mine) else 0.0))
 
     by_height = []
     for ih, hz in enumerate(heights):
-        r = ratio_h[:, :, ih]
-        li = _last_over(r)
-        ok = li >= 0
-        b = np.zeros(len(origins))
-        nxt = np.minimum(li + 1, r.shape[1] - 1)
-        rr = np.arange(len(origins))
-        b[ok] = _crossing(dist[rr, li][ok], dist[rr, nxt][ok], r[rr, li][ok], r[rr, nxt][ok])
-        pts = (origins + b[:, None] * dirs)[ok]
+        ok = lines.inside[:, ih]
+        pts = (origins + lines.boundary[:, ih, None] * dirs)[ok]
         by_height.append(
             (float(hz), float(distance_to_polyline(pts, plan).max()) if ok.any() else 0.0)
         )
 
-    # vertical lines below and above each wire end: how far from the end the limit is met
-    end_sep = []
+    # the vertical line under each wire end: how far below the end the limit is met
     ends = [lm for lm in landmarks if lm.name != "feedpoint"] or [
         Landmark("end", wire[0]),
         Landmark("end", wire[-1]),
     ]
-    span = END_START_M
-    while True:
-        s = np.arange(CONTACT_M + END_STEP_M / 2, span + 1e-9, END_STEP_M)
-        pts = []
-        for lm in ends:
-            p = lm.point_m
-            below = np.column_stack([np.full_like(s, p[0]), np.full_like(s, p[1]), p[2] - s])
-            above = np.column_stack([np.full_like(s, p[0]), np.full_like(s, p[1]), p[2] + s])
-            pts.append(np.stack([below, above]))
-        pts = np.array(pts)  # (ends, 2, S, 3)
-        r_end, touch_end = ev(pts)
-        # below the end while above ground; past the ground, the same distance above the end (the
-        # end's field moves with it when the end is raised; stated as an extrapolation)
-        # past a point on the wire the line is under another part of the antenna, not under this end
-        r_end = np.where(np.logical_or.accumulate(touch_end, axis=2), 0.0, r_end)
-        r_end = np.where(pts[:, 0, :, 2] > 0.05, r_end[:, 0], r_end[:, 1])  # (ends, S)
-        li = _last_over(r_end)
-        if not (li == len(s) - 1).any() or span >= 4 * END_START_M:
-            break
-        span *= 2
-    for e_i, lm in enumerate(ends):
-        if li[e_i] < 0:
-            sep = 0.0
-        elif li[e_i] == len(s) - 1:
-            sep = float(s[-1])
-        else:
-            k = li[e_i]
-            sep = float(_crossing(s[k], s[k + 1], r_end[e_i, k], r_end[e_i, k + 1]))
-        end_sep.append((lm.name, sep))
+    end_sep = [(lm.name, _end_separation(ev, lm.point_m)) for lm in ends]
     min_end = PERSON_HEIGHT_M + max(CONTACT_M, max(v for _, v in end_sep))
     extrapolated = any(
         sep > lm.point_m[2] - 0.05 for (_, sep), lm in zip(end_sep, ends, strict=True)
@@ -343,10 +375,7 @@ def keep_out(
         r_drop, _ = ev(pts)
         coax = [(float(z), float(r)) for z, r in zip(drop_h, r_drop, strict=True)]
 
-    finite = np.where(np.isfinite(ratio_h), ratio_h, -1.0)
-    flat = int(np.argmax(finite))
-    worst = ray_points(dist).reshape(-1, 3)[flat]
-    max_ratio = max(float(finite.reshape(-1)[flat]), max((r for _, r in coax), default=0.0))
+    max_ratio = max(lines.max_ratio, max((r for _, r in coax), default=0.0))
     return KeepOut(
         keep_out_m=keep,
         outline_m=outline,
@@ -356,11 +385,11 @@ def keep_out(
         min_end_height_m=min_end,
         end_separation_m=end_sep,
         max_ratio=max_ratio,
-        max_ratio_point_m=worst,
-        touching=bool(touch_h.any()),
+        max_ratio_point_m=lines.max_point_m,
+        touching=lines.touching,
         end_extrapolated=extrapolated,
         coax_drop=coax,
-        beyond_reach=beyond,
+        beyond_reach=lines.beyond,
         n_points=ev.n_points,
     )
 
