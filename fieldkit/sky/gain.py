@@ -114,7 +114,7 @@ def _solve(spec: dict, frequencies_mhz: tuple[float, ...], azimuths, field: str)
 @functools.lru_cache(maxsize=128)
 def _default_gain(frequency_mhz: float, ground_json: str) -> ElevationGain:
     spec = default_dipole_spec(frequency_mhz=frequency_mhz, ground=json.loads(ground_json))
-    (result,) = _solve(spec, (frequency_mhz,), AZIMUTHS_SYMMETRIC_DEG, "site.ground")
+    (result,) = _solve(spec, (frequency_mhz,), AZIMUTHS_SYMMETRIC_DEG, "site")
     return _reduce(result, AZIMUTHS_SYMMETRIC_DEG, frequency_mhz)
 
 
