@@ -76,7 +76,7 @@ def block():
 
 
 def test_contract_fields(block):
-    assert CONTRACT <= set(block)
+    assert set(block) >= CONTRACT
     assert block["limit_set"] == "fcc-uncontrolled"
     assert block["keep_out_m"] > 0 and len(block["keep_out_outline_m"]) >= 3
     assert all(len(p) == 2 for p in block["keep_out_outline_m"])
