@@ -42,6 +42,9 @@ MODES = {
     "ssb": Mode("ssb", 2700.0, 10.0, "common practice: SSB voice, 2.7 kHz, just usable at ~10 dB"),
     "cw": Mode("cw", 500.0, 3.0, "common practice: CW by ear, 500 Hz filter, ~3 dB"),
     "am": Mode("am", 6000.0, 20.0, "common practice: AM voice, 6 kHz, ~20 dB"),
+    "fm": Mode(
+        "fm", 12000.0, 12.0, "common practice: narrow-band FM voice, ~12 kHz, threshold ~12 dB"
+    ),
     "data": Mode(
         "data", 2700.0, 5.0, "common practice: robust HF data modem in a voice channel, ~5 dB"
     ),

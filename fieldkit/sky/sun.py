@@ -25,12 +25,13 @@ class SunTimes:
     Attributes
     ----------
     sunrise_utc_h, sunset_utc_h : float or None
-        Hours after 00:00 UTC of the day (may fall outside 0..24 for far longitudes); None when the
-        sun does not cross the horizon that day (see ``polar``).
+        Hours after 00:00 UTC of the day, 0 <= t < 24; None when the sun does not rise (set) within
+        the UTC day (see ``polar``).
     solar_noon_utc_h : float
         Hours after 00:00 UTC [h].
     polar : str or None
         "polar-night" or "midnight-sun" when the sun stays below or above the horizon all day.
+        Near the polar circles a UTC day can also hold only a sunrise or only a sunset.
     """
 
     sunrise_utc_h: float | None
@@ -121,8 +122,29 @@ def _event(day: dt.date, lat_deg: float, lon_deg: float, guess_h: float, sign: i
     return t, None
 
 
+def _local_day_events(day: dt.date, lat_deg: float, lon_deg: float):
+    _, eot = _declination_and_eot(_julian_day(day, 12.0))
+    noon_h = float((720.0 - 4.0 * lon_deg - eot) / 60.0)
+    rise, polar = _event(day, lat_deg, lon_deg, noon_h - 6.0, -1)
+    if polar:
+        return noon_h, None, None, polar
+    sett, polar = _event(day, lat_deg, lon_deg, noon_h + 6.0, +1)
+    if polar:
+        return noon_h, None, None, polar
+    return noon_h, rise, sett, None
+
+
+def _inside(times: list[float]) -> float | None:
+    inside = [t for t in times if 0.0 <= t < 24.0]
+    return min(inside) if inside else None
+
+
 def sun_times(*, day: dt.date, lat_deg: float, lon_deg: float) -> SunTimes:
-    """Sunrise, sunset and solar noon in hours UTC of the given day.
+    """Sunrise, sunset and solar noon in hours UTC within the given UTC day.
+
+    Far from Greenwich the solar day straddles two UTC days (at 151 E the sun sets at about 08:50
+    and rises at about 18:40 UTC); the events returned are those that fall inside 00:00–24:00 UTC,
+    taken from the solar days before, of and after ``day``.
 
     Parameters
     ----------
@@ -140,12 +162,18 @@ def sun_times(*, day: dt.date, lat_deg: float, lon_deg: float) -> SunTimes:
     NOAA solar calculator [1]_: hour angle of sunrise at zenith 90.833 deg; solar noon
     ``720 - 4 lon - EoT`` minutes UTC.
     """
-    _, eot = _declination_and_eot(_julian_day(day, 12.0))
-    noon_h = float((720.0 - 4.0 * lon_deg - eot) / 60.0)
-    rise, polar = _event(day, lat_deg, lon_deg, noon_h - 6.0, -1)
-    if polar:
-        return SunTimes(None, None, noon_h, polar)
-    sett, polar = _event(day, lat_deg, lon_deg, noon_h + 6.0, +1)
-    if polar:
-        return SunTimes(None, None, noon_h, polar)
-    return SunTimes(rise, sett, noon_h, None)
+    noons, rises, sets, polar_of_day = [], [], [], None
+    for shift in (-1, 0, 1):
+        noon, rise, sett, polar = _local_day_events(
+            day + dt.timedelta(days=shift), lat_deg, lon_deg
+        )
+        noons.append(noon + 24.0 * shift)
+        if shift == 0:
+            polar_of_day = polar
+        if rise is not None:
+            rises.append(rise + 24.0 * shift)
+            sets.append(sett + 24.0 * shift)
+    noon = _inside(noons)
+    if noon is None:
+        noon = noons[1] % 24.0
+    return SunTimes(_inside(rises), _inside(sets), noon, polar_of_day if not rises else None)

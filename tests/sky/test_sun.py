@@ -55,6 +55,14 @@ def test_equinox_day_on_the_equator():
     assert (t.sunset_utc_h - t.sunrise_utc_h) * 60.0 == pytest.approx(12 * 60 + 7, abs=2)
 
 
+def test_events_fall_inside_the_utc_day():
+    # at 151 E the sun sets ~08:50 and rises ~18:40 UTC in December (NOAA calculator, from memory)
+    t = sun_times(day=dt.date(2026, 12, 1), lat_deg=-33.9, lon_deg=151.2)
+    assert 0 <= t.sunset_utc_h < t.sunrise_utc_h < 24
+    assert t.sunset_utc_h == pytest.approx(8.85, abs=0.15)
+    assert t.sunrise_utc_h == pytest.approx(18.65, abs=0.15)
+
+
 def test_polar_night_and_midnight_sun():
     assert sun_times(day=dt.date(2026, 12, 21), lat_deg=78.2, lon_deg=15.6).polar == "polar-night"
     assert sun_times(day=dt.date(2026, 6, 21), lat_deg=78.2, lon_deg=15.6).polar == "midnight-sun"
