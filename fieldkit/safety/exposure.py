@@ -80,7 +80,10 @@ def exposure_ratio(
 
 @dataclass(frozen=True)
 class Landmark:
-    name: str
+    """A place the keep-out distance is measured from: a wire end or the feedpoint."""
+
+    key: str  # stable id fragment ("end-t1", "feedpoint")
+    name: str  # plain words ("north end (T1)")
     point_m: np.ndarray  # (3,)
 
 
@@ -89,7 +92,7 @@ class KeepOut:
     keep_out_m: float
     outline_m: list[list[float]]
     zones_m: list[list[list[float]]]
-    by_landmark: list[tuple[str, np.ndarray, float]]
+    by_landmark: list[tuple[Landmark, float]]  # largest zone distance from each landmark [m]
     by_height: list[tuple[float, float]]  # (height_m, keep_out_m) on the coarse samples
     min_end_height_m: float
     end_separation_m: list[tuple[str, float]]
@@ -344,7 +347,7 @@ def keep_out(
         owner = dm.argmin(axis=1)
         for i, lm in enumerate(landmarks):
             mine = dm[owner == i, i]
-            by_landmark.append((lm.name, lm.point_m, float(mine.max()) if len(mine) else 0.0))
+            by_landmark.append((lm, float(mine.max()) if len(mine) else 0.0))
 
     by_height = []
     for ih, hz in enumerate(heights):
@@ -355,9 +358,9 @@ def keep_out(
         )
 
     # the vertical line under each wire end: how far below the end the limit is met
-    ends = [lm for lm in landmarks if lm.name != "feedpoint"] or [
-        Landmark("end", wire[0]),
-        Landmark("end", wire[-1]),
+    ends = [lm for lm in landmarks if lm.key != "feedpoint"] or [
+        Landmark("end-first", "first end", wire[0]),
+        Landmark("end-last", "last end", wire[-1]),
     ]
     end_sep = [(lm.name, _end_separation(ev, lm.point_m)) for lm in ends]
     min_end = PERSON_HEIGHT_M + max(CONTACT_M, max(v for _, v in end_sep))

@@ -68,7 +68,10 @@ WIRE = np.array([[0.0, 0.0, Z0 - 0.1], [0.0, 0.0, Z0 + 0.1]])
 
 @pytest.fixture(scope="module")
 def zone():
-    marks = [Landmark("lower end", WIRE[0]), Landmark("upper end", WIRE[1])]
+    marks = [
+        Landmark("end-lower", "lower end", WIRE[0]),
+        Landmark("end-upper", "upper end", WIRE[1]),
+    ]
     return keep_out(
         hertzian_fields,
         wire_m=WIRE,

@@ -1,0 +1,258 @@
+"""Checklist items generated from one plan option and its safety results, carrying the plan's numbers.
+
+Each item's id comes from its rule and the object it is about (see
+:func:`fieldkit.safety.checklists.item_id`), so it stays the same when the plan is recomputed.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from fieldkit.safety.checklists import ChecklistItem, item_id, order_items, template_items
+from fieldkit.safety.duty import Radio
+from fieldkit.safety.exposure import PERSON_HEIGHT_M, KeepOut
+from fieldkit.safety.geometry import densify
+from fieldkit.safety.hazards import Path, PowerLine, Support
+from fieldkit.safety.limits import ExposureLimit
+from fieldkit.safety.powerlines import Clearance, Rig, line_summary
+from fieldkit.safety.weather import mast_wind_limits
+
+#: Height a standing adult reaches with a raised hand [m] (common practice, from memory: ~2.1–2.4 m).
+REACH_HEIGHT_M = 2.4
+
+
+@dataclass(frozen=True)
+class OptionFindings:
+    """What the safety rules found for one option: the inputs of its checklist."""
+
+    option: Mapping[str, Any]
+    radio: Radio
+    limit: ExposureLimit
+    rig: Rig
+    hazards: list
+    clearances: list[Clearance]
+    supports: list[Support]
+    keep_out: KeepOut
+    power_for_no_zone_w: float | None
+
+
+def _item(stage: str, rule: str, obj, text: str, required: bool = True) -> ChecklistItem:
+    return ChecklistItem(item_id(stage, rule, obj), stage, text, required, rule)
+
+
+def _point_in_polygon(pts: np.ndarray, poly: np.ndarray) -> np.ndarray:
+    """Even-odd rule, vectorised over points."""
+    x, y = pts[:, 0][:, None], pts[:, 1][:, None]
+    x0, y0 = poly[:, 0][None], poly[:, 1][None]
+    x1, y1 = np.roll(poly[:, 0], -1)[None], np.roll(poly[:, 1], -1)[None]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        xc = (x1 - x0) * (y - y0) / (y1 - y0) + x0
+    return ((((y0 > y) != (y1 > y)) & (x < xc)).sum(axis=1) % 2) == 1
+
+
+def _power_line_items(f: OptionFindings) -> list[ChecklistItem]:
+    out = []
+    for i, hz in enumerate(f.hazards):
+        if not isinstance(hz, PowerLine):
+            continue
+        mine = [c for c in f.clearances if c.hazard == i]
+        out.append(_item("pre-raise", "power-line", i, line_summary(i, hz, f.rig, mine)))
+        out.append(
+            _item(
+                "raise",
+                "power-line-watch",
+                i,
+                f"A spotter watches power line {i} while throw lines, ropes and wire go up; stop if "
+                "anything drifts toward it.",
+            )
+        )
+    return out
+
+
+def _support_items(f: OptionFindings) -> list[ChecklistItem]:
+    out = []
+    used = {r.id for r in f.rig.supports}
+    for s in f.supports:
+        if s.unsafe:
+            how = " but this option uses it: do not raise" if s.id in used else " and is not used"
+            out.append(
+                _item(
+                    "pre-raise",
+                    "unsafe-support",
+                    s.id,
+                    f"{s.id} is marked unsafe{how}; keep people and vehicles out from under it.",
+                )
+            )
+    trees = [r.id for r in f.rig.supports if r.kind == "tree"]
+    if trees:
+        out.append(
+            _item(
+                "pre-raise",
+                "weak-link",
+                None,
+                f"Halyards on {', '.join(trees)} have a weak link or breakaway, so a storm breaks the "
+                "rope, not the tree or the wire.",
+            )
+        )
+    mast = f.option.get("mast")
+    if isinstance(mast, Mapping) and "id" in mast:
+        (wind,) = mast_wind_limits([dict(mast)])
+        rating = (
+            "the maker's rating"
+            if wind.rated
+            else "Beaufort 6, common practice; use the maker's rating if lower"
+        )
+        guys = mast.get("guys")
+        reach = float(mast.get("height_m", f.rig.feed_m[2]))
+        out += [
+            _item(
+                "pre-raise",
+                "mast-wind",
+                wind.id,
+                f"Wind at {wind.id}: lower it if gusts exceed {wind.limit_m_s:.1f} m/s ({rating}).",
+            ),
+            _item(
+                "pre-raise",
+                "guys-flagged",
+                wind.id,
+                f"{f'All {guys} guys' if guys else 'Guys'} of {wind.id} staked and flagged so nobody "
+                "walks into them.",
+            ),
+            _item(
+                "raise",
+                "mast-walk-up",
+                wind.id,
+                f"Walk {wind.id} up with every guy attached and one person per guy; nobody within its "
+                f"falling reach ({reach:.1f} m).",
+            ),
+        ]
+    heights = ", ".join(f"{r.id} {r.rope_height_m:.1f} m" for r in f.rig.supports)
+    if heights:
+        out.append(
+            _item(
+                "raise",
+                "rope-heights",
+                None,
+                f"Hoist to the planned rope heights: {heights}; the feedpoint should hang at about "
+                f"{f.rig.feed_m[2]:.1f} m.",
+            )
+        )
+    return out
+
+
+def _exposure_items(f: OptionFindings) -> list[ChecklistItem]:
+    ko, label, limit = f.keep_out, f.radio.label(), f.limit.limit_set
+    out = []
+    zones = [(lm.key, lm.name, d) for lm, d in ko.by_landmark if d > 0]
+    for key, name, d in zones:
+        out.append(
+            _item(
+                "pre-raise",
+                "keep-out",
+                key,
+                f"Keep people {d:.1f} m from the {name} while transmitting {label} ({limit} limits); "
+                "mark the zone with tape or flags.",
+            )
+        )
+    if zones:
+        out.append(
+            _item(
+                "after-raise",
+                "keep-out-clear",
+                None,
+                f"Before each transmission: nobody inside the keep-out zone (up to {ko.keep_out_m:.1f} m "
+                "from the wire).",
+            )
+        )
+    else:
+        p = f.power_for_no_zone_w
+        more = f" (a zone starts above about {p:.0f} W)" if p else ""
+        out.append(
+            _item(
+                "pre-raise",
+                "keep-out",
+                "none",
+                f"No keep-out zone at {label} under {limit} limits for a person up to "
+                f"{PERSON_HEIGHT_M:g} m tall{more}; still keep hands off the wire while transmitting.",
+                required=False,
+            )
+        )
+    low = float(f.rig.wire_m[:, 2].min())
+    if low < REACH_HEIGHT_M or ko.touching:
+        out.append(
+            _item(
+                "pre-raise",
+                "wire-in-reach",
+                None,
+                f"The wire comes down to {low:.1f} m, within reach of a standing person: fence or flag "
+                "that part, and never transmit while anyone is near it.",
+            )
+        )
+    for i, hz in enumerate(f.hazards):
+        if isinstance(hz, Path) and any(
+            len(z) >= 3 and _point_in_polygon(densify(hz.points_m, step_m=0.25), np.array(z)).any()
+            for z in ko.zones_m
+        ):
+            out.append(
+                _item(
+                    "pre-raise",
+                    "path-in-zone",
+                    i,
+                    f"Path {i} runs through the keep-out zone: post a guard or a sign, and stop "
+                    "transmitting while anyone passes.",
+                )
+            )
+    return out
+
+
+def _after_raise_items(f: OptionFindings) -> list[ChecklistItem]:
+    fmhz = float(f.option["frequency_mhz"])
+    swr = f.option.get("swr")
+    swr_text = f" with SWR about {float(swr):.1f}" if isinstance(swr, int | float) else ""
+    out = [
+        _item(
+            "after-raise",
+            "swr-check",
+            None,
+            f"Transmit at low power and check the SWR around {fmhz:g} MHz: the dip should be near "
+            f"{fmhz:g} MHz{swr_text}; note the dip frequency.",
+        )
+    ]
+    cut = f.option.get("cut") if isinstance(f.option.get("cut"), Mapping) else {}
+    steps = cut.get("trim_steps") if isinstance(cut.get("trim_steps"), list) else []
+    cm = next(
+        (
+            s["cut_cm_per_leg_to_raise"]
+            for s in steps
+            if isinstance(s, Mapping)
+            and s.get("shift_khz") == 100
+            and isinstance(s.get("cut_cm_per_leg_to_raise"), int | float)
+        ),
+        None,
+    )
+    text = (
+        "If the dip is off, re-trim both legs equally with the re-trim tool and the measured dip."
+    )
+    if cm is not None:
+        text = (
+            f"If the dip is off, re-trim both legs equally: about {cm:g} cm per leg moves it 100 kHz "
+            "(shorten to move up, add to move down); the re-trim tool gives the exact amount."
+        )
+    out.append(_item("after-raise", "retrim", None, text, required=False))
+    return out
+
+
+def option_items(findings: OptionFindings) -> list[ChecklistItem]:
+    """The whole checklist of an option: generated items with its numbers plus every stage's
+    template items, in the order of the job."""
+    generated = (
+        _power_line_items(findings)
+        + _support_items(findings)
+        + _exposure_items(findings)
+        + _after_raise_items(findings)
+    )
+    return order_items([*generated, *template_items()])
