@@ -1,0 +1,92 @@
+"""The complex-image ground against direct numerical Sommerfeld integration, limits and caching."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+from scipy import integrate, special
+
+from fieldkit.antenna import Ground, solve
+from fieldkit.antenna.materials import EPS0
+from fieldkit.antenna.sommerfeld import complex_images, spectral_functions
+from tests.antenna.cases import dipole
+
+
+def sommerfeld_integral(fun, rho, zeta, k0):
+    """∫0^∞ F(λ) J0(λρ) e^{−u0 ζ} λ/u0 dλ by adaptive quadrature (scipy.integrate.quad).
+
+    Independent evaluation: a path lifted above the real axis for 0 ≤ Re λ ≤ 3 k0 (clear of the
+    branch point and pole near k0), then the real axis; Sommerfeld 1949 §31 for the integral.
+    """
+    a, d = 3.0 * k0, 0.4 * k0
+
+    def integrand(t):
+        if t < a:
+            lam = t + 1j * d * math.sin(math.pi * t / a)
+            dl = 1 + 1j * d * math.pi / a * math.cos(math.pi * t / a)
+        else:
+            lam, dl = complex(t), 1.0
+        u0 = np.sqrt(lam * lam - k0 * k0)
+        return fun(u0) * special.jv(0, lam * rho) * np.exp(-u0 * zeta) * lam / u0 * dl
+
+    edges = np.concatenate([np.linspace(0, a, 7), np.linspace(a, a + 60.0 / zeta, 120)[1:]])
+    total = 0j
+    for lo, hi in zip(edges[:-1], edges[1:], strict=True):
+        total += integrate.quad(lambda t: integrand(t).real, lo, hi, limit=200)[0]
+        total += 1j * integrate.quad(lambda t: integrand(t).imag, lo, hi, limit=200)[0]
+    return total
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize(("eps_r", "sigma"), [(13, 0.005), (13, 0.002), (20, 0.0303), (81, 5.0)])
+@pytest.mark.parametrize(
+    ("rho_wl", "zeta_wl"), [(0.0, 0.05), (0.15, 0.1), (0.3, 0.08), (0.45, 0.5)]
+)
+def test_images_match_numerical_sommerfeld_integrals(eps_r, sigma, rho_wl, zeta_wl):
+    f = 3.6e6
+    im = complex_images(f, eps_r, sigma)
+    k0 = im.k0
+    lam = 2 * math.pi / k0
+    eps = complex(eps_r, -sigma / (2 * math.pi * f * EPS0))
+    rho, zeta = rho_wl * lam, zeta_wl * lam
+    scale = 1 / math.hypot(rho, zeta)  # |G| at the image distance
+    radius = np.sqrt(rho**2 + (zeta + im.beta) ** 2)
+    for j, amp in enumerate((im.a_h, im.a_v, im.a_d, im.a_c)):
+        exact = sommerfeld_integral(
+            lambda u0, j=j: spectral_functions(np.atleast_1d(u0), eps, k0)[j][0], rho, zeta, k0
+        )
+        fitted = (amp * np.exp(-1j * k0 * radius) / radius).sum()
+        # C u0 carries a unit of 1/m (it enters multiplied by k0²): compare it relative to itself
+        ref = abs(exact) if j == 3 else scale
+        assert abs(fitted - exact) <= 0.02 * ref, (j, fitted, exact)
+
+
+def test_highly_conducting_ground_tends_to_perfect_image():
+    # limit εc → ∞: Sommerfeld's reflected field becomes the image of a perfect conductor
+    case = dipole("flat", 3.6, 0.1)
+    lossy = solve(case.antenna, frequencies_hz=3.6e6, ground=Ground("lossy", 80, 1e4))[0]
+    perfect = solve(case.antenna, frequencies_hz=3.6e6, ground=Ground("perfect"))[0]
+    assert abs(lossy.impedance_ohm - perfect.impedance_ohm) < 0.5
+    assert lossy.zenith_gain_dbi == pytest.approx(perfect.zenith_gain_dbi, abs=0.05)
+
+
+def test_ground_images_cached_across_a_height_sweep():
+    complex_images.cache_clear()
+    g = Ground("lossy", 13, 0.005)
+    for h in (0.05, 0.1, 0.15):
+        solve(dipole("flat", 3.6, h).antenna, frequencies_hz=3.6e6, ground=g)
+    info = complex_images.cache_info()
+    assert info.misses == 1 and info.hits == 2
+
+
+def test_lossy_ground_loss_accounting():
+    # power balance: input = radiated (space wave) + ground loss + conductor loss
+    case = dipole("flat", 3.6, 0.08, conductor="copper")
+    sol = solve(case.antenna, frequencies_hz=3.6e6, ground=Ground("lossy", 13, 0.005), power_w=100)[
+        0
+    ]
+    p = sol.power_w
+    assert p["radiated"] + p["ground_loss"] + p["conductor_loss"] == pytest.approx(100, rel=1e-9)
+    assert 0.2 < sol.radiation_efficiency < 0.6  # low dipole over average ground loses most of it
