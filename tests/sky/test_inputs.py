@@ -63,7 +63,7 @@ BAD = [
     (("channels_mhz",), ["20m"], "channels_mhz[0]"),
     (("channels_mhz",), 3.6, "channels_mhz"),
     (("channels_mhz",), [True], "channels_mhz[0]"),
-    (("mode",), "fm", "mode"),
+    (("mode",), "usb", "mode"),
     (("noise_environment",), "city", "noise_environment"),
     (("power_w",), 0, "power_w"),
     (("power_w",), -10, "power_w"),
