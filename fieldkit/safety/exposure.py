@@ -41,7 +41,7 @@ PERSON_HEIGHT_M = 1.8
 CONTACT_M = 0.1
 #: Ray sample spacing [m], first reach of the rays [m] and the furthest they grow to [m].
 RAY_STEP_M = 0.5
-RAY_START_M = 6.0
+RAY_START_M = 4.0
 RAY_MAX_M = 96.0
 #: Refinement samples between the last coarse sample over the limit and the next one.
 REFINE = 6
@@ -50,8 +50,8 @@ REFINE = 6
 SCREEN_STEP_M = 0.5
 SCREEN_RATIO = 0.25
 #: Vertical lines above and below each wire end: spacing and first reach [m].
-END_STEP_M = 0.2
-END_START_M = 8.0
+END_STEP_M = 0.25
+END_START_M = 6.0
 #: Stations along the wire: at most this spacing [m] and at most this many stations.
 STATION_STEP_M = 1.5
 MAX_STATIONS = 32
@@ -195,23 +195,40 @@ def _boundaries(
     best = {"ratio": -1.0, "point": origins[0]}
     touching = False
 
-    def run(idx: np.ndarray, dist: np.ndarray) -> np.ndarray:
+    def note(pts: np.ndarray, r: np.ndarray, t: np.ndarray) -> None:
         nonlocal touching
+        touching |= bool(t.any())
+        finite = np.where(np.isfinite(r), r, -1.0)
+        if finite.size and finite.max() > best["ratio"]:
+            k = int(np.argmax(finite))
+            best["ratio"], best["point"] = float(finite.flat[k]), pts.reshape(-1, 3)[k]
+
+    def run(idx: np.ndarray, dist: np.ndarray) -> np.ndarray:
         xy = origins[ray[idx], None, :] + dist[..., None] * dirs[ray[idx], None, :]
         pts = np.concatenate([xy, np.broadcast_to(z[idx, None], dist.shape)[..., None]], axis=-1)
         r, t = ev(pts)
-        touching |= bool(t.any())
-        finite = np.where(np.isfinite(r), r, -1.0)
-        k = int(np.argmax(finite))
-        if finite.size and finite.flat[k] > best["ratio"]:
-            best["ratio"], best["point"] = float(finite.flat[k]), pts.reshape(-1, 3)[k]
+        note(pts, r, t)
         return r
 
-    # screening: the foot of each line and one step out; lines below the limit there and falling
-    # away from the wire are outside every zone (the fields of a wire fall off away from it)
+    # screening. Feet: the point under the wire where each ray starts (rays share them), at every
+    # height. One step out: every ray at head height only — under a wire above the person the field
+    # grows with height (nearer the wire; the ground's image is further), so the head decides whether a
+    # ray goes on outward. Lines under the limit at the foot and falling off are outside every zone.
+    feet, which = np.unique(np.round(origins, 6), axis=0, return_inverse=True)
+    which = np.ravel(which)
+    foot_pts = np.concatenate(
+        [np.repeat(feet, n_h, axis=0), np.tile(heights, len(feet))[:, None]], axis=1
+    )
+    r_foot, t_foot = ev(foot_pts)
+    note(foot_pts, r_foot, t_foot)
+    r_foot = r_foot.reshape(len(feet), n_h)[which]  # (rays, heights)
+    top = int(np.argmax(heights))
+    step_pts = np.column_stack([origins + SCREEN_STEP_M * dirs, np.full(n_rays, heights[top])])
+    r_step, t_step = ev(step_pts)
+    note(step_pts, r_step, t_step)
+    outward = (r_step >= 1.0) | ((r_step > r_foot[:, top]) & (r_step >= SCREEN_RATIO))
+    active = ((r_foot >= 1.0) | outward[:, None]).reshape(-1)
     every = np.arange(n_rays * n_h)
-    r1 = run(every, np.broadcast_to(np.array([0.0, SCREEN_STEP_M]), (len(every), 2)))
-    active = (r1.max(axis=1) >= 1.0) | ((r1[:, 1] > r1[:, 0]) & (r1[:, 1] >= SCREEN_RATIO))
     boundary = np.zeros(len(every))
     inside = np.zeros(len(every), dtype=bool)
     beyond_any = False
@@ -254,6 +271,11 @@ def _boundaries(
     )
 
 
+def _end_samples(span_m: float) -> np.ndarray:
+    """Distances from a wire end: just outside touching, then every END_STEP_M [m]."""
+    return np.concatenate([[CONTACT_M + 0.01], np.arange(END_STEP_M, span_m + 1e-9, END_STEP_M)])
+
+
 def _end_separation(ev: _Evaluator, end_m: np.ndarray) -> float:
     """Distance below a wire end at which the exposure ratio falls to 1 [m].
 
@@ -262,7 +284,7 @@ def _end_separation(ev: _Evaluator, end_m: np.ndarray) -> float:
     above the end to the same distance (the end's field moves with it when the end is raised: an
     extrapolation, reported as such).
     """
-    s = np.arange(CONTACT_M + END_STEP_M / 2, END_START_M + 1e-9, END_STEP_M)
+    s = _end_samples(END_START_M)
     below = s[end_m[2] - s > 0.05]
     pts = np.column_stack(
         [np.full_like(below, end_m[0]), np.full_like(below, end_m[1]), end_m[2] - below]
@@ -274,7 +296,7 @@ def _end_separation(ev: _Evaluator, end_m: np.ndarray) -> float:
     else:
         span = END_START_M
         while True:
-            s = np.arange(CONTACT_M + END_STEP_M / 2, span + 1e-9, END_STEP_M)
+            s = _end_samples(span)
             up = s[len(below) :]
             pts = np.column_stack(
                 [np.full_like(up, end_m[0]), np.full_like(up, end_m[1]), end_m[2] + up]
