@@ -78,11 +78,21 @@ def _model_json():
     return model_json
 
 
+def _azimuth_weights(azimuths) -> np.ndarray:
+    """Weights of an azimuth average: uniform round a full circle, trapezoidal over a quadrant."""
+    if azimuths == AZIMUTHS_SYMMETRIC_DEG:  # 0..90 deg stands for the whole circle by symmetry
+        w = np.ones(len(azimuths))
+        w[0] = w[-1] = 0.5
+    else:
+        w = np.ones(len(azimuths))
+    return w / w.sum()
+
+
 def _reduce(result: dict, azimuths, frequency_mhz: float) -> ElevationGain:
     gains = np.asarray(result["gain_dbi"], dtype=float)  # [n_azimuth, n_elevation]
     if gains.shape != (len(azimuths), len(ELEVATIONS_DEG)):
         raise RuntimeError(f"engine returned gain_dbi of shape {gains.shape}")
-    mean = 10.0 * np.log10(np.mean(10.0 ** (gains / 10.0), axis=0))
+    mean = 10.0 * np.log10(_azimuth_weights(azimuths) @ (10.0 ** (gains / 10.0)))
     elev = np.array(ELEVATIONS_DEG)
     elev.setflags(write=False)
     mean.setflags(write=False)

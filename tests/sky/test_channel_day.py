@@ -64,7 +64,7 @@ def test_contract_fields(demo):
             assert len(r["snr_db"]) == len(demo["distances_km"])
             assert isinstance(r["verdict"], str) and r["verdict"]
     assert demo["distances_km"][0] == 0 and demo["distances_km"][-1] == 600
-    json.dumps(demo)  # plain JSON all the way down
+    json.dumps(demo, allow_nan=False)  # plain JSON all the way down, no NaN
 
 
 def test_says_it_is_a_monthly_median(demo):
