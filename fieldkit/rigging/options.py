@@ -25,7 +25,13 @@ from fieldkit.rigging.cut import (
     swr_curve,
 )
 from fieldkit.rigging.feedline import Coax, feedline_json, total_loss_db
-from fieldkit.rigging.heights import HeightPoint, nvis_figure_dbi, recommend, sweep_json
+from fieldkit.rigging.heights import (
+    MIN_END_HEIGHT_M,
+    HeightPoint,
+    nvis_figure_dbi,
+    recommend,
+    sweep_json,
+)
 from fieldkit.rigging.hung import HungDipole
 from fieldkit.rigging.layouts import Layout, Mechanics
 from fieldkit.rigging.mast import mast_json
@@ -143,7 +149,7 @@ def screen(
             except Refusal as e:
                 last = str(e)
         if not seeded:
-            raise Refusal(last)
+            raise Refusal(_short_span_words(layout, f, warm) or last)
     leg = warm.guess(f)[0]
     points: list[HeightPoint] = []
     last = "cannot hang"
@@ -167,7 +173,7 @@ def screen(
             )
         )
     if not points:
-        raise Refusal(last)
+        raise Refusal(_short_span_words(layout, f, warm) or last)
     points.sort(key=lambda p: p.feedpoint_height_m)
     pick, why = recommend(points, ground_name=kit.ground_name)
     # rank by the NVIS figure less the feedline loss at the resistance the dipole shows at resonance
@@ -175,6 +181,21 @@ def screen(
     swr_est = max(r / 50.0, 50.0 / r)
     loss = total_loss_db(matched_loss_db=kit.coax.matched_loss_db(f), swr=swr_est)
     return Screened(layout, f, tuple(points), pick, why, leg, points[pick].nvis_dbi - loss)
+
+
+def _short_span_words(layout: Layout, f: float, warm: Warm) -> str | None:
+    """The plain answer when two supports are too close for the channel, else None."""
+    if layout.span_m is None:
+        return None
+    need = 2 * warm.guess(f)[0]
+    if layout.span_m >= need:
+        return None
+    a, b = layout.supports_used
+    return (
+        f"{layout.span_m:.0f} m between {a} and {b}; a {f / 1e6:g} MHz dipole needs about {need:.0f} m: "
+        f"drooping the ends would bring them below {MIN_END_HEIGHT_M:g} m here, so use an inverted-V on "
+        "a mast, or choose a higher channel"
+    )
 
 
 def evaluate(

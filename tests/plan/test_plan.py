@@ -1,0 +1,205 @@
+"""fieldkit.plan.plan(): the contract fields, the demo input, ranking, and plain answers to bad input."""
+
+import copy
+import json
+
+import numpy as np
+import pytest
+
+from fieldkit.antenna import model_json
+from fieldkit.errors import InputError
+from fieldkit.paths import assets_dir
+from fieldkit.plan import plan
+from tests.rigging.cases import BARE, spec, two_trees
+
+CONTRACT = (
+    "form",
+    "frequency_mhz",
+    "supports_used",
+    "rope_heights_m",
+    "hung_wire_m",
+    "feed_distance_m",
+    "wire",
+    "cut",
+    "feedpoint_height_m",
+    "impedance_ohm",
+    "swr",
+    "nvis",
+    "mast",
+    "feedline",
+    "safety",
+    "warnings",
+)
+
+
+def _demo():
+    with open(assets_dir() / "demo" / "larch-basin-plan.json") as fh:
+        return json.load(fh)
+
+
+@pytest.mark.slow
+def test_demo_plan_contract():
+    out = plan(_demo())
+    assert out["options"], out["refused"]
+    for opt in out["options"]:
+        for key in CONTRACT:
+            assert key in opt, key
+        assert set(opt["cut"]) >= {"leg_m", "wrap_allowance_m", "total_wire_m"}
+        assert {"zenith_gain_dbi", "beamwidth_deg"} <= set(opt["nvis"])
+        assert "T3" not in opt["supports_used"]  # the dead snag is never used
+        assert opt["safety"] is not None and "raise_ok" in opt["safety"]
+    oks = [o["safety"]["raise_ok"] for o in out["options"]]
+    if any(oks):
+        assert oks[0]  # an option that may not be raised is never first
+    assert oks == sorted(oks, reverse=True)
+
+
+@pytest.mark.slow
+def test_hung_wire_is_a_model_spec_that_resonates():
+    """The option's polyline and feed, given back to the engine's own JSON contract, show X ~ 0."""
+    s = spec(supports=two_trees(46, 11.0), channel_mhz=5.3715, ground="average")
+    s["form"] = "flat"
+    opt = plan(s)["options"][0]
+    got = model_json(
+        {
+            "frequency_mhz": opt["frequency_mhz"],
+            "ground": "average",
+            "wires": [{"points_m": opt["hung_wire_m"], **opt["wire"]}],
+            "feed": {"wire": 0, "distance_m": opt["feed_distance_m"]},
+        }
+    )
+    z = got["results"][0]["impedance_ohm"]
+    assert abs(z["x"]) < 2.0  # resonance within ~0.05 %: dX/df of a dipole is ~ 1.5 ohm/kHz here
+    assert z["r"] == pytest.approx(opt["impedance_ohm"]["r"], abs=0.5)
+    assert opt["cut"]["total_wire_m"] == pytest.approx(
+        2 * (opt["cut"]["leg_m"][0] + 2 * opt["cut"]["wrap_allowance_m"]), abs=2e-3
+    )
+
+
+def test_short_span_gets_the_plain_answer():
+    # 18 m between 8 m trees: each end would droop ~10 m from 8 m, far below the 3 m end minimum
+    s = spec(supports=two_trees(18, 8.0), channel_mhz=3.8, ground="perfect")
+    s["form"] = "flat"
+    with pytest.raises(InputError) as e:
+        plan(s)
+    assert "18 m between A and B; a 3.8 MHz dipole needs about 3" in e.value.detail
+    assert "inverted-V" in e.value.detail and "higher channel" in e.value.detail
+
+
+def test_droop_warning_names_the_span_and_the_way_out():
+    s = spec(supports=two_trees(30, 13.0), channel_mhz=3.8, ground="perfect")
+    s["form"] = "flat"
+    opt = plan(s)["options"][0]
+    text = " ".join(opt["warnings"])
+    assert "30 m between A and B; a 3.8 MHz dipole needs about" in text
+    assert "inverted-V" in text and "higher channel" in text
+
+
+def test_supports_too_low():
+    s = spec(supports=two_trees(40, 2.5), channel_mhz=7.1, ground="perfect")
+    with pytest.raises(InputError) as e:
+        plan(s)
+    assert "too low" in e.value.detail
+
+
+def test_spool_too_short():
+    s = spec(supports=two_trees(45, 10.0), channel_mhz=3.6, ground="perfect")
+    s["kit"]["wire"]["spool_m"] = 30
+    with pytest.raises(InputError) as e:
+        plan(s)
+    assert "spool too short" in e.value.detail and "30 m" in e.value.detail
+
+
+def test_mast_too_weak_is_refused():
+    s = spec(
+        supports=two_trees(10, 5.0),
+        channel_mhz=3.6,
+        ground="perfect",
+        masts=[{"id": "M9", "height_m": 9.0, "top_load_kg": 0.3, "guys": 3}],
+    )
+    s["form"] = "inverted-v"
+    with pytest.raises(InputError) as e:
+        plan(s)
+    assert "M9 is too weak" in e.value.detail and "0.3 kg" in e.value.detail
+
+
+def _bad(path, value):
+    s = spec(supports=two_trees(40, 10.0), channel_mhz=7.1, ground="perfect", wire=BARE)
+    s = copy.deepcopy(s)
+    node = s
+    for key in path[:-1]:
+        node = node[key]
+    if value is KeyError:
+        del node[path[-1]]
+    else:
+        node[path[-1]] = value
+    return s
+
+
+@pytest.mark.parametrize(
+    ("path", "value", "field"),
+    [
+        (("site",), KeyError, "site"),
+        (("channels_mhz",), [], "channels_mhz"),
+        (("channels_mhz",), [0.5], "channels_mhz[0]"),
+        (("channels_mhz",), ["7.1"], "channels_mhz[0]"),
+        (("form",), "vertical", "form"),
+        (("colour",), "red", "colour"),
+        (("site", "ground"), "swamp", "site.ground"),
+        (("site", "supports", 0, "height_m"), "tall", "site.supports[0].height_m"),
+        (("kit", "tension_n"), -4, "kit.tension_n"),
+        (("kit", "coax", "class"), "rg-999", "kit.coax.class"),
+        (("kit", "wire", "diameter_mm"), 0, "kit.wire.diameter_mm"),
+        (("kit", "feedpoint_mass_kg"), KeyError, "kit.feedpoint_mass_kg"),
+        (("kit", "masts"), [{"id": "M1", "height_m": 9}], "kit.masts[0].top_load_kg"),
+        (("retrim",), {"frequency_mhz": 7.1}, "retrim.dip_mhz"),
+        (("retrim",), {"frequency_mhz": 5.0, "dip_mhz": 5.1}, "retrim.frequency_mhz"),
+    ],
+)
+def test_bad_input_names_the_field(path, value, field):
+    with pytest.raises(InputError) as e:
+        plan(_bad(path, value))
+    assert e.value.field == field
+
+
+def test_ignored_context_fields_are_accepted():
+    s = spec(supports=two_trees(40, 10.0), channel_mhz=7.1, ground="perfect")
+    s["name"] = "test"
+    s["schedule"] = {"start_utc": "16:00", "end_utc": "20:00"}
+    s["site"].update(
+        {"name": "x", "lat_deg": 46.8, "lon_deg": 8.2, "elevation_m": 1250, "utc_offset_h": 1}
+    )
+    s["site"]["supports"][0]["note"] = "spruce"
+    s["form"] = "flat"
+    out = plan(s)
+    assert out["name"] == "test" and out["options"]
+
+
+def test_retrim_from_a_measured_dip():
+    # the dipole was cut to the list and dips 80 kHz low: fieldkit says to cut, by ~ the trim table
+    s = spec(supports=two_trees(40, 10.0), channel_mhz=7.1, ground="perfect")
+    s["form"] = "flat"
+    s["retrim"] = {"frequency_mhz": 7.1, "dip_mhz": 7.02}
+    opt = plan(s)["options"][0]
+    r = opt["retrim"]
+    assert r["change_cm_per_leg"] < 0 and "cut" in r["advice"]
+    per_10 = opt["cut"]["trim_steps"][0]["cut_cm_per_leg_to_raise"]
+    # resonance scales ~ 1/L: 80 kHz up is about 8 x the 10 kHz step (within the 1.1 % of the ratio)
+    assert -r["change_cm_per_leg"] == pytest.approx(8 * per_10, rel=0.05)
+    # an analyser reading R + jX at the channel gives the same answer through the engine's dX/df
+    s["retrim"] = {"frequency_mhz": 7.1, "at_mhz": 7.1, "r_ohm": 20.0, "x_ohm": 60.0}
+    r2 = plan(s)["options"][0]["retrim"]
+    assert r2["measured_dip_mhz"] < 7.1 and r2["change_cm_per_leg"] < 0
+
+
+def test_rule_of_thumb_shown_and_marked():
+    s = spec(supports=two_trees(40, 10.0), channel_mhz=7.1, ground="perfect")
+    s["form"] = "flat"
+    cut = plan(s)["options"][0]["cut"]
+    rule = cut["rule_of_thumb"]
+    assert rule["leg_m"] == pytest.approx(143 / 7.1 / 2, abs=1e-3)  # 143/f, common practice
+    assert "common practice" in rule["rule"]
+    assert rule["difference_percent"] == pytest.approx(
+        (cut["leg_m"][0] - rule["leg_m"]) / rule["leg_m"] * 100, abs=0.02
+    )
+    assert np.isfinite(cut["sensitivity_khz_per_cm"])
