@@ -51,12 +51,12 @@ CONTRACT = {
 }
 
 
-def _fields(option, power_w):
+def _fields(option, power_w, ground=PERFECT):
     w = Wire(points_m=np.array(option["hung_wire_m"], float), radius_m=0.8e-3, conductor="copper")
     sol = solve(
         Antenna(wires=(w,), feed=Feed(wire=0, distance_m=option["feed_distance_m"])),
         frequencies_hz=[option["frequency_mhz"] * 1e6],
-        ground=PERFECT,
+        ground=ground,
         power_w=power_w,
     )[0]
     lim = exposure_limit("fcc-uncontrolled", frequency_hz=option["frequency_mhz"] * 1e6)
@@ -244,3 +244,19 @@ def test_bad_input_names_the_field(kwargs, field):
     with pytest.raises(InputError) as err:
         safety_block(**args)
     assert err.value.field == field
+
+
+@pytest.mark.slow
+def test_outline_over_average_ground_agrees_with_the_real_near_field():
+    """Over lossy (average) ground — the Sommerfeld near field — the same bracketing holds."""
+    average = Ground(kind="lossy", relative_permittivity=13.0, conductivity_s_m=0.005)
+    out = safety_block(option=INV_V, site=SITE, radio=RADIO, ground=average)
+    assert out["keep_out_m"] > 0
+    ratio = _fields(INV_V, RADIO["power_w"], ground=average)
+    for poly in out["exposure"]["keep_out_zones_m"]:
+        for x, y in poly[1:-1]:
+            away = np.array([x - np.clip(x, -HALF, HALF), y])
+            off = away / np.linalg.norm(away)
+            heights = (0.5, 1.0, 1.8)
+            assert ratio([[x - 0.15 * off[0], y - 0.15 * off[1], z] for z in heights]).max() > 1.0
+            assert ratio([[x + 0.15 * off[0], y + 0.15 * off[1], z] for z in heights]).max() < 1.0

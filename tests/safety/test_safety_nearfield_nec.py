@@ -34,17 +34,39 @@ def _points(half: float) -> np.ndarray:
     )
 
 
+def _lossy(eps_r, sigma):
+    return Ground(kind="lossy", relative_permittivity=eps_r, conductivity_s_m=sigma)
+
+
+# H over lossy ground: NEC-2 adds the ground's part of the NH near field with Fresnel reflection
+# coefficients even under GN 2 (subroutine HSFLD; only EFLD, used by NE, adds the Sommerfeld field —
+# NEC-2 source as translated in nec2c/xnec2c, fields.c), so NEC's H is not a 10 % reference next to
+# lossy ground; its E is.
+H_RTOL_LOSSY = 0.25
 CASES = [
-    # (frequency MHz, half-length m, height m, ground)
-    (3.6, 19.8, 6.0, Ground(kind="perfect")),  # 0.072 λ high
-    (3.6, 19.8, 10.0, Ground(kind="perfect")),  # 0.12 λ
-    (7.1, 10.0, 4.0, Ground(kind="perfect")),  # 0.095 λ
-    (5.3715, 13.4, 6.0, Ground(kind="free-space")),
+    # (frequency MHz, half-length m, height m, ground, H tolerance)
+    (3.6, 19.8, 6.0, Ground(kind="perfect"), 0.10),  # 0.072 λ high
+    (3.6, 19.8, 10.0, Ground(kind="perfect"), 0.10),  # 0.12 λ
+    (7.1, 10.0, 4.0, Ground(kind="perfect"), 0.10),  # 0.095 λ
+    (5.3715, 13.4, 6.0, Ground(kind="free-space"), 0.10),
+    pytest.param(
+        3.6, 19.8, 6.0, _lossy(13, 0.005), H_RTOL_LOSSY, marks=pytest.mark.slow
+    ),  # average
+    pytest.param(
+        3.6, 19.8, 4.0, _lossy(13, 0.002), H_RTOL_LOSSY, marks=pytest.mark.slow
+    ),  # poor, 0.048 λ
+    pytest.param(7.1, 10.0, 4.0, _lossy(13, 0.005), H_RTOL_LOSSY, marks=pytest.mark.slow),
+    pytest.param(
+        5.3715, 13.4, 8.0, _lossy(20, 0.0303), H_RTOL_LOSSY, marks=pytest.mark.slow
+    ),  # very good
+    pytest.param(
+        3.6, 19.8, 3.0, _lossy(5, 0.001), H_RTOL_LOSSY, marks=pytest.mark.slow
+    ),  # very poor, 0.036 λ
 ]
 
 
-@pytest.mark.parametrize(("f_mhz", "half", "height", "ground"), CASES)
-def test_near_field_vs_nec2(f_mhz, half, height, ground):
+@pytest.mark.parametrize(("f_mhz", "half", "height", "ground", "h_rtol"), CASES)
+def test_near_field_vs_nec2(f_mhz, half, height, ground, h_rtol):
     pts = _points(half)
     wire = Wire(
         points_m=np.array([[-half, 0, height], [half, 0, height]]),
@@ -63,17 +85,19 @@ def test_near_field_vs_nec2(f_mhz, half, height, ground):
         feed=(0, 20),
         frequency_mhz=f_mhz,
         radius_m=RADIUS_M,
-        ground=(ground.kind,),
+        ground=(ground.kind, ground.relative_permittivity, ground.conductivity_s_m),
         near_points_m=pts,
         power_w=POWER_W,
     )
     e_mag, e_ref = np.linalg.norm(e, axis=1), np.linalg.norm(ref.e_v_per_m, axis=1)
     h_mag, h_ref = np.linalg.norm(h, axis=1), np.linalg.norm(ref.h_a_per_m, axis=1)
     np.testing.assert_allclose(e_mag, e_ref, rtol=0.10)  # NEC-2 NE card, issue 6 target 10 %
-    np.testing.assert_allclose(h_mag, h_ref, rtol=0.10)  # NEC-2 NH card
-    # and so the exposure ratio (∝ field²) agrees within (1.1)² − 1 = 21 %
+    np.testing.assert_allclose(h_mag, h_ref, rtol=h_rtol)  # NEC-2 NH card
+    # and so the exposure ratio (∝ field²) agrees within (1 + tolerance)² − 1 (21 % where both are 10 %)
     lim = exposure_limit("fcc-uncontrolled", frequency_hz=f_mhz * 1e6)
     kw = {"e_limit": lim.e_v_per_m, "h_limit": lim.h_a_per_m, "averaging_factor": 1.0}
     np.testing.assert_allclose(
-        exposure_ratio(e, h, **kw), exposure_ratio(ref.e_v_per_m, ref.h_a_per_m, **kw), rtol=0.21
+        exposure_ratio(e, h, **kw),
+        exposure_ratio(ref.e_v_per_m, ref.h_a_per_m, **kw),
+        rtol=(1 + h_rtol) ** 2 - 1,
     )
