@@ -52,11 +52,15 @@ SCREEN_RATIO = 0.25
 #: Vertical lines above and below each wire end: spacing and first reach [m].
 END_STEP_M = 0.25
 END_START_M = 6.0
+#: A wire lower than the head height plus this anywhere [m] gets every height checked everywhere.
+LOW_WIRE_MARGIN_M = 1.0
+#: A wire shorter than this in plan view is treated as a point (rays all round it) [m].
+POINT_LIKE_M = 0.5
 #: Stations along the wire: at most this spacing [m] and at most this many stations.
-STATION_STEP_M = 1.5
-MAX_STATIONS = 32
+STATION_STEP_M = 2.0
+MAX_STATIONS = 24
 #: Rays in the fan around each wire end (between the two side rays).
-FAN_RAYS = 7
+FAN_RAYS = 5
 
 
 def exposure_ratio(
@@ -111,7 +115,7 @@ def _rays(plan: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     seg_len = np.linalg.norm(seg, axis=1)
     keep = seg_len > 1e-9
     length = float(seg_len.sum())
-    if length < 0.5:
+    if length < POINT_LIKE_M:
         # vertical or tiny wire: a full circle of rays from its centre
         phi = np.linspace(0, 2 * np.pi, 4 * (FAN_RAYS + 1), endpoint=False)
         dirs = np.column_stack([np.cos(phi), np.sin(phi)])
@@ -186,7 +190,13 @@ class _Lines:
 
 
 def _boundaries(
-    ev: _Evaluator, origins: np.ndarray, dirs: np.ndarray, heights: np.ndarray
+    ev: _Evaluator,
+    origins: np.ndarray,
+    dirs: np.ndarray,
+    heights: np.ndarray,
+    *,
+    wire_low: bool,
+    point_like: bool,
 ) -> _Lines:
     """Zone boundary along every (ray, height) line: screen, sample, refine."""
     n_rays, n_h = len(origins), len(heights)
@@ -210,24 +220,51 @@ def _boundaries(
         note(pts, r, t)
         return r
 
-    # screening. Feet: the point under the wire where each ray starts (rays share them), at every
-    # height. One step out: every ray at head height only — under a wire above the person the field
-    # grows with height (nearer the wire; the ground's image is further), so the head decides whether a
-    # ray goes on outward. Lines under the limit at the foot and falling off are outside every zone.
+    # screening. Under a wire that is above the person everywhere, the field grows with height at any
+    # spot (nearer the wire; the ground's image is further away), and along a ray it is largest at
+    # the foot, under the wire. So: the head height at every foot; the lower heights only at feet
+    # where the head is over the limit (or everywhere when the wire comes low); one step out only on
+    # rays whose foot is at least SCREEN_RATIO of the limit (every ray for a wire that is vertical in
+    # plan view, whose field can grow outward). Lines under the limit at the foot and not growing
+    # outward are outside every zone.
+    top = int(np.argmax(heights))
     feet, which = np.unique(np.round(origins, 6), axis=0, return_inverse=True)
     which = np.ravel(which)
-    foot_pts = np.concatenate(
-        [np.repeat(feet, n_h, axis=0), np.tile(heights, len(feet))[:, None]], axis=1
-    )
-    r_foot, t_foot = ev(foot_pts)
-    note(foot_pts, r_foot, t_foot)
-    r_foot = r_foot.reshape(len(feet), n_h)[which]  # (rays, heights)
-    top = int(np.argmax(heights))
-    step_pts = np.column_stack([origins + SCREEN_STEP_M * dirs, np.full(n_rays, heights[top])])
-    r_step, t_step = ev(step_pts)
-    note(step_pts, r_step, t_step)
-    outward = (r_step >= 1.0) | ((r_step > r_foot[:, top]) & (r_step >= SCREEN_RATIO))
-    active = ((r_foot >= 1.0) | outward[:, None]).reshape(-1)
+    r_feet = np.full((len(feet), n_h), -1.0)
+    head_pts = np.column_stack([feet, np.full(len(feet), heights[top])])
+    r_head, t_head = ev(head_pts)
+    note(head_pts, r_head, t_head)
+    r_feet[:, top] = r_head
+    low_feet = np.nonzero(np.ones(len(feet), bool) if wire_low else r_head >= 1.0)[0]
+    others = [i for i in range(n_h) if i != top]
+    if len(low_feet) and others:
+        low_pts = np.concatenate(
+            [
+                np.repeat(feet[low_feet], len(others), axis=0),
+                np.tile(heights[others], len(low_feet))[:, None],
+            ],
+            axis=1,
+        )
+        r_low, t_low = ev(low_pts)
+        note(low_pts, r_low, t_low)
+        r_feet[np.ix_(low_feet, others)] = r_low.reshape(len(low_feet), len(others))
+    r_foot = r_feet[which]  # (rays, heights)
+    probe = np.nonzero(point_like | wire_low | (r_foot[:, top] >= SCREEN_RATIO))[0]
+    outward = np.zeros(n_rays, dtype=bool)
+    if len(probe):
+        step_pts = np.column_stack(
+            [origins[probe] + SCREEN_STEP_M * dirs[probe], np.full(len(probe), heights[top])]
+        )
+        r_step, t_step = ev(step_pts)
+        note(step_pts, r_step, t_step)
+        outward[probe] = (r_step >= 1.0) | (
+            (r_step > r_foot[probe, top]) & (r_step >= SCREEN_RATIO)
+        )
+    follow = np.zeros((n_rays, n_h), dtype=bool)
+    follow[:, top] = outward
+    if wire_low:
+        follow |= outward[:, None]
+    active = ((r_foot >= 1.0) | follow).reshape(-1)
     every = np.arange(n_rays * n_h)
     boundary = np.zeros(len(every))
     inside = np.zeros(len(every), dtype=bool)
@@ -284,6 +321,10 @@ def _end_separation(ev: _Evaluator, end_m: np.ndarray) -> float:
     above the end to the same distance (the end's field moves with it when the end is raised: an
     extrapolation, reported as such).
     """
+    first = np.array([[end_m[0], end_m[1], max(end_m[2] - CONTACT_M - 0.01, 0.06)]])
+    r_first, t_first = ev(first)
+    if r_first[0] < 1.0 and not t_first[0]:
+        return 0.0  # under the limit just below the end: the field only weakens further down
     s = _end_samples(END_START_M)
     below = s[end_m[2] - s > 0.05]
     pts = np.column_stack(
@@ -353,7 +394,15 @@ def keep_out(
     plan = wire[:, :2]
     origins, dirs = _rays(plan)
     heights = np.array(PERSON_HEIGHTS_M)
-    lines = _boundaries(ev, origins, dirs, heights)
+    plan_length = float(np.linalg.norm(np.diff(plan, axis=0), axis=1).sum())
+    lines = _boundaries(
+        ev,
+        origins,
+        dirs,
+        heights,
+        wire_low=bool(wire[:, 2].min() < heights.max() + LOW_WIRE_MARGIN_M),
+        point_like=plan_length < POINT_LIKE_M,
+    )
     boundary = lines.boundary.max(axis=1)
     inside = lines.inside.any(axis=1)
 
