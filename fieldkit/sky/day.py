@@ -15,7 +15,7 @@ from fieldkit.sky.iri import sky_estimate
 from fieldkit.sky.ranking import best_by_hour, clock_text, recommend
 from fieldkit.sky.reach import DISTANCES_KM, EXCESS_LOSS_DB, Radio, channel_reach
 from fieldkit.sky.solar import sunspot_from_f107
-from fieldkit.sky.sounding import apply_sounding
+from fieldkit.sky.sounding import SOUNDING_SPAN_H, apply_sounding
 from fieldkit.sky.sun import solar_zenith_deg, sun_times
 
 HOURS_UTC = tuple(range(24))
@@ -196,6 +196,12 @@ def channel_day(spec: SkySpec) -> dict[str, Any]:
             "virtual_height_km": spec.sounding.virtual_height_km,
             "hmf2_km": spec.sounding.hmf2_km,
             "muf3000_mhz": spec.sounding.muf3000_mhz,
+            "applies_to": (
+                "all 24 hours: no hour_utc given, so the reading replaces the estimate all day; "
+                "give hour_utc to apply it near its hour only"
+                if spec.sounding.hour_utc is None
+                else f"its hour, fading out over {SOUNDING_SPAN_H:g} h either side"
+            ),
         }
     return out
 
@@ -208,8 +214,8 @@ def sky_json(spec: dict) -> dict:
     spec : dict
         The sky input of ARCHITECTURE.md: ``site`` (``lat_deg``, ``lon_deg``, optional
         ``utc_offset_h`` and ``ground``), ``date`` (UTC day, YYYY-MM-DD), ``solar`` (``f107`` [sfu]
-        or ``sunspot_number``), ``channels_mhz``, optional ``sounding`` (``hour_utc``, ``fof2_mhz``,
-        ``virtual_height_km``, ``hmf2_km``, ``muf3000_mhz``), ``antenna`` (a model spec),
+        or ``sunspot_number``), ``channels_mhz``, optional ``sounding`` (``fof2_mhz``,
+        ``virtual_height_km``, optional ``hour_utc``, ``hmf2_km``, ``muf3000_mhz``), ``antenna`` (a model spec),
         ``power_w`` [W], ``mode`` ("ssb", "cw", "am", "data"), ``bandwidth_hz``,
         ``required_snr_db``, ``noise_environment`` ("quiet-rural", "rural", "residential",
         "business") and ``schedule`` (``start_utc``, ``end_utc`` as HH:MM, optional

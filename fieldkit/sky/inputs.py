@@ -186,17 +186,18 @@ def _sounding(value: Any) -> Sounding:
         s, "sounding", ("hour_utc", "fof2_mhz", "virtual_height_km", "hmf2_km", "muf3000_mhz")
     )
     for key, what in (
-        ("hour_utc", "the UTC hour of the reading, 0 to 23.99"),
         ("fof2_mhz", "the observed foF2 in MHz"),
         ("virtual_height_km", "the observed virtual height h'F in km"),
     ):
         if key not in s:
             raise InputError(join("sounding", key), f"required: {what}")
-    hour = number(s["hour_utc"], "sounding.hour_utc", unit="h", minimum=0)
-    if hour >= 24:
-        raise InputError(
-            "sounding.hour_utc", f"expected an hour below 24, got {hour:g}", value=hour
-        )
+    hour = None  # without its hour the reading is taken for the whole day (contract example)
+    if "hour_utc" in s:
+        hour = number(s["hour_utc"], "sounding.hour_utc", unit="h", minimum=0)
+        if hour >= 24:
+            raise InputError(
+                "sounding.hour_utc", f"expected an hour below 24, got {hour:g}", value=hour
+            )
     fof2 = number(s["fof2_mhz"], "sounding.fof2_mhz", unit="MHz", minimum=0.5, maximum=20)
     hv = number(
         s["virtual_height_km"], "sounding.virtual_height_km", unit="km", minimum=150, maximum=800

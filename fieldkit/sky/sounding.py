@@ -2,7 +2,8 @@
 
 The reading replaces the estimate at its hour; at neighbouring hours the estimate is pulled toward
 it with a weight that falls linearly to zero :data:`SOUNDING_SPAN_H` hours away: foF2 and MUF(3000)
-by the observed/modelled ratio, heights by the observed–modelled difference.
+by the observed/modelled ratio, heights by the observed–modelled difference. A reading given without
+its hour (the contract allows it) is taken to hold for the whole day, and the output says so.
 """
 
 from __future__ import annotations
@@ -24,8 +25,8 @@ class Sounding:
 
     Attributes
     ----------
-    hour_utc : float
-        Time of the reading, hours after 00:00 UTC [h].
+    hour_utc : float or None
+        Time of the reading, hours after 00:00 UTC [h]; None: the reading holds for all hours.
     fof2_mhz : float
         Observed F2 critical frequency [MHz].
     virtual_height_km : float
@@ -36,7 +37,7 @@ class Sounding:
         Observed MUF(3000)F2 [MHz].
     """
 
-    hour_utc: float
+    hour_utc: float | None
     fof2_mhz: float
     virtual_height_km: float
     hmf2_km: float | None = None
@@ -60,7 +61,9 @@ class Sky:
     gyro_frequency_mhz: float
 
 
-def _weights(hours_utc: np.ndarray, hour: float) -> np.ndarray:
+def _weights(hours_utc: np.ndarray, hour: float | None) -> np.ndarray:
+    if hour is None:
+        return np.ones_like(hours_utc)
     gap = np.abs(hours_utc - hour) % 24.0
     gap = np.minimum(gap, 24.0 - gap)
     return np.clip(1.0 - gap / SOUNDING_SPAN_H, 0.0, 1.0)
@@ -88,18 +91,20 @@ def apply_sounding(estimate: SkyEstimate, sounding: Sounding | None) -> Sky:
     source = ["modelled"] * len(hours)
     if sounding is not None:
         w = _weights(hours, sounding.hour_utc)
-        at = np.interp(sounding.hour_utc, np.append(hours, 24.0), np.append(fof2, fof2[0]))
-        fof2 = fof2 * (1.0 + w * (sounding.fof2_mhz / at - 1.0))
-        h_at = np.interp(sounding.hour_utc, np.append(hours, 24.0), np.append(height, height[0]))
-        height = height + w * (sounding.virtual_height_km - h_at)
-        if sounding.hmf2_km is not None:
-            m_at = np.interp(sounding.hour_utc, np.append(hours, 24.0), np.append(hmf2, hmf2[0]))
-            hmf2 = hmf2 + w * (sounding.hmf2_km - m_at)
-        if sounding.muf3000_mhz is not None:
-            u_at = np.interp(
-                sounding.hour_utc, np.append(hours, 24.0), np.append(muf3000, muf3000[0])
+
+        def at(values):  # the modelled value at the reading's hour (each hour's own when none)
+            if sounding.hour_utc is None:
+                return values
+            return np.interp(
+                sounding.hour_utc, np.append(hours, 24.0), np.append(values, values[0])
             )
-            muf3000 = muf3000 * (1.0 + w * (sounding.muf3000_mhz / u_at - 1.0))
+
+        fof2 = fof2 * (1.0 + w * (sounding.fof2_mhz / at(fof2) - 1.0))
+        height = height + w * (sounding.virtual_height_km - at(height))
+        if sounding.hmf2_km is not None:
+            hmf2 = hmf2 + w * (sounding.hmf2_km - at(hmf2))
+        if sounding.muf3000_mhz is not None:
+            muf3000 = muf3000 * (1.0 + w * (sounding.muf3000_mhz / at(muf3000) - 1.0))
         source = ["observed" if wi >= 1.0 else "blended" if wi > 0 else "modelled" for wi in w]
     return Sky(
         hours_utc=hours,

@@ -139,6 +139,17 @@ def test_sounding_overrides_and_is_marked():
     assert _row(out, 7.0, 12)["skip_km"] > 0
 
 
+def test_contract_example_sounding_without_hour():
+    # ARCHITECTURE.md: "sounding": {"fof2_mhz": 4.0, "virtual_height_km": 300} overrides the estimate
+    spec = copy.deepcopy(WINTER)
+    spec["sounding"] = {"fof2_mhz": 4.0, "virtual_height_km": 300}
+    out = sky_json(spec)
+    assert out["fof2_mhz"] == [4.0] * 24 and set(out["sky_source"]) == {"observed"}
+    assert "all 24 hours" in out["sounding"]["applies_to"]
+    # 7 MHz is far above a 4 MHz foF2 all day: no NVIS coverage at any hour (secant law, Davies)
+    assert all(not _covers_nvis(_row(out, 7.0, h), 100.0) for h in range(24))
+
+
 def test_gain_is_solved_once_per_channel():
     gain_module._default_gain.cache_clear()
     spec = copy.deepcopy(WINTER)

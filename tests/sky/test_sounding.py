@@ -45,3 +45,11 @@ def test_wraps_past_midnight(estimate):
     assert sky.source[23] == "observed"
     assert sky.source[0] == sky.source[1] == "blended"
     assert sky.fof2_mhz[0] < estimate.fof2_mhz[0]
+
+
+def test_reading_without_hour_holds_all_day(estimate):
+    # ARCHITECTURE.md contract example: {"fof2_mhz": 4.0, "virtual_height_km": 300}, no hour
+    sky = apply_sounding(estimate, Sounding(hour_utc=None, fof2_mhz=4.0, virtual_height_km=300.0))
+    np.testing.assert_allclose(sky.fof2_mhz, 4.0)
+    np.testing.assert_allclose(sky.reflection_height_km, 300.0)
+    assert set(sky.source) == {"observed"}
