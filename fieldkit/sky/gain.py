@@ -12,10 +12,10 @@ import json
 from dataclasses import dataclass
 
 import numpy as np
+from scipy.constants import c as SPEED_OF_LIGHT_M_S  # SI definition of the metre
 
 from fieldkit.errors import InputError, join
 
-SPEED_OF_LIGHT_M_S = 299_792_458.0  # SI definition
 DEFAULT_HEIGHT_WAVELENGTHS = 0.15  # default NVIS dipole height, 0.15 lambda (issue 4)
 # Cut length of a wire half-wave dipole, 468/f(MHz) ft = 142.6/f m (common practice, handbook rule)
 DEFAULT_LENGTH_M_MHZ = 468.0 * 0.3048

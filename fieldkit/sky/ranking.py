@@ -124,6 +124,8 @@ def recommend(schedule: Schedule, channels: list[tuple[float, list[HourReach]]],
         ),
         reverse=True,
     )
+    for rank, row in enumerate(ranked):
+        row["rank"] = rank  # 0 = recommended; the table itself stays in channel order
     top = ranked[0]
     target = (
         f"all of {', '.join(f'{d:g}' for d in schedule.distances_km)} km"

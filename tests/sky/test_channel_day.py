@@ -126,6 +126,10 @@ def test_schedule_recommendation(demo):
     # common practice: the lower band at night; in the December evening window an 80 m channel
     assert sched["recommended_mhz"] in (3.605, 3.79)
     assert str(sched["recommended_mhz"]) in sched["why"]
+    ranks = {c["frequency_mhz"]: c["rank"] for c in sched["channels"]}
+    assert ranks[sched["recommended_mhz"]] == 0 and sorted(ranks.values()) == list(
+        range(len(ranks))
+    )
 
 
 def test_sounding_overrides_and_is_marked():
