@@ -21,7 +21,7 @@ import numpy as np
 
 from .geometry import Mesh
 from .grounds import Ground
-from .kernel import mirror
+from .kernel import gauss01
 from .materials import ETA0, MU0
 
 
@@ -34,17 +34,25 @@ def directions(elevation_deg: np.ndarray, azimuth_deg: np.ndarray) -> np.ndarray
     )
 
 
-def _radiation_vector(start, tangent, length, i_start, i_end, rhat, k) -> np.ndarray:
-    """N(r̂) = Σ ∫ I(l) t e^{jk r̂·r(l)} dl over segments, linear current per segment [A·m]."""
-    phase0 = np.exp(1j * k * (rhat @ start.T))  # (D, S)
-    alpha = k * (rhat @ tangent.T) * length[None, :]
-    small = np.abs(alpha) < 1e-3
-    a = np.where(small, 1.0, alpha)
-    ea = np.exp(1j * a)
-    e0 = np.where(small, 1 + 0.5j * alpha - alpha**2 / 6, (ea - 1) / (1j * a))
-    e1 = np.where(small, 0.5 + 1j * alpha / 3 - alpha**2 / 8, ea / (1j * a) + (ea - 1) / a**2)
-    amp = (i_start[None, :] * (e0 - e1) + i_end[None, :] * e1) * length[None, :] * phase0
-    return amp @ tangent  # (D, 3)
+def _radiation_vectors(mesh: Mesh, i_start, i_end, rhat, k, with_image: bool):
+    """N(r̂) = Σ ∫ I(l) t e^{jk r̂·r(l)} dl for the wires and for their mirror image [A·m].
+
+    Each segment (≤ λ/80 long) is integrated by its midpoint with the mean of its end currents;
+    the relative error is (kΔ)²/24 < 3e-4. The horizontal phase is shared by wire and image.
+    """
+    c = mesh.centre
+    moment = (0.5 * (i_start + i_end) * mesh.length)[:, None] * mesh.tangent  # (S, 3)
+    horiz = np.exp(1j * k * (rhat[:, :2] @ c[:, :2].T))  # (D, S)
+    if len(rhat) > 64:  # a grid repeats its elevations: one vertical phase per elevation
+        rz, inverse = np.unique(rhat[:, 2], return_inverse=True)
+        vert = np.exp(1j * k * np.outer(rz, c[:, 2]))[inverse.ravel()]
+    else:
+        vert = np.exp(1j * k * np.outer(rhat[:, 2], c[:, 2]))
+    direct = (horiz * vert) @ moment
+    if not with_image:
+        return direct, None
+    image = (horiz * vert.conj()) @ (moment * np.array([1.0, 1.0, -1.0]))
+    return direct, image
 
 
 def fresnel(
@@ -68,23 +76,23 @@ def far_field(
     k = 2 * math.pi * frequency_hz / 299_792_458.0
     shape = rhat.shape[:-1]
     r = rhat.reshape(-1, 3)
-    sin_t = np.sqrt(np.maximum(0.0, 1 - r[:, 2] ** 2))
-    phi = np.arctan2(r[:, 1], r[:, 0])
-    th_hat = np.stack([r[:, 2] * np.cos(phi), r[:, 2] * np.sin(phi), -sin_t], axis=-1)
-    ph_hat = np.stack([-np.sin(phi), np.cos(phi), np.zeros_like(phi)], axis=-1)
-    n_dir = _radiation_vector(mesh.start, mesh.tangent, mesh.length, i_start, i_end, r, k)
-    n_th = np.einsum("di,di->d", n_dir, th_hat)
-    n_ph = np.einsum("di,di->d", n_dir, ph_hat)
-    if ground.kind != "free-space":
-        n_img = _radiation_vector(
-            mirror(mesh.start), mirror(mesh.tangent), mesh.length, i_start, i_end, r, k
-        )
-        gv, gh = fresnel(ground, frequency_hz, r[:, 2])
-        n_th = n_th - gv * np.einsum("di,di->d", n_img, th_hat)
-        n_ph = n_ph + gh * np.einsum("di,di->d", n_img, ph_hat)
-        below = r[:, 2] < 0
-        n_th = np.where(below, 0, n_th)
-        n_ph = np.where(below, 0, n_ph)
+    rx, ry, rz = r[:, 0], r[:, 1], r[:, 2]
+    sin_t = np.sqrt(np.maximum(0.0, 1 - rz * rz))
+    phi = np.arctan2(ry, rx)
+    cos_p, sin_p = np.cos(phi), np.sin(phi)
+    n_dir, n_img = _radiation_vectors(mesh, i_start, i_end, r, k, ground.kind != "free-space")
+
+    def theta_phi(n):  # components along θ̂ = (cosθ cosφ, cosθ sinφ, −sinθ) and φ̂ = (−sinφ, cosφ, 0)
+        horiz = n[:, 0] * cos_p + n[:, 1] * sin_p
+        return rz * horiz - sin_t * n[:, 2], n[:, 1] * cos_p - n[:, 0] * sin_p
+
+    n_th, n_ph = theta_phi(n_dir)
+    if n_img is not None:
+        i_th, i_ph = theta_phi(n_img)
+        gv, gh = fresnel(ground, frequency_hz, rz)
+        above = rz >= 0
+        n_th = np.where(above, n_th - gv * i_th, 0)
+        n_ph = np.where(above, n_ph + gh * i_ph, 0)
     factor = -1j * 2 * math.pi * frequency_hz * MU0 / (4 * math.pi)
     return (factor * n_th).reshape(shape), (factor * n_ph).reshape(shape)
 
@@ -102,17 +110,33 @@ def radiated_power(
     ground: Ground,
     frequency_hz: float,
     *,
-    n_el: int = 24,
-    n_az: int = 36,
+    n_el: int | None = None,
+    n_az: int | None = None,
+    grid: dict | None = None,
 ) -> float:
-    """Power carried by the space wave, integrated over the upper half-space (or sphere) [W]."""
-    x, w = np.polynomial.legendre.leggauss(n_el)
+    """Power carried by the space wave, integrated over the upper half-space (or sphere) [W].
+
+    Gauss–Legendre in sin(elevation) and the trapezoidal rule in azimuth (exact for a periodic,
+    band-limited integrand); the number of points follows the electrical size k·r of the wires and
+    their image (12 suffice below ~1 λ: error < 1e-8 against 48 × 72 points, docs/engine.md).
+    When ``grid`` is given it receives the directions and intensities [W/sr] used.
+    """
+    if n_el is None or n_az is None:
+        k = 2 * math.pi * frequency_hz / 299_792_458.0
+        c = mesh.centre
+        size = float(np.max(np.linalg.norm(c - np.r_[c[:, :2].mean(axis=0), 0.0], axis=1)))
+        n = max(12, math.ceil(2 * k * size) + 6)
+        n_el, n_az = n_el or n, n_az or n
+    x, w = gauss01(n_el)
     if ground.kind == "free-space":
-        mu, wmu = x, w  # cos θ over [-1, 1]
+        mu, wmu = 2 * x - 1, 2 * w  # sin(elevation) over [-1, 1]
     else:
-        mu, wmu = 0.5 * (x + 1), 0.5 * w  # upper half-space
+        mu, wmu = x, w  # upper half-space
     el = np.degrees(np.arcsin(mu))
     az = np.arange(n_az) * 360.0 / n_az
     e_th, e_ph = far_field(mesh, i_start, i_end, ground, frequency_hz, directions(el, az))
     intensity = (np.abs(e_th) ** 2 + np.abs(e_ph) ** 2) / ETA0  # W/sr, RMS fields
-    return float((intensity * wmu[None, :]).sum() * (2 * math.pi / n_az))
+    power = float((intensity * wmu[None, :]).sum() * (2 * math.pi / n_az))
+    if grid is not None:
+        grid.update(elevation_deg=el, azimuth_deg=az, intensity_w_sr=intensity)
+    return power

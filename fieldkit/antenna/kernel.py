@@ -24,6 +24,7 @@ References
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 
 import numpy as np
 
@@ -34,10 +35,25 @@ N_TEST = 5  # Gauss points on the testing segment
 N_SOURCE = 4  # Gauss points for the smooth part on the source segment
 
 
+@lru_cache(maxsize=16)
 def gauss01(n: int) -> tuple[np.ndarray, np.ndarray]:
-    """Gauss–Legendre nodes and weights on [0, 1]."""
+    """Gauss–Legendre nodes and weights on [0, 1] (cached; treat as read-only)."""
     x, w = np.polynomial.legendre.leggauss(n)
     return 0.5 * (x + 1), 0.5 * w
+
+
+def basis_weights(mesh: Mesh, u: np.ndarray, w: np.ndarray) -> np.ndarray:
+    """Map from basis coefficients to current × weight at every Gauss point, (N·Q, M).
+
+    Row (s, q) holds Σ over the halves on segment s of sign · Λ(u_q) · w_q · Δ_s, so that
+    Cᵀ T C is the Galerkin matrix of a point-to-point coupling T.
+    """
+    n, q, m = mesh.n_segments, len(u), mesh.n_basis
+    shape_vals = np.where(mesh.half_shape[:, None] == 0, u[None, :], 1 - u[None, :])  # (H, Q)
+    vals = shape_vals * (mesh.half_sign * mesh.length[mesh.half_seg])[:, None] * w[None, :]
+    c = np.zeros((n, q, m))
+    np.add.at(c, (mesh.half_seg, slice(None), np.arange(len(mesh.half_seg)) // 2), vals)
+    return c.reshape(n * q, m)
 
 
 def potential_integrals(

@@ -19,7 +19,6 @@ from dataclasses import dataclass
 from typing import Literal
 
 import numpy as np
-from scipy import special
 
 MU0 = 4e-7 * math.pi  # vacuum permeability [H/m] (classical SI value; CODATA 2018 differs by 5e-10)
 EPS0 = 8.8541878128e-12  # vacuum permittivity [F/m] (CODATA 2018)
@@ -75,13 +74,24 @@ def _round_wire_impedance(
     """Internal impedance per length of a solid round wire [ohm/m], exact Bessel form.
 
     Z' = k J0(k a) / (2 pi a sigma J1(k a)), k = sqrt(-j omega mu sigma) (Ramo et al. §5.12, eq. 5.12(6)).
-    Exponentially scaled Bessel functions keep the ratio finite for a >> delta.
+    The Bessel ratio comes from a backward recurrence that stays finite for a >> delta.
     """
     omega = 2 * math.pi * frequency_hz
-    k = np.sqrt(-1j * omega * MU0 * mu_r * sigma)
-    ka = k * radius_m
-    ratio = special.jve(0, ka) / special.jve(1, ka)
+    k = complex(np.sqrt(-1j * omega * MU0 * mu_r * sigma))
+    ratio = bessel_j0_over_j1(k * radius_m)
     return complex(k * ratio / (2 * math.pi * radius_m * sigma))
+
+
+def bessel_j0_over_j1(z: complex) -> complex:
+    """J0(z)/J1(z) by the backward recurrence ρn = 1/(2n/z − ρn+1), ρn = Jn/Jn−1 [-].
+
+    Miller's backward recurrence for Bessel-function ratios (Abramowitz & Stegun 9.12; Gautschi,
+    SIAM Review 9(1), 1967) is stable for any complex z; started |z| + 40 orders up.
+    """
+    rho = 0j
+    for n in range(int(abs(z)) + 40, 0, -1):
+        rho = 1.0 / (2 * n / z - rho)
+    return 1.0 / rho
 
 
 def conductor_impedance_per_m(*, conductor: str, frequency_hz: float, radius_m: float) -> complex:

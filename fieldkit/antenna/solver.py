@@ -14,6 +14,7 @@ References
 from __future__ import annotations
 
 import math
+from collections import OrderedDict
 from collections.abc import Iterable
 from dataclasses import dataclass, field
 
@@ -29,7 +30,7 @@ from .materials import C0, conductor_impedance_per_m, insulation_impedance_per_m
 
 MIN_FREQUENCY_HZ = 0.1e6
 MAX_FREQUENCY_HZ = 60e6
-BEAMWIDTH_STEP_DEG = 0.25  # sampling of the elevation cuts for −3 dB widths
+BEAMWIDTH_STEP_DEG = 3.0  # coarse sampling of the cuts for −3 dB widths (crossings refined)
 
 
 @dataclass(frozen=True)
@@ -77,15 +78,21 @@ class Solution:
     def _maximum(self) -> tuple[float, float, float]:
         if "max" not in self._cache:
             lo = -90.0 if self.ground.kind == "free-space" else 0.0
-            el = np.arange(lo, 90.01, 2.0)
-            az = np.arange(0.0, 360.0, 5.0)
-            g = self.gain_dbi(el, az)
+            coarse = self._cache.get("grid")
+            if coarse is None:
+                el, az = np.arange(lo, 90.01, 10.0), np.arange(0.0, 360.0, 15.0)
+                g = self.gain_dbi(el, az)
+            else:  # the power-integration grid of solve() already covers the sky
+                el, az, g = coarse["elevation_deg"], coarse["azimuth_deg"], coarse["intensity_w_sr"]
             ia, ie = np.unravel_index(np.argmax(g), g.shape)
-            el2 = np.clip(el[ie] + np.arange(-2, 2.01, 0.25), lo, 90)
-            az2 = az[ia] + np.arange(-5, 5.01, 0.5)
-            g2 = self.gain_dbi(el2, az2)
-            ja, je = np.unravel_index(np.argmax(g2), g2.shape)
-            self._cache["max"] = (float(g2[ja, je]), float(el2[je]), float(az2[ja] % 360))
+            best_el, best_az = el[ie], az[ia]
+            for step in (3.0, 1.0, 0.25):  # local refinements around the best direction
+                el2 = np.clip(best_el + step * np.arange(-3, 4), lo, 90)
+                az2 = best_az + 1.5 * step * np.arange(-3, 4)
+                g2 = self.gain_dbi(el2, az2)
+                ja, je = np.unravel_index(np.argmax(g2), g2.shape)
+                best_el, best_az = el2[je], az2[ja]
+            self._cache["max"] = (float(g2[ja, je]), float(best_el), float(best_az % 360))
         return self._cache["max"]
 
     @property
@@ -132,29 +139,77 @@ class Solution:
 
 
 def _cut_beamwidth(sol: Solution, azimuth_deg: float) -> float:
-    """−3 dB width of the lobe holding the maximum of the vertical cut at azimuth and azimuth+180."""
+    """−3 dB width of the lobe holding the maximum of the vertical cut through zenith [deg].
+
+    The cut runs from the horizon at ``azimuth_deg`` (0°) over zenith (90°) to the opposite
+    horizon (180°). Sampled every BEAMWIDTH_STEP_DEG, then the peak and both −3 dB crossings are
+    refined on a 0.25° grid inside their brackets.
+    """
+    a = math.radians(azimuth_deg)
+    lo, hi = (-90.0, 270.0) if sol.ground.kind == "free-space" else (0.0, 180.0)
+
+    def gain(theta):
+        t = np.radians(np.asarray(theta, dtype=float))
+        rhat = np.stack([np.cos(t) * math.cos(a), np.cos(t) * math.sin(a), np.sin(t)], axis=-1)
+        e_th, e_ph = farfield.far_field(
+            sol.mesh, *sol.segment_currents_a, sol.ground, sol.frequency_hz, rhat
+        )
+        g_th, g_ph = farfield.gain_from_field(e_th, e_ph, sol.power_w["input"])
+        return 10 * np.log10(np.maximum(g_th + g_ph, 1e-30))
+
     step = BEAMWIDTH_STEP_DEG
-    lo = -90.0 if sol.ground.kind == "free-space" else 0.0
-    el = np.arange(lo, 90.0 + step / 2, step)
-    g = sol.gain_dbi(el, [azimuth_deg, azimuth_deg + 180.0])
-    # angle from the horizon on one side (0) over zenith (90) to the other horizon (180)
-    theta = np.concatenate([el, 180.0 - el[::-1][1:]])
-    cut = np.concatenate([g[0], g[1][::-1][1:]])
+    theta = np.arange(lo, hi + step / 2, step)
+    cut = gain(theta)
     peak = int(np.argmax(cut))
-    level = cut[peak] - 3.0
-    i = peak
+    fine = np.clip(theta[peak] + np.arange(-step, step + 0.01, 0.25), lo, hi)
+    level = float(gain(fine).max()) - 3.0
+    i, j = peak, peak
     while i > 0 and cut[i - 1] >= level:
         i -= 1
-    j = peak
     while j < len(cut) - 1 and cut[j + 1] >= level:
         j += 1
-    left = theta[i] if i == 0 else np.interp(level, [cut[i - 1], cut[i]], [theta[i - 1], theta[i]])
-    right = (
-        theta[j]
-        if j == len(cut) - 1
-        else np.interp(level, [cut[j + 1], cut[j]], [theta[j + 1], theta[j]])
+
+    def crossing(inner: int, outer: int) -> float:
+        t = np.linspace(theta[outer], theta[inner], 9)
+        g = gain(t)
+        k = int(np.argmax(g >= level))  # first sample inside the lobe, walking inward
+        if k == 0:
+            return float(t[0])
+        return float(np.interp(level, [g[k - 1], g[k]], [t[k - 1], t[k]]))
+
+    left = float(theta[0]) if i == 0 else crossing(i, i - 1)
+    right = float(theta[-1]) if j == len(cut) - 1 else crossing(j, j + 1)
+    return right - left
+
+
+_FREE_SPACE_CACHE: OrderedDict[bytes, np.ndarray] = OrderedDict()
+_FREE_SPACE_CACHE_SIZE = 32
+
+
+def _free_space_matrix_cached(mesh: Mesh, k: float, omega: float) -> np.ndarray:
+    """Free-space matrix, reused for translated copies of the same wires (a rope-height sweep)."""
+    origin = mesh.start[0]
+    key = b"|".join(
+        np.ascontiguousarray(a).tobytes()
+        for a in (
+            np.array([k]),
+            mesh.start - origin,
+            mesh.end - origin,
+            mesh.radius,
+            mesh.half_seg,
+            mesh.half_shape,
+            mesh.half_sign,
+        )
     )
-    return float(right - left)
+    z = _FREE_SPACE_CACHE.get(key)
+    if z is None:
+        z = free_space_matrix(mesh, k, omega)
+        _FREE_SPACE_CACHE[key] = z
+        if len(_FREE_SPACE_CACHE) > _FREE_SPACE_CACHE_SIZE:
+            _FREE_SPACE_CACHE.popitem(last=False)
+    else:
+        _FREE_SPACE_CACHE.move_to_end(key)
+    return z
 
 
 def _ground_matrix(mesh: Mesh, ground: Ground, frequency_hz: float, k: float, omega: float):
@@ -228,7 +283,7 @@ def solve(
     for f in freqs:
         omega = 2 * math.pi * f
         k = omega / C0
-        zmat = free_space_matrix(mesh, k, omega) + _ground_matrix(mesh, ground, f, k, omega)
+        zmat = _free_space_matrix_cached(mesh, k, omega) + _ground_matrix(mesh, ground, f, k, omega)
         z_load = _series_loading(antenna, mesh, f)
         if np.any(z_load != 0):
             zmat = zmat + loading_matrix(mesh, z_load)
@@ -244,7 +299,8 @@ def solve(
         i_start, i_end = segment_end_currents(mesh, coeff)
         seg_sq = (np.abs(i_start) ** 2 + np.abs(i_end) ** 2 + (i_start * i_end.conj()).real) / 3
         conductor_loss = float((z_load.real * mesh.length * seg_sq).sum())
-        radiated = farfield.radiated_power(mesh, i_start, i_end, ground, f)
+        grid: dict = {}
+        radiated = farfield.radiated_power(mesh, i_start, i_end, ground, f, grid=grid)
         ground_loss = (
             max(0.0, power_w - radiated - conductor_loss) if ground.kind == "lossy" else 0.0
         )
@@ -267,6 +323,7 @@ def solve(
                 mesh=mesh,
                 ground=ground,
                 segment_currents_a=(i_start, i_end),
+                _cache={"grid": grid},
             )
         )
     return out

@@ -40,7 +40,7 @@ import numpy as np
 
 from .geometry import Mesh
 from .grounds import Ground
-from .kernel import gauss01
+from .kernel import basis_weights, gauss01
 from .materials import C0, EPS0
 
 # Two-level path (Aksun 1996): level 1 on u0 = k0 (T2 + t), 0 ≤ t ≤ T1; level 2 on
@@ -139,10 +139,11 @@ def _images_for(ground: Ground, frequency_hz: float) -> ComplexImages:
 def _kernels(k: float, r: np.ndarray):
     """G = e^{−jkR}/R and the derivative factors G1, G2 of ∂i∂j G = G2 XiXj + G1 δij."""
     jkr = 1j * k * r
-    g = np.exp(-jkr) / r
-    r2 = r * r
-    g1 = -(1 + jkr) * g / r2
-    g2 = (3 + 3 * jkr - (k * r) ** 2) * g / (r2 * r2)
+    inv = 1 / r
+    g = np.exp(-jkr) * inv
+    inv2 = inv * inv
+    g1 = -(1 + jkr) * g * inv2
+    g2 = (3 + jkr * (3 + jkr)) * g * (inv2 * inv2)
     return g, g1, g2
 
 
@@ -169,6 +170,25 @@ def reflected_coupling(obs, t_obs, src, t_src, im: ComplexImages) -> np.ndarray:
     return coupling_pairs(obs[io], t_obs[io], src[js], t_src[js], im).reshape(shape)
 
 
+def _image_sums(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) -> np.ndarray:
+    """The eight image sums (8, n) of the reflected coupling at (ρ², ζ) points."""
+    z = zeta[None, :] + beta[:, None]  # (I, n)
+    r = np.sqrt(rho2[None, :] + z * z)
+    g, g1, g2 = _kernels(k, r)
+    kg = k * k * g + g1
+    g2z = g2 * z
+    a_hd = a_h - a_d
+    return np.concatenate(
+        [
+            np.stack([a_h, a_v]) @ kg,
+            np.stack([a_d, a_c]) @ g1,
+            (a_hd @ g2)[None],
+            np.stack([a_hd, a_v]) @ g2z,
+            (a_v @ (g2z * z))[None],
+        ]
+    )
+
+
 def coupling_pairs(obs, t_obs, src, t_src, im: ComplexImages) -> np.ndarray:
     """As :func:`reflected_coupling`, for paired rows of obs/src (n, 3) → (n,)."""
     k = im.k0
@@ -182,17 +202,12 @@ def coupling_pairs(obs, t_obs, src, t_src, im: ComplexImages) -> np.ndarray:
     ph_x = px * dx + py * dy
     t_xy = tx * dx + ty * dy
     rho2 = dx * dx + dy * dy
-    z = zeta[None, :] + beta[:, None]  # (I, P)
-    r = np.sqrt(rho2[None, :] + z * z)
-    g, g1, g2 = _kernels(k, r)
-    kg = k * k * g + g1
-    g2z = g2 * z
-    a_hd = a_h - a_d
-    s_kgh, s_kgv = np.stack([a_h, a_v]) @ kg
-    s_g1d, s_g1c = np.stack([a_d, a_c]) @ g1
-    s_g2hd = a_hd @ g2
-    s_g2z_hd, s_g2z_v = np.stack([a_hd, a_v]) @ g2z
-    s_g2zz_v = a_v @ (g2z * z)
+    # the image sums depend on (ρ², ζ) only: evaluate them once per distinct pair (a straight or
+    # symmetric wire repeats the same separations many times)
+    key = np.round(rho2, 9) + 1j * np.round(zeta, 9)
+    uniq, inverse = np.unique(key, return_inverse=True)
+    sums = _image_sums(k, uniq.real, uniq.imag, beta, a_h, a_v, a_d, a_c)[:, inverse.ravel()]
+    s_kgh, s_kgv, s_g1d, s_g1c, s_g2hd, s_g2z_hd, s_g2z_v, s_g2zz_v = sums
     out = (s_kgh - s_g1d) * tp_h + s_kgv * pz * tz
     out += t_xy * (s_g2hd * ph_x + s_g2z_v * pz) + tz * (s_g2z_hd * ph_x + s_g2zz_v * pz)
     out += (k * k) * s_g1c * ph_x * tz
@@ -243,27 +258,21 @@ def lossy_ground_matrix(mesh: Mesh, ground: Ground, frequency_hz: float) -> np.n
     im = _images_for(ground, frequency_hz)
     omega = 2 * math.pi * frequency_hz
     u, w = gauss01(N_REFLECTED)
-    n, q = mesh.n_segments, len(u)
+    q = len(u)
     pts = (
         mesh.start[:, None, :]
         + u[None, :, None] * (mesh.length[:, None, None] * mesh.tangent[:, None, :])
     ).reshape(-1, 3)
     tan = np.repeat(mesh.tangent, q, axis=0)
-    wl = (w[None, :] * mesh.length[:, None]).reshape(-1)
     # reciprocity: the coupling matrix is symmetric, so only the upper triangle is computed
     iu, ju = np.triu_indices(len(pts))
     t = np.empty((len(pts), len(pts)), dtype=complex)
     vals = coupling_pairs(pts[iu], tan[iu], pts[ju], tan[ju], im)
     t[iu, ju] = vals
     t[ju, iu] = vals
-    t = (t * np.outer(wl, wl)).reshape(n, q, n, q)
-    shapes = np.stack([u, 1 - u])  # rising, falling
-    p = np.einsum("aq,pqsr,br->abps", shapes, t, shapes)
-    hs, ha, hg = mesh.half_seg, mesh.half_shape, mesh.half_sign
-    z_half = p[ha[:, None], ha[None, :], hs[:, None], hs[None, :]] * np.outer(hg, hg)
-    m = mesh.n_basis
+    c = basis_weights(mesh, u, w)
     # Z_mn = −∫ f_m · E[f_n] with E = Ê / (4π jωε0)
-    return -z_half.reshape(m, 2, m, 2).sum(axis=(1, 3)) / (4 * math.pi * 1j * omega * EPS0)
+    return -(c.T @ t @ c) / (4 * math.pi * 1j * omega * EPS0)
 
 
 def reflected_near_field(sol, points: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
