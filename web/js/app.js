@@ -2,7 +2,7 @@
 
 import { api, ApiError, onBusy, onSavedCopy, UnreachableError } from "./api.js";
 import { clear, h } from "./dom.js";
-import { kvGet, kvSet } from "./store.js";
+import { kvGet, kvSet, newClientId } from "./store.js";
 import { deploymentList, planInput, readChecks, readDeployment } from "./shapes.js";
 import { currentUnits, setUnits } from "./units.js";
 import * as queue from "./queue.js";
@@ -15,7 +15,6 @@ import * as card from "./card.js";
 
 const SECTIONS = { site, sky, wire, mast, checks, card };
 const SECTION_ORDER = ["site", "sky", "wire", "mast", "checks", "card"];
-const PLAN_DEBOUNCE_MS = 900;
 const REPLAY_EVERY_MS = 5000;
 
 const app = {
@@ -146,12 +145,15 @@ function emptyState() {
 
 function newDeploymentForm() {
   const form = h("form", { class: "grid-form", "data-testid": "new-deployment" });
-  const name = h("input", { id: "new-name", name: "name", required: true, autocomplete: "off", value: "" });
-  form.append(h("label", { for: "new-name", text: "Name" }), name);
-  form.append(h("button", { type: "submit", class: "primary", text: "Start deployment" }));
+  const name = h("input", { id: "new-name", name: "name", required: true, autocomplete: "off", value: "", "data-testid": "new-name" });
+  const kitSel = h("select", { id: "new-kit", "data-testid": "new-kit" }, [h("option", { value: "__service", text: "the operator's kit on this laptop" })]);
+  for (const d of app.state.deployments) kitSel.append(h("option", { value: d.id, text: `the same kit as “${d.name}”` }));
+  form.append(h("div", { class: "field" }, [h("label", { for: "new-name", text: "Name" }), name]));
+  form.append(h("div", { class: "field" }, [h("label", { for: "new-kit", text: "Kit (wire, rope, coax, masts)" }), kitSel]));
+  form.append(h("button", { type: "submit", class: "primary", "data-testid": "new-submit", text: "Start deployment" }));
   form.addEventListener("submit", async (ev) => {
     ev.preventDefault();
-    await createDeployment(name.value.trim() || "New deployment");
+    await createDeployment(name.value.trim() || "New deployment", kitSel.value);
   });
   return form;
 }
@@ -161,6 +163,7 @@ function renderDeploymentSelect() {
   const st = app.state;
   clear(sel);
   for (const d of st.deployments) sel.append(h("option", { value: d.id, text: d.name }));
+  if (st.draft && st.dep) sel.append(h("option", { value: st.id, text: `${st.dep.name} (not saved yet)` }));
   sel.append(h("option", { value: "__new", text: "+ New deployment" }));
   sel.value = st.id ?? "__new";
 }
@@ -189,6 +192,8 @@ async function openDeployment(id) {
   st.chosen = 0;
   st.extra = {};
   st.fromCache = false;
+  st.dirty = false;
+  st.draft = false;
   try {
     localStorage.setItem("fieldkit.last", id);
   } catch {
@@ -214,6 +219,7 @@ async function openDeployment(id) {
     }
     st.dep = saved.dep;
     st.revision = saved.revision;
+    st.dirty = Boolean(saved.dirty);
     st.fromCache = true;
   }
   const savedView = await kvGet(`view:${id}`);
@@ -237,51 +243,94 @@ async function openDeployment(id) {
 }
 app.openDeployment = openDeployment;
 
-async function createDeployment(name) {
+async function createDeployment(name, kitFrom = "__service") {
   let kit = {};
   try {
-    kit = (await call(api.kit)) ?? {};
-    if (kit.kit) kit = kit.kit;
+    if (kitFrom === "__service") {
+      const out = (await call(api.kit)) ?? {};
+      kit = out.kit ?? out;
+    } else {
+      kit = readDeployment(await call(() => api.getDeployment(kitFrom))).dep.kit ?? {};
+    }
   } catch (e) {
     showBanner(`Could not read the kit: ${e.message}`);
+    return;
+  }
+  if (!kit.wire) {
+    showBanner("That kit lists no wire: the plan needs the wire (and rope, coax). Choose another kit, or store the operator's kit on the laptop first.");
     return;
   }
   const today = new Date().toISOString().slice(0, 10);
   const dep = {
     name,
-    site: { name, lat_deg: 46.8, lon_deg: 8.2, ground: "average", supports: [], hazards: [] },
-    channels_mhz: [3.605],
+    site: { name, ground: "average", supports: [], hazards: [] },
+    channels_mhz: [],
     form: "auto",
     kit,
     radio: { power_w: 100, mode: "ssb" },
     schedule: { start_utc: "16:00", end_utc: "20:00" },
-    sky: { site: { lat_deg: 46.8, lon_deg: 8.2 }, date: today, solar: { f107: 120 }, channels_mhz: [3.605] },
+    sky: { site: {}, date: today, solar: { f107: 120 }, channels_mhz: [] },
   };
-  try {
-    const out = await call(() => api.createDeployment(dep));
-    await loadList();
-    app.state.section = "site";
-    location.hash = "#site";
-    await openDeployment(String(out.id));
-  } catch (e) {
-    showBanner(`Could not start the deployment: ${e.message}`);
-  }
+  // A draft lives on this device until its first "Save and plan": the service stores a deployment
+  // together with its plan, and a plan needs the place, the channels and two supports.
+  const st = app.state;
+  Object.assign(st, { id: `draft-${newClientId()}`, draft: true, dep, revision: null, plan: null, planFor: null, planError: null, sky: null, skyFor: null, checks: [], chosen: 0, extra: {}, dirty: true, fromCache: false });
+  await kvSet(`dep:${st.id}`, { dep, revision: null, dirty: true, draft: true });
+  st.section = "site";
+  if (location.hash !== "#site") location.hash = "#site";
+  render();
 }
 
-let saveTimer = null;
-/** Change the deployment: fn(dep) edits it in place; then save and re-plan after a pause. */
-app.change = (fn, { now = false } = {}) => {
+/**
+ * Change the deployment: fn(dep) edits it in place. The change is kept on this device at once and drawn
+ * at once; the plan (slow: the service models every option) runs on "Save and plan", or when the user
+ * leaves Site for a section that shows the plan.
+ */
+app.change = (fn) => {
   fn(app.state.dep);
-  kvSet(`dep:${app.state.id}`, { dep: app.state.dep, revision: app.state.revision });
-  clearTimeout(saveTimer);
-  saveTimer = setTimeout(saveAndPlan, now ? 0 : PLAN_DEBOUNCE_MS);
+  app.state.dirty = true;
+  kvSet(`dep:${app.state.id}`, { dep: app.state.dep, revision: app.state.revision, dirty: true });
+  if (app.state.section === "site") site.refresh(app, document.getElementById("sec-site"));
+};
+
+let saving = null;
+let saveAgain = false;
+/** Save the deployment and run the plan; a change made meanwhile is saved right after. */
+app.savePlan = async () => {
+  if (saving) {
+    saveAgain = true;
+    return saving;
+  }
+  saving = (async () => {
+    do {
+      saveAgain = false;
+      app.state.dirty = false;
+      await saveAndPlan();
+    } while (saveAgain);
+  })();
+  try {
+    await saving;
+  } finally {
+    saving = null;
+  }
 };
 
 async function saveAndPlan() {
   const st = app.state;
-  const id = st.id;
+  let id = st.id;
+  let justCreated = false;
   try {
-    const out = await call(() => app.api.saveDeployment(id, structuredClone(st.dep)));
+    if (st.draft) {
+      const made = await call(() => app.api.createDeployment(structuredClone(st.dep)));
+      st.draft = false;
+      id = st.id = String(made.id);
+      localStorage.setItem("fieldkit.last", id);
+      justCreated = true;
+      await loadList();
+      renderDeploymentSelect();
+    }
+    // Creating it ran the plan already; otherwise saving runs it.
+    const out = justCreated ? await call(() => app.api.getDeployment(id)) : await call(() => app.api.saveDeployment(id, structuredClone(st.dep)));
     const d = readDeployment(out);
     st.revision = d.revision;
     st.plan = d.plan;
@@ -293,8 +342,10 @@ async function saveAndPlan() {
     await saveView();
     showBanner(null);
   } catch (e) {
+    st.dirty = true;
     if (e instanceof UnreachableError) {
-      showBanner("The service cannot be reached: the change is kept on this device; press Plan again when it is back.", "warn");
+      showBanner("The service cannot be reached: the change is kept on this device; press Save and plan when it is back.", "warn");
+      app.refresh();
       return;
     }
     st.planError = e.message;
@@ -392,9 +443,11 @@ app.replay = replay;
 
 // ---------------------------------------------------------------- header controls and routing
 function go(section) {
-  app.state.section = SECTIONS[section] ? section : "site";
+  const st = app.state;
+  st.section = SECTIONS[section] ? section : "site";
   render();
   window.scrollTo(0, 0);
+  if (st.dep && st.dirty && ["wire", "mast", "checks", "card"].includes(st.section)) app.savePlan();
 }
 
 function setNight(on) {

@@ -24,6 +24,16 @@ export function cardText(dep, o, units) {
   return lines.join("\n");
 }
 
+/** Per hazard, the clearance with the least margin (the one that decides). */
+function tightestClearances(o) {
+  const by = new Map();
+  for (const c of o.safety?.clearances ?? []) {
+    const held = by.get(c.hazard);
+    if (!held || c.distance_m - c.required_m < held.distance_m - held.required_m) by.set(c.hazard, c);
+  }
+  return [...by.values()];
+}
+
 export function render(app, panel) {
   const st = app.state;
   const units = st.units;
@@ -53,9 +63,11 @@ export function render(app, panel) {
   cut.append(dl2);
   const safe = h("section", { class: "fc-block" }, [h("h3", { text: "Keep clear" })]);
   const dl3 = h("dl", { class: "big-list" });
-  dl3.append(h("dt", { text: "keep-out while sending" }), h("dd", { "data-testid": "card-keep-out", text: f(o.safety?.keep_out_m ?? 0) }));
+  dl3.append(h("dt", { text: "keep-out while sending" }), h("dd", { "data-testid": "card-keep-out", text: (o.safety?.keep_out_m ?? 0) > 0 ? f(o.safety.keep_out_m) : "none" }));
   if (Number.isFinite(o.safety?.min_end_height_m)) dl3.append(h("dt", { text: "ends at least" }), h("dd", { text: f(o.safety.min_end_height_m) }));
-  for (const c of o.safety?.clearances ?? []) dl3.append(h("dt", { text: "power line" }), h("dd", { class: c.ok ? "" : "warn", text: `${f(c.distance_m, 0)} (needs ${f(c.required_m, 0)})` }));
+  for (const c of tightestClearances(o)) {
+    dl3.append(h("dt", { text: `power line ${c.hazard + 1}: ${c.object}` }), h("dd", { class: c.ok ? "" : "warn", text: `${f(c.distance_m, 0)} ≥ ${f(c.required_m, 0)}` }));
+  }
   safe.append(dl3);
   const openChecks = h("section", { class: "fc-block fc-checks" }, [h("h3", { text: r.ready ? "Ready to raise" : `Open required checks (${r.open.length})` })]);
   if (r.raiseOk === false) openChecks.append(h("p", { class: "warn", text: "Do not raise: a clearance fails." }));

@@ -155,7 +155,6 @@ function ropeTable(dep, o, units) {
   dl.append(h("dt", { text: "Feedpoint height" }), h("dd", { text: formatLength(o.feedpoint_height_m, { units, digits: 1 }) }));
   if (Number.isFinite(o.safety?.min_end_height_m)) dl.append(h("dt", { text: "Lowest safe end height" }), h("dd", { text: formatLength(o.safety.min_end_height_m, { units, digits: 1 }) }));
   box.append(dl);
-  if (o.height_choice?.why || o.heights_why) box.append(h("p", { class: "hint", text: o.height_choice?.why ?? o.heights_why }));
   return box;
 }
 
@@ -207,9 +206,10 @@ function sweepPlot(o, units) {
     series: [{ points: nvis, cls: "series" }, { points: zen, cls: "series2" }],
     points: nvis.map(([x, y]) => ({ x, y, cls: "dot small" })),
     vlines,
-    legend: [{ cls: "series", label: "mean 60–90°" }, { cls: "series2", label: "zenith" }],
+    legend: [{ cls: "series", label: "NVIS mean" }, { cls: "series2", label: "zenith" }],
   }));
-  box.append(h("p", { class: "hint", text: "Each point is one rope-height setting the supports allow, modelled over the site's ground. The chosen height is marked; the right-hand limit is the highest the supports allow." }));
+  box.append(h("p", { class: "hint", text: `Each point is one rope-height setting the supports allow, modelled over the site's ground. NVIS mean: ${o.nvis?.figure ?? "mean gain over the NVIS elevations"}. The chosen height is marked; the supports' limit is the highest setting they allow.` }));
+  if (typeof o.height_choice === "string") box.append(h("p", { class: "hint", text: `Why this height: ${o.height_choice}.` }));
   return box;
 }
 

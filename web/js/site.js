@@ -3,7 +3,7 @@
 import { clear, h } from "./dom.js";
 import { coordField, field, lengthField, numberField, selectField, showFieldError } from "./fields.js";
 import { siteSketch } from "./sketch.js";
-import { EntryError, formatLength, parseLength, parseNumber } from "./units.js";
+import { EntryError, formatLength } from "./units.js";
 
 export { showFieldError };
 
@@ -30,6 +30,7 @@ export function refresh(app, panel) {
 function planStatus(app) {
   const st = app.state;
   const opt = chosenOption(app);
+  if (st.dirty) return h("p", { class: "note warn", "data-testid": "plan-status", text: "Changes not planned yet: press Save and plan (it takes a while: every option is modelled)." });
   if (st.planError && !opt) return h("p", { class: "note warn", "data-testid": "plan-status", text: st.planError });
   if (!opt) return h("p", { class: "note", "data-testid": "plan-status", text: "No plan yet." });
   const heights = Object.entries(opt.rope_heights_m ?? {}).map(([id, m]) => `${id} ${formatLength(m, { units: st.units, digits: 1 })}`);
@@ -52,7 +53,7 @@ export function render(app, panel) {
     h("span", { class: "key key-unsafe" }), "unsafe ", h("span", { class: "key key-wire" }), "wire ", h("span", { class: "key key-keepout" }), "keep-out ", h("span", { class: "key key-power" }), "power line",
   ]));
   panel.append(h("div", { "data-plan-status": "1" }, [planStatus(app)]));
-  panel.append(h("div", { class: "row" }, [h("button", { type: "button", class: "primary", "data-testid": "replan", text: "Plan again", on: { click: () => app.change(() => {}, { now: true }) } })]));
+  panel.append(h("div", { class: "row" }, [h("button", { type: "button", class: "primary", "data-testid": "save-plan", text: "Save and plan", on: { click: () => app.savePlan() } })]));
 
   // Supports
   const supports = dep.site.supports ?? (dep.site.supports = []);
@@ -287,7 +288,11 @@ function placeForm(app) {
     parse: (t) => {
       const parts = t.split(/[,;\s]+/).filter(Boolean);
       if (!parts.length) throw new EntryError("enter at least one channel, e.g. 3.605, 5.3715");
-      return parts.map((p) => parseNumber(p, { min: 1.5, max: 30, what: "a frequency in MHz between 1.5 and 30" }));
+      return parts.map((p) => {
+        const v = Number(p.replace(",", "."));
+        if (!/^\d*\.?\d+$/.test(p) || !(v >= 1.5 && v <= 30)) throw new EntryError(`channel "${p}": expected a frequency in MHz between 1.5 and 30`);
+        return v;
+      });
     },
     onValid: (v) => app.change((d) => { d.channels_mhz = v; d.sky.channels_mhz = v; }),
   }));

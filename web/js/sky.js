@@ -222,13 +222,13 @@ function soundingForm(app) {
   const use = h("button", { type: "button", class: "primary", "data-testid": "sounding-use", text: "Use this sounding" });
   use.addEventListener("click", () => {
     if (!f1.check().ok || !f2.check().ok) return;
-    app.change((d) => { d.sky = d.sky ?? {}; d.sky.sounding = { fof2_mhz: fo, virtual_height_km: hv }; }, { now: true });
+    app.change((d) => { d.sky = d.sky ?? {}; d.sky.sounding = { fof2_mhz: fo, virtual_height_km: hv }; });
     app.state.sky = null;
     app.render();
   });
   const drop = h("button", { type: "button", text: "Back to the estimate", disabled: !cur });
   drop.addEventListener("click", () => {
-    app.change((d) => delete d.sky.sounding, { now: true });
+    app.change((d) => delete d.sky.sounding);
     app.state.sky = null;
     app.render();
   });

@@ -118,3 +118,9 @@ export function formatMHz(mhz) {
   if (!Number.isFinite(mhz)) return "–";
   return `${+mhz.toFixed(4)} MHz`;
 }
+
+/** Short lengths (trim steps): centimetres or inches. */
+export function formatShort(metres, units = currentUnits()) {
+  if (!Number.isFinite(metres)) return "–";
+  return units === "imperial" ? `${(metres / 0.0254).toFixed(1)} in` : `${(metres * 100).toFixed(1)} cm`;
+}

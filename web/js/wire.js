@@ -5,7 +5,7 @@ import { ApiError } from "./api.js";
 import { clear, h, linePlot } from "./dom.js";
 import { numberField } from "./fields.js";
 import { legLengths } from "./shapes.js";
-import { formatLength, formatMHz } from "./units.js";
+import { formatLength, formatMHz, formatShort } from "./units.js";
 
 const SWEEP_SPAN = 0.05; // ±5 % around the channel: wide enough to show the dip after a poor first cut
 const SWEEP_POINTS = 21;
@@ -101,7 +101,7 @@ function trimTable(o, units) {
     rows = TRIM_STEPS_KHZ.map((k) => [k, trimPerLeg(leg, o.frequency_mhz, k / 1000), -trimPerLeg(leg, o.frequency_mhz, -k / 1000)]);
     source = "From length ∝ 1/frequency (common practice).";
   }
-  for (const [khz, cutM, addM] of rows) tb.append(h("tr", {}, [h("td", { text: `${khz} kHz` }), h("td", { text: formatLength(cutM, { units, digits: 3 }) }), h("td", { text: formatLength(addM, { units, digits: 3 }) })]));
+  for (const [khz, cutM, addM] of rows) tb.append(h("tr", {}, [h("td", { text: `${khz} kHz` }), h("td", { text: formatShort(cutM, units) }), h("td", { text: formatShort(addM, units) })]));
   t.append(tb);
   box.append(h("div", { class: "table-wrap" }, [t]), h("p", { class: "hint", text: `${source} Trim in small steps and measure again.` }));
   return box;

@@ -1,0 +1,355 @@
+"""The field app in Debian's chromium against the real service: a newcomer's walk through the demo
+scenario (SCENARIO.md) at a phone and a laptop viewport, ticks kept through a service restart, the
+offline reload from the service worker, the unit switch and entry errors at the field.
+
+Tests run in file order and share one service (one demo plan at start, one plan for the phone walk):
+the restart test uses the deployment the phone walk made.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+import time
+
+import pytest
+from conftest import ARTIFACTS, PLAN_TIMEOUT_MS, shot
+
+pytestmark = [pytest.mark.browser, pytest.mark.slow]
+
+SECTIONS = ("site", "sky", "wire", "mast", "checks", "card")
+FOOT_M = 0.3048  # international foot, exact
+WALK = {}  # what the phone walk made, for the tests after it
+
+
+def go(page, section: str, *, touch: bool) -> None:
+    link = page.locator(f"nav.sections a[data-section='{section}']")
+    link.tap() if touch else link.click()
+    page.wait_for_selector(f"#sec-{section}:not([hidden])")
+
+
+def fill(page, testid: str, value: str) -> None:
+    page.get_by_test_id(testid).fill(value)
+
+
+def add_support_xy(page, sid, height, x, y):
+    fill(page, "new-id", sid)
+    fill(page, "new-height", height)
+    page.get_by_test_id("mode-xy").click()
+    fill(page, "new-x", x)
+    fill(page, "new-y", y)
+    page.get_by_test_id("add-support-submit").click()
+    page.get_by_test_id(f"support-{sid}").wait_for()
+
+
+def metres(text: str) -> float:
+    m = re.search(r"(-?\d+(?:\.\d+)?)\s*(m|ft)\b", text)
+    assert m, f"no length in {text!r}"
+    return float(m.group(1)) * (FOOT_M if m.group(2) == "ft" else 1.0)
+
+
+def wait_plan(page) -> None:
+    page.wait_for_function(
+        "() => /^Plan:/.test(document.querySelector('[data-testid=plan-status]')?.textContent || '')",
+        timeout=PLAN_TIMEOUT_MS,
+    )
+
+
+def walk_sections(page, kind: str, *, touch: bool) -> None:
+    """See the plan in every section, read the cut list, tick every pre-raise check, print the card."""
+    go(page, "sky", touch=touch)
+    page.get_by_test_id("channel-day").wait_for(timeout=120_000)
+    rows = page.locator("[data-testid=channel-day] tbody tr")
+    assert rows.count() == 24
+    assert page.get_by_test_id("recommended-channel").inner_text().endswith("MHz")
+    assert "sunrise" in page.get_by_test_id("sun-times").inner_text()
+    shot(page, f"{kind}-sky")
+
+    go(page, "wire", touch=touch)
+    cut = page.get_by_test_id("cut-list")
+    legs = [metres(page.get_by_test_id(f"leg-{i}").inner_text()) for i in range(2)]
+    total = metres(page.get_by_test_id("total-wire").inner_text())
+    # Plausible NVIS dipole legs on 3.5-7.3 MHz: a quarter wave is 10-21 m (common practice)
+    assert all(8.0 < leg < 23.0 for leg in legs), legs
+    assert total > sum(legs)  # the wrap allowance is extra wire
+    assert cut.is_visible()
+    page.get_by_test_id("swr-plot").wait_for(timeout=120_000)
+    page.get_by_test_id("dip").fill("7.0")
+    assert re.search(r"(Cut|Add|leave)", page.get_by_test_id("retrim-result").inner_text())
+    shot(page, f"{kind}-wire")
+
+    go(page, "mast", touch=touch)
+    page.get_by_test_id("side-view").wait_for()
+    page.get_by_test_id("person").wait_for()
+    page.get_by_test_id("sweep-plot").wait_for()
+    page.get_by_test_id("pattern-plot").wait_for(timeout=120_000)
+    page.get_by_test_id("reach-plot").wait_for(timeout=120_000)
+    shot(page, f"{kind}-mast")
+
+    go(page, "checks", touch=touch)
+    ready = page.get_by_test_id("ready-state")
+    assert ready.get_attribute("data-ready") == "false"
+    fill(page, "initials", "AB" if kind == "phone" else "CD")
+    pre = page.locator("ul.checklist[data-stage='pre-raise'] li.check")
+    n = pre.count()
+    assert n >= 3
+    for i in range(n):
+        item = pre.nth(i)
+        if item.get_attribute("data-done") == "true":
+            continue
+        btn = item.locator("button.tick")
+        btn.tap() if touch else btn.click()
+        page.wait_for_function(
+            "(i) => { const li = document.querySelectorAll(\"ul.checklist[data-stage='pre-raise'] li.check\")[i];"
+            " return li && li.dataset.done === 'true' && !li.classList.contains('is-pending'); }",
+            arg=i,
+        )
+    page.wait_for_selector("[data-testid=ready-state][data-ready='true']")
+    assert "Ready to raise" in page.get_by_test_id("ready-state").inner_text()
+    shot(page, f"{kind}-checks")
+
+    go(page, "card", touch=touch)
+    card = page.get_by_test_id("field-card")
+    card.wait_for()
+    assert "Ready to raise" in card.inner_text()
+    assert page.get_by_test_id("card-qr").is_visible()
+    shot(page, f"{kind}-card")
+
+
+def print_card(page, kind: str, fmt: str) -> bytes:
+    page.emulate_media(media="print")
+    shot(page, f"{kind}-card-print")
+    pdf = page.pdf(format=fmt, print_background=True)
+    page.emulate_media(media="screen")
+    (ARTIFACTS / f"{kind}-card-{fmt}.pdf").write_bytes(pdf)
+    return pdf
+
+
+def page_count(pdf: bytes) -> int:
+    return len(re.findall(rb"/Type\s*/Page(?!s)", pdf))
+
+
+def test_phone_newcomer_walk(open_app, service):
+    """A newcomer on a phone enters the Larch Basin clearing from SCENARIO.md and gets to "ready"."""
+    page = open_app("phone")
+    page.get_by_test_id("deployment-select").select_option("__new")
+    page.get_by_test_id("new-name").fill("Larch Basin walk (phone)")
+    demo = service.get("/api/deployments")["deployments"][0]
+    page.get_by_test_id("new-kit").select_option(demo["id"])
+    page.get_by_test_id("new-submit").tap()
+    page.get_by_test_id("add-support").wait_for()
+
+    page.get_by_label("Latitude (°N)").fill("46.8")
+    page.get_by_label("Longitude (°E)").fill("8.2")
+    page.get_by_label("Date (UTC day)").fill("2026-12-01")
+    page.get_by_label("Ground").select_option("poor")
+    fill(page, "channels", "3.605, 3.79, 5.3715, 7.055, 7.185")
+
+    add_support_xy(page, "T1", "13.5 m", "-24", "6")
+    add_support_xy(page, "T2", "32.8 ft", "21 m", "-3 m")  # 32.8 ft = 10.0 m
+    # T3 by paces from the reference point: 40.36 paces of 0.75 m on bearing 7.59° = (4, 30)
+    fill(page, "new-id", "T3")
+    fill(page, "new-height", "12")
+    page.get_by_test_id("mode-paces").tap()
+    fill(page, "new-paces", "40.36")
+    fill(page, "new-pace-length", "0.75 m")
+    fill(page, "new-pace-bearing", "7.59")
+    page.get_by_test_id("add-support-submit").tap()
+    page.get_by_test_id("support-T3").wait_for()
+    # T4 by distance and bearing from T2: 30.36 m on 17.24° from (21, -3) = (30, 26)
+    fill(page, "new-id", "T4")
+    fill(page, "new-height", "8 m")
+    page.get_by_test_id("mode-bearing").tap()
+    page.get_by_test_id("new-from").select_option("T2")
+    fill(page, "new-distance", "30.36 m")
+    fill(page, "new-bearing", "17.24")
+    page.get_by_test_id("add-support-submit").tap()
+    page.get_by_test_id("support-T4").wait_for()
+    for sid, (x, y) in {"T3": (4.0, 30.0), "T4": (30.0, 26.0)}.items():
+        assert math.isclose(metres(page.get_by_test_id(f"x-{sid}").input_value()), x, abs_tol=0.05)
+        assert math.isclose(metres(page.get_by_test_id(f"y-{sid}").input_value()), y, abs_tol=0.05)
+    assert math.isclose(metres(page.get_by_test_id("height-T2").input_value()), 10.0, abs_tol=0.01)
+    page.get_by_test_id("unsafe-T3").check()
+    for tid, v in (
+        ("pl-x1", "-200"),
+        ("pl-y1", "-38"),
+        ("pl-x2", "200"),
+        ("pl-y2", "-38"),
+        ("pl-height", "8.5"),
+    ):
+        fill(page, tid, v)
+    page.get_by_test_id("add-power-line-submit").tap()
+    page.get_by_test_id("power-line-0").wait_for()
+    sketch = page.get_by_test_id("site-sketch")
+    assert sketch.locator("circle.support").count() == 4
+    assert sketch.locator("circle.support.unsafe").count() == 1
+    assert sketch.locator("line.power-line").count() == 1
+
+    page.get_by_test_id("save-plan").tap()
+    wait_plan(page)
+    status = page.get_by_test_id("plan-status").inner_text()
+    assert "T3" not in status.split("rope heights")[0], "the unsafe snag must not be used"
+    assert page.get_by_test_id("site-sketch").locator("[data-testid=sketch-wire]").count() == 1
+    shot(page, "phone-site")
+    WALK["id"] = page.evaluate("localStorage.getItem('fieldkit.last')")
+
+    walk_sections(page, "phone", touch=True)
+    pdf = print_card(page, "phone", "A4")
+    assert page_count(pdf) == 1
+    checks = service.get(f"/api/deployments/{WALK['id']}/checks")
+    assert checks["ready_to_raise"] is True, checks["missing_checks"]
+
+
+def test_pending_ticks_survive_a_service_restart(open_app, service):
+    """Ticks made while the service is stopped stay on the device, show as pending, and reach the
+    service exactly once when it is back (the contract's idempotent client_id)."""
+    assert WALK.get("id"), "needs the phone walk's deployment"
+    dep = WALK["id"]
+    page = open_app("phone", f"?deployment={dep}#checks")
+    page.get_by_test_id("initials").fill("EF")
+    items = page.locator("ul.checklist[data-stage='after-raise'] li.check")
+    assert items.count() >= 2
+    ids = [
+        items.nth(i).get_attribute("data-testid").removeprefix("check-")
+        for i in range(min(3, items.count()))
+    ]
+    before = {
+        it["id"]: it["acknowledgements"]
+        for it in service.get(f"/api/deployments/{dep}/checks")["items"]
+    }
+
+    service.stop()
+    for item_id in ids:
+        page.get_by_test_id(f"tick-{item_id}").tap()
+        page.get_by_test_id(f"pending-{item_id}").wait_for()
+    page.wait_for_function(
+        "(n) => (document.querySelector('[data-testid=pending-count]')?.textContent || '').startsWith(n + ' ')",
+        arg=len(ids),
+    )
+    assert "unreachable" in page.get_by_test_id("online-state").inner_text()
+    shot(page, "phone-checks-pending")
+    # A reload while the service is away keeps them (the laptop's service worker serves the app).
+    page.reload()
+    page.wait_for_selector("html[data-ready='1']")
+    page.get_by_test_id(f"pending-{ids[0]}").wait_for()
+
+    service.start()
+    page.wait_for_function(
+        "() => !document.querySelector('[data-testid=pending-count]')", timeout=30_000
+    )
+    after = {it["id"]: it for it in service.get(f"/api/deployments/{dep}/checks")["items"]}
+    for item_id in ids:
+        assert after[item_id]["done"] is True
+        assert after[item_id]["by"] == "EF"
+        assert after[item_id]["acknowledgements"] == before[item_id] + 1, (
+            "a tick was lost or doubled"
+        )
+    # Nothing is sent again on the next replay round.
+    time.sleep(6)
+    again = {
+        it["id"]: it["acknowledgements"]
+        for it in service.get(f"/api/deployments/{dep}/checks")["items"]
+    }
+    assert all(again[i] == after[i]["acknowledgements"] for i in ids)
+    page.get_by_test_id("pending-count").wait_for(state="detached")
+
+
+def test_laptop_walk(open_app, service):
+    """The team lead on the laptop goes through the demo deployment the service loaded."""
+    page = open_app("laptop")
+    demo = service.get("/api/deployments")["deployments"][0]
+    page.get_by_test_id("deployment-select").select_option(demo["id"])
+    page.get_by_test_id("support-T4").wait_for()
+    assert page.get_by_test_id("unsafe-T3").is_checked()
+    wait_plan(page)
+    shot(page, "laptop-site")
+    walk_sections(page, "laptop", touch=False)
+    pdf = print_card(page, "laptop", "Letter")
+    assert page_count(pdf) == 1
+    # night mode, for the record
+    page.get_by_test_id("night-toggle").click()
+    for section in ("site", "sky", "mast", "card"):
+        go(page, section, touch=False)
+        page.wait_for_timeout(300)
+        shot(page, f"laptop-night-{section}")
+    page.get_by_test_id("night-toggle").click()
+
+
+def test_offline_reload_on_the_laptop(open_app, service):
+    """With the service stopped, the laptop reopens the app and the deployment from the service worker."""
+    page = open_app("laptop")
+    page.wait_for_function("() => navigator.serviceWorker.controller !== null", timeout=30_000)
+    # Load once more under the worker, so the deployment's answers pass through it and are kept.
+    page.reload()
+    page.wait_for_selector("html[data-ready='1']")
+    name = page.get_by_test_id("deployment-select").locator("option:checked").inner_text()
+    go(page, "card", touch=False)
+    page.get_by_test_id("field-card").wait_for()
+    service.stop()
+    try:
+        page.reload()
+        page.wait_for_selector("html[data-ready='1']")
+        assert "unreachable" in page.get_by_test_id("online-state").inner_text()
+        assert (
+            page.get_by_test_id("deployment-select").locator("option:checked").inner_text() == name
+        )
+        page.get_by_test_id("field-card").wait_for()
+        assert "Rope heights" in page.get_by_test_id("field-card").inner_text()
+        go(page, "site", touch=False)
+        page.get_by_test_id("support-T1").wait_for()
+        shot(page, "laptop-offline-site")
+    finally:
+        service.start()
+
+
+def test_unit_switch_is_everywhere_and_stored(open_app, service):
+    page = open_app("phone", "#wire")
+    leg_m = metres(page.get_by_test_id("leg-0").inner_text())
+    assert page.get_by_test_id("leg-0").inner_text().endswith(" m")
+    page.get_by_test_id("units-toggle").tap()
+    text = page.get_by_test_id("leg-0").inner_text()
+    assert text.endswith(" ft")
+    assert math.isclose(metres(text), leg_m, abs_tol=0.02)
+    page.reload()
+    page.wait_for_selector("html[data-ready='1']")
+    go(page, "mast", touch=True)
+    assert all(t.endswith(" ft") for t in page.locator("[data-testid^=rope-]").all_inner_texts())
+    go(page, "site", touch=True)
+    assert page.get_by_test_id("height-T1").input_value().endswith(" ft")
+    shot(page, "phone-site-imperial")
+    page.get_by_test_id("units-toggle").tap()
+    assert page.get_by_test_id("height-T1").input_value().endswith(" m")
+
+
+@pytest.mark.parametrize(
+    ("testid", "typed", "expected"),
+    [
+        ("new-height", "12 parsecs", "unknown unit"),
+        ("new-height", "-3 m", "cannot be negative"),
+        ("new-height", "90 m", "at most"),
+        ("new-height", "tall", "is not a length"),
+        ("height-T1", "abc", "is not a length"),
+        ("new-bearing", "400", "at most 360"),
+        ("channels", "3.79, 45", "between 1.5 and 30"),
+        ("new-x", "12 m east", "is not a length"),
+    ],
+)
+def test_bad_entry_shows_the_error_at_the_field(open_app, service, testid, typed, expected):
+    page = open_app("phone", "#site")
+    if testid == "new-bearing":
+        page.get_by_test_id("mode-bearing").tap()
+    if testid == "channels":
+        page.get_by_test_id("place").locator("summary").tap()
+    field = page.get_by_test_id(testid)
+    field.fill(typed)
+    error = page.get_by_test_id(f"{testid}-error")
+    error.wait_for()
+    assert expected in error.inner_text()
+    assert field.get_attribute("aria-invalid") == "true"
+    # the error sits with its field, inside the same labelled block
+    assert field.locator("xpath=..").locator(".field-error").inner_text() == error.inner_text()
+    if testid == "new-height":
+        page.get_by_test_id("add-support-submit").tap()
+        assert "Fix the marked fields" in page.get_by_test_id("add-error").inner_text()
+    field.fill("12 m" if "height" in testid else "7.055" if testid == "channels" else "90")
+    error.wait_for(state="hidden")
