@@ -260,3 +260,68 @@ def test_outline_over_average_ground_agrees_with_the_real_near_field():
             heights = (0.5, 1.0, 1.8)
             assert ratio([[x - 0.15 * off[0], y - 0.15 * off[1], z] for z in heights]).max() > 1.0
             assert ratio([[x + 0.15 * off[0], y + 0.15 * off[1], z] for z in heights]).max() < 1.0
+
+
+def test_given_solution_gives_the_same_block(block):
+    # the caller's solution at another power: fields are rescaled by √(P/P_input)
+    w = Wire(points_m=np.array(INV_V["hung_wire_m"], float), radius_m=0.8e-3, conductor="copper")
+    sol = solve(
+        Antenna(wires=(w,), feed=Feed(wire=0, distance_m=INV_V["feed_distance_m"])),
+        frequencies_hz=[INV_V["frequency_mhz"] * 1e6],
+        ground=PERFECT,
+        power_w=1.0,
+    )[0]
+    again = safety_block(option=INV_V, site=SITE, radio=RADIO, ground=PERFECT, solution=sol)
+    assert again["keep_out_m"] == pytest.approx(block["keep_out_m"], abs=0.01)
+    assert again["min_end_height_m"] == pytest.approx(block["min_end_height_m"], abs=0.01)
+    with pytest.raises(InputError) as err:
+        safety_block(
+            option={**INV_V, "frequency_mhz": 7.1},
+            site=SITE,
+            radio=RADIO,
+            ground=PERFECT,
+            solution=sol,
+        )
+    assert err.value.field == "solution"
+
+
+def test_path_through_the_zone_and_low_wire_items(block):
+    # a footpath crossing under the west end (inside its zone) gets its own item
+    site = {
+        **SITE,
+        "hazards": [*SITE["hazards"], {"kind": "path", "points_m": [[-HALF, -20], [-HALF, 20]]}],
+    }
+    out = safety_block(option=INV_V, site=site, radio=RADIO, ground=PERFECT)
+    ids = {it["id"] for it in out["checklist"]}
+    assert "pre-path-in-zone-1" in ids
+    # ... but not a path 10 m away from every zone
+    far = {
+        **SITE,
+        "hazards": [*SITE["hazards"], {"kind": "path", "points_m": [[-40, 15], [40, 15]]}],
+    }
+    assert "pre-path-in-zone-1" not in {
+        it["id"]
+        for it in safety_block(option=INV_V, site=far, radio=RADIO, ground=PERFECT)["checklist"]
+    }
+    # ends at 2.0 m are within reach of a standing person (reach ~2.4 m, common practice)
+    low = copy.deepcopy(INV_V)
+    low["hung_wire_m"][0][2] = low["hung_wire_m"][2][2] = 2.0
+    low["feed_distance_m"] = float(np.hypot(HALF, APEX - 2.0))
+    out = safety_block(option=low, site=SITE, radio={"power_w": 10, "mode": "ssb"}, ground=PERFECT)
+    item = next(it for it in out["checklist"] if it["id"] == "pre-wire-in-reach")
+    assert "2.0 m" in item["text"] and item["required"]
+
+
+@pytest.mark.parametrize(
+    ("limit_set", "stricter"), [("icnirp-public", True), ("fcc-controlled", False)]
+)
+def test_limit_sets_order(block, limit_set, stricter):
+    # ICNIRP public at 3.79 MHz: 300/f^0.7 = 118 V/m < FCC uncontrolled 824/f = 217 V/m (tables)
+    # FCC controlled 1842/f = 486 V/m > uncontrolled
+    out = safety_block(option=INV_V, site=SITE, radio=RADIO, ground=PERFECT, limit_set=limit_set)
+    assert out["limit_set"] == limit_set
+    if stricter:
+        assert out["keep_out_m"] > block["keep_out_m"]
+        assert out["exposure"]["power_for_no_zone_w"] < block["exposure"]["power_for_no_zone_w"]
+    else:
+        assert out["exposure"]["power_for_no_zone_w"] > block["exposure"]["power_for_no_zone_w"]
