@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import json
 import logging
+import threading
 from collections.abc import Mapping
 from pathlib import Path
 from typing import Any
@@ -13,6 +14,7 @@ from flask import Flask
 from fieldkit import paths, store
 from fieldkit.errors import InputError
 from fieldkit.service import db, http, security, web
+from fieldkit.service.plancache import DEFAULT_ENTRIES, PlanCache
 from fieldkit.service.planning import run_plan
 from fieldkit.store import deployments
 from fieldkit.store.db import get_meta, set_meta
@@ -31,6 +33,9 @@ DEFAULTS: dict[str, Any] = {
     "KEY": None,  # LAN mode without a key: a new one is made
     "PUBLIC_URL": None,  # the address phones use, set by serve(); else the request's host
     "DEMO": True,  # load the demo deployment into an empty database on first start
+    "DEMO_PLAN": True,  # and plan it in the background
+    "PLAN_CACHE_ENTRIES": DEFAULT_ENTRIES,  # 0 turns the plan cache off
+    "PLAN_CACHE": None,  # a PlanCache to share between apps (tests share one per session)
     "MAX_CONTENT_LENGTH": MAX_CONTENT_LENGTH,
     "JSON_SORT_KEYS": False,
 }
@@ -72,37 +77,69 @@ def create_app(config: Mapping[str, Any] | None = None) -> Flask:
         app.register_blueprint(blueprint)
     app.register_blueprint(web.bp)
 
+    app.extensions["fieldkit_plan_cache"] = app.config.get("PLAN_CACHE") or PlanCache(
+        entries=app.config["PLAN_CACHE_ENTRIES"]
+    )
+    app.extensions["fieldkit_planning"] = set()
     if app.config["DEMO"]:
-        load_demo(app.config["DATABASE"])
+        load_demo(app)
     return app
 
 
-def load_demo(database: Path) -> str | None:
-    """On first start with an empty database, store the demo deployment (planned when possible).
+def load_demo(app: Flask) -> str | None:
+    """On first start with an empty database, store the demo deployment and plan it in the background.
 
-    Returns the new id, or None when the database already had deployments or had the demo once.
+    The demo is stored at once (a newcomer sees it immediately); its plan takes a while, so it is
+    computed in a daemon thread and stored when done (``"planning": true`` until then). Returns the
+    new id, or None when the database already had deployments or had the demo once.
     """
+    database = app.config["DATABASE"]
+    doc = json.loads(paths.demo_plan_path().read_text(encoding="utf-8"))
+    name = doc.pop("name", "Demo deployment")
     conn = store.connect(database)
     try:
-        if deployments.count(conn) or get_meta(conn, DEMO_MARKER):
-            return None
-        doc = json.loads(paths.demo_plan_path().read_text(encoding="utf-8"))
-        name = doc.pop("name", "Demo deployment")
-        try:
-            result, plan_error = run_plan(doc)
-        except InputError as exc:  # the demo must never keep the service from starting
-            log.warning("demo plan refused by the plan layer: %s", exc)
-            result, plan_error = None, exc.to_json()
-        except Exception:
-            log.exception("demo plan failed; stored without a result")
-            result, plan_error = None, {"error": "plan failed", "field": None, "detail": "see log"}
         with store.transaction(conn):
             if deployments.count(conn) or get_meta(conn, DEMO_MARKER):
                 return None
-            new_id = deployments.insert(
-                conn, name=name, plan_input=doc, plan_result=result, plan_error=plan_error
-            )
+            new_id = deployments.insert(conn, name=name, plan_input=doc, plan_result=None)
             set_meta(conn, DEMO_MARKER, new_id)
-        return new_id
     finally:
         conn.close()
+    if app.config["DEMO_PLAN"]:
+        planning = app.extensions["fieldkit_planning"]
+        planning.add(new_id)
+        cache = app.extensions["fieldkit_plan_cache"]
+        worker = threading.Thread(
+            target=_plan_in_background,
+            args=(database, new_id, doc, cache, planning),
+            name="fieldkit-demo-plan",
+            daemon=True,
+        )
+        worker.start()
+    return new_id
+
+
+def _plan_in_background(
+    database: Path, deployment_id: str, doc: dict, cache, planning: set
+) -> None:
+    try:
+        try:
+            result, plan_error = run_plan(doc, cache)
+        except InputError as exc:  # the demo must never keep the service from working
+            log.warning("demo plan refused by the plan layer: %s", exc)
+            result, plan_error = None, exc.to_json()
+        except Exception:
+            log.exception("demo plan failed; the demo stays without a result")
+            result = None
+            plan_error = {"error": "plan failed", "field": None, "detail": "see the service log"}
+        conn = store.connect(database)
+        try:
+            deployments.set_result(
+                conn, deployment_id, plan_result=result, plan_error=plan_error, revision=1
+            )
+        finally:
+            conn.close()
+    except Exception:  # e.g. the data directory vanished while planning (a test's temporary dir)
+        log.exception("could not store the demo plan")
+    finally:
+        planning.discard(deployment_id)

@@ -6,6 +6,7 @@ from flask import Blueprint, jsonify
 
 from fieldkit.service.http import json_body
 from fieldkit.service.layers import call_layer
+from fieldkit.service.planning import compute_plan, plan_cache
 
 bp = Blueprint("calc", __name__, url_prefix="/api")
 
@@ -25,4 +26,4 @@ def sky():
 @bp.post("/plan")
 def plan():
     spec = json_body()
-    return jsonify(call_layer("fieldkit.plan", "plan", spec))
+    return jsonify(compute_plan(spec, plan_cache()))

@@ -4,12 +4,12 @@ from __future__ import annotations
 
 from typing import Any
 
-from flask import Blueprint, jsonify
+from flask import Blueprint, current_app, jsonify
 
 from fieldkit.errors import InputError, text
 from fieldkit.service.db import get_db
 from fieldkit.service.http import json_body
-from fieldkit.service.planning import checklist_state, run_plan
+from fieldkit.service.planning import checklist_state, plan_cache, run_plan
 from fieldkit.store import deployments, transaction, transfer
 from fieldkit.store.errors import Conflict
 
@@ -42,6 +42,7 @@ def describe(conn, found: deployments.Deployment) -> dict[str, Any]:
         "created_at": found.created_at,
         "updated_at": found.updated_at,
         "revision": found.revision,
+        "planning": found.id in current_app.extensions["fieldkit_planning"],
         **ready,
     }
 
@@ -56,7 +57,7 @@ def create():
             if (held.name, held.plan_input) == (name, plan_input):
                 return jsonify({"id": held.id, "replayed": True}), 200
             raise Conflict("client_id", f"a different deployment with id {client_id!r} exists")
-    result, plan_error = run_plan(plan_input)
+    result, plan_error = run_plan(plan_input, plan_cache())
     with transaction(conn):
         if client_id is not None and deployments.find(conn, client_id) is not None:
             return jsonify({"id": client_id, "replayed": True}), 200
@@ -80,7 +81,8 @@ def list_deployments():
     out = []
     for found in deployments.list_all(conn):
         _items, ready = checklist_state(conn, found.id, found.plan_result)
-        out.append({**found.summary(), **ready})
+        planning = found.id in current_app.extensions["fieldkit_planning"]
+        out.append({**found.summary(), "planning": planning, **ready})
     return jsonify({"deployments": out})
 
 
@@ -95,7 +97,7 @@ def replace(deployment_id: str):
     name, _client_id, plan_input = split_body(json_body())
     conn = get_db()
     deployments.get(conn, deployment_id)  # 404 before spending time on a plan
-    result, plan_error = run_plan(plan_input)
+    result, plan_error = run_plan(plan_input, plan_cache())
     updated = deployments.update(
         conn,
         deployment_id,

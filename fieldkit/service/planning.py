@@ -6,7 +6,10 @@ import sqlite3
 from collections.abc import Mapping
 from typing import Any
 
+from flask import current_app
+
 from fieldkit.service.layers import LayerUnavailable, call_layer, layer_function
+from fieldkit.service.plancache import PlanCache
 from fieldkit.store import checks
 
 PRE_RAISE = "pre-raise"
@@ -16,13 +19,28 @@ CONFLICT_RULE = (
 )
 
 
-def run_plan(plan_input: Mapping[str, Any]) -> tuple[dict[str, Any] | None, dict[str, Any] | None]:
+def plan_cache() -> PlanCache | None:
+    return current_app.extensions.get("fieldkit_plan_cache")
+
+
+def compute_plan(spec: Any, cache: PlanCache | None = None) -> Any:
+    """``fieldkit.plan.plan(spec)``, through the cache when one is given."""
+
+    def compute(value: Any) -> Any:
+        return call_layer("fieldkit.plan", "plan", value)
+
+    return cache.get_or_compute(spec, compute) if cache is not None else compute(spec)
+
+
+def run_plan(
+    plan_input: Mapping[str, Any], cache: PlanCache | None = None
+) -> tuple[dict[str, Any] | None, dict[str, Any] | None]:
     """The plan result, or ``(None, error)`` when the plan layer is not in this build.
 
     Bad input raises :class:`fieldkit.errors.InputError` from the plan layer itself.
     """
     try:
-        return call_layer("fieldkit.plan", "plan", dict(plan_input)), None
+        return compute_plan(dict(plan_input), cache), None
     except LayerUnavailable as exc:
         return None, exc.to_json()
 

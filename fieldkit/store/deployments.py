@@ -173,3 +173,30 @@ def delete(conn: sqlite3.Connection, deployment_id: str) -> None:
         cursor = conn.execute("DELETE FROM deployments WHERE id = ?", (deployment_id,))
         if cursor.rowcount == 0:
             raise NotFound("id", f"no deployment with id {deployment_id!r}", value=deployment_id)
+
+
+def set_result(
+    conn: sqlite3.Connection,
+    deployment_id: str,
+    *,
+    plan_result: dict[str, Any] | None,
+    plan_error: dict[str, Any] | None,
+    revision: int,
+) -> bool:
+    """Store a plan computed in the background, only if the deployment is still at ``revision``.
+
+    Returns whether it was stored (an edit in the meantime wins; its own plan is already stored).
+    """
+    with transaction(conn):
+        cursor = conn.execute(
+            "UPDATE deployments SET plan_result = ?, plan_error = ?, updated_at = ?"
+            " WHERE id = ? AND revision = ?",
+            (
+                None if plan_result is None else dumps(plan_result),
+                None if plan_error is None else dumps(plan_error),
+                utc_now(),
+                deployment_id,
+                revision,
+            ),
+        )
+    return cursor.rowcount == 1

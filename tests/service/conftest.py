@@ -13,11 +13,20 @@ from service_fixtures import export_doc
 
 from fieldkit import paths
 from fieldkit.service import create_app
+from fieldkit.service.plancache import PlanCache
+
+
+@pytest.fixture(scope="session")
+def plan_cache():
+    """One plan cache for the session: the demo plan costs tens of CPU seconds; compute it once."""
+    return PlanCache()
 
 
 @pytest.fixture
-def app(tmp_path):
-    return create_app({"DATA_DIR": tmp_path / "data", "DEMO": False, "TESTING": True})
+def app(tmp_path, plan_cache):
+    return create_app(
+        {"DATA_DIR": tmp_path / "data", "DEMO": False, "TESTING": True, "PLAN_CACHE": plan_cache}
+    )
 
 
 @pytest.fixture

@@ -28,6 +28,7 @@ def create(client, body):
     return client.post("/api/deployments", json=body)
 
 
+@pytest.mark.slow
 def test_create_read_list_replace_delete(client, demo_input):
     response = create(client, demo_input)
     assert response.status_code == 201, response.json
@@ -50,12 +51,13 @@ def test_create_read_list_replace_delete(client, demo_input):
     assert [d["id"] for d in listed] == [new_id]
     assert listed[0]["site_name"] == demo_input["site"]["name"]
 
-    edited = {**demo_input, "name": "Larch Basin, second try", "form": "flat"}
+    # Re-planned with the same plan input: the session's plan cache answers, the revision moves on.
+    edited = {**demo_input, "name": "Larch Basin, second try"}
     replaced = client.put(f"/api/deployments/{new_id}", json=edited)
     assert replaced.status_code == 200, replaced.json
     assert replaced.json["revision"] == 2
     assert replaced.json["name"] == "Larch Basin, second try"
-    assert replaced.json["input"]["form"] == "flat"
+    assert replaced.json["result"] == got["result"]
 
     assert client.delete(f"/api/deployments/{new_id}").status_code == 200
     assert client.get(f"/api/deployments/{new_id}").status_code == 404
@@ -63,6 +65,7 @@ def test_create_read_list_replace_delete(client, demo_input):
 
 
 @pytest.mark.skipif(not PLAN_LAYER, reason="fieldkit.plan has not landed")
+@pytest.mark.slow
 def test_created_deployment_has_the_plan_layers_checklist(client, demo_input):
     new_id = create(client, demo_input).json["id"]
     got = client.get(f"/api/deployments/{new_id}").json
@@ -73,6 +76,15 @@ def test_created_deployment_has_the_plan_layers_checklist(client, demo_input):
     expected = got["result"]["options"][0]["safety"]["checklist"]
     assert [i["id"] for i in items] == [i["id"] for i in expected]
     assert all(i["done"] is False for i in items)
+    # Tick every required pre-raise item of the real plan: ready exactly when the last one lands,
+    # unless the plan's own safety verdict forbids raising.
+    required = [i["id"] for i in items if i["stage"] == "pre-raise" and i["required"]]
+    assert required, "a real plan has pre-raise checks"
+    for n, item_id in enumerate(required, start=1):
+        put = client.put(f"/api/deployments/{new_id}/checks/{item_id}", json=ack())
+        assert put.status_code == 200, put.json
+        raise_ok = got["result"]["options"][0]["safety"]["raise_ok"]
+        assert put.json["ready_to_raise"] is (raise_ok and n == len(required))
 
 
 @pytest.mark.parametrize(
@@ -106,6 +118,7 @@ def test_create_with_bad_plan_input_is_422_and_not_stored(client, demo_input):
     assert client.get("/api/deployments").json["deployments"] == []
 
 
+@pytest.mark.slow
 def test_create_with_client_id_is_idempotent(client, demo_input):
     body = {**demo_input, "name": "Offline-made", "client_id": str(uuid.uuid4())}
     first = create(client, body)
@@ -335,9 +348,12 @@ def test_kit_validation(client, body, field):
 def test_demo_loads_once_into_an_empty_database(tmp_path, demo_input):
     from fieldkit.service import create_app
 
-    client = create_app({"DATA_DIR": tmp_path / "d"}).test_client()
+    config = {"DATA_DIR": tmp_path / "d", "DEMO_PLAN": False}  # its plan is tested through POST
+    client = create_app(config).test_client()
     listed = client.get("/api/deployments").json["deployments"]
     assert [d["name"] for d in listed] == [demo_input["name"]]
+    got = client.get(f"/api/deployments/{listed[0]['id']}").json
+    assert got["input"] == {k: v for k, v in demo_input.items() if k != "name"}
     client.delete(f"/api/deployments/{listed[0]['id']}")
-    again = create_app({"DATA_DIR": tmp_path / "d"}).test_client()  # a restart
+    again = create_app(config).test_client()  # a restart
     assert again.get("/api/deployments").json["deployments"] == []
