@@ -122,7 +122,7 @@ export function refresh(app, panel) {
   body.append(h("p", { class: "legend-line" }, [
     "Reach (farthest distance): ", h("span", { class: "key reach-0" }), "none ", h("span", { class: "key reach-1" }), "< 100 km ",
     h("span", { class: "key reach-2" }), "100–250 km ", h("span", { class: "key reach-3" }), "> 250 km. ",
-    "Numbers are the reach in ", distanceUnit(units), "; “skip” is the nearest distance reached. Boxed rows: your schedule.",
+    "Numbers are the reach in ", distanceUnit(units), " (“+”: beyond the farthest distance computed); “skip”: nothing is heard nearer than this. Boxed rows: your schedule.",
   ]));
   body.append(soundingForm(app));
 }
@@ -196,16 +196,25 @@ function dayTable(sky, hours, rise, set, units) {
     tr.append(h("td", { class: "fo", text: Number.isFinite(sky.fof2_mhz?.[i]) ? sky.fof2_mhz[i].toFixed(1) : "–" }));
     for (const ch of sky.channels) {
       const c = ch.by_hour.find((x) => x.hour_utc === hr);
-      const td = h("td", { class: reachClass(c), title: c?.verdict ?? "" });
-      td.append(h("span", { class: "reach", text: c && c.max_range_km > 0 ? Math.round(toDisplayDistance(c.max_range_km, units)) : "–" }));
-      if (c && c.skip_km > 0) td.append(h("span", { class: "skip", text: `skip ${Math.round(toDisplayDistance(c.skip_km, units))}` }));
+      const td = h("td", { class: reachClass(c), title: c?.verdict ?? "", tabindex: "0", "data-verdict": c ? `${String(hr).padStart(2, "0")}:00 UTC, ${ch.frequency_mhz} MHz: ${c.verdict}` : "" });
+      const top = Math.max(...(sky.distances_km ?? [Infinity]));
+      const reach = c && c.max_range_km > 0 ? `${Math.round(toDisplayDistance(c.max_range_km, units))}${c.max_range_km >= top ? "+" : ""}` : "–";
+      td.append(h("span", { class: "reach", text: reach }));
+      if (c && c.skip_km > 0 && c.max_range_km > 0) td.append(h("span", { class: "skip", text: `skip ${Math.round(toDisplayDistance(c.skip_km, units))}` }));
       tr.append(td);
     }
     tbody.append(tr);
   });
   table.append(tbody);
+  const said = h("p", { class: "verdict", "data-testid": "verdict", "aria-live": "polite", text: "Tap a cell for its verdict." });
+  const tell = (ev) => {
+    const td = ev.target.closest("td[data-verdict]");
+    if (td && td.dataset.verdict) said.textContent = td.dataset.verdict;
+  };
+  table.addEventListener("click", tell);
+  table.addEventListener("focusin", tell);
   wrap.append(table);
-  return wrap;
+  return h("div", {}, [said, wrap]);
 }
 
 function soundingForm(app) {
