@@ -25,7 +25,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -59,6 +59,10 @@ POINT_LIKE_M = 0.5
 #: Stations along the wire: at most this spacing [m] and at most this many stations.
 STATION_STEP_M = 2.0
 MAX_STATIONS = 24
+#: Station spacing near a zone found on the coarse stations [m], and the share of the limit under the
+#: wire at a coarse station that calls for it.
+FINE_STATION_M = 0.5
+FINE_TRIGGER = 0.5
 #: Rays in the fan around each wire end (between the two side rays).
 FAN_RAYS = 5
 
@@ -109,39 +113,75 @@ class KeepOut:
     n_points: int
 
 
-def _rays(plan: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Ray origins and unit directions walking once around the plan polyline."""
-    seg = np.diff(plan, axis=0)
-    seg_len = np.linalg.norm(seg, axis=1)
-    keep = seg_len > 1e-9
-    length = float(seg_len.sum())
-    if length < POINT_LIKE_M:
-        # vertical or tiny wire: a full circle of rays from its centre
-        phi = np.linspace(0, 2 * np.pi, 4 * (FAN_RAYS + 1), endpoint=False)
-        dirs = np.column_stack([np.cos(phi), np.sin(phi)])
-        return np.repeat(plan.mean(axis=0)[None], len(phi), axis=0), dirs
-    seg, seg_len = seg[keep], seg_len[keep]
-    starts = plan[:-1][keep]
-    cum = np.concatenate([[0.0], np.cumsum(seg_len)])
-    n = int(min(MAX_STATIONS, max(2, math.ceil(length / STATION_STEP_M) + 1)))
-    s = np.linspace(0.0, length, n)
-    k = np.clip(np.searchsorted(cum, s, side="right") - 1, 0, len(seg) - 1)
-    tang = seg[k] / seg_len[k, None]
-    origin = starts[k] + ((s - cum[k]) / seg_len[k])[:, None] * seg[k]
+@dataclass(frozen=True)
+class _PlanLine:
+    """The wire in plan view as arc length → point and tangent."""
+
+    seg: np.ndarray
+    seg_len: np.ndarray
+    starts: np.ndarray
+    cum: np.ndarray
+
+    @property
+    def length(self) -> float:
+        return float(self.cum[-1])
+
+    @classmethod
+    def of(cls, plan: np.ndarray) -> _PlanLine:
+        seg = np.diff(plan, axis=0)
+        seg_len = np.linalg.norm(seg, axis=1)
+        keep = seg_len > 1e-9
+        return cls(
+            seg[keep],
+            seg_len[keep],
+            plan[:-1][keep],
+            np.concatenate([[0.0], np.cumsum(seg_len[keep])]),
+        )
+
+    def at(self, s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        k = np.clip(np.searchsorted(self.cum, s, side="right") - 1, 0, len(self.seg) - 1)
+        tang = self.seg[k] / self.seg_len[k, None]
+        return self.starts[k] + ((s - self.cum[k]) / self.seg_len[k])[:, None] * self.seg[k], tang
+
+
+# Rays carry a sort key (group, position) that walks once around the wire: left side forward (0),
+# the fan round the last end (1), right side backward (2), the fan round the first end (3).
+def _side_rays(pl: _PlanLine, s: np.ndarray):
+    origin, tang = pl.at(s)
     normal = np.column_stack([-tang[:, 1], tang[:, 0]])
+    keys = np.concatenate(
+        [np.column_stack([np.zeros_like(s), s]), np.column_stack([np.full_like(s, 2), -s])]
+    )
+    return np.vstack([origin, origin]), np.vstack([normal, -normal]), keys
+
+
+def _fan_rays(pl: _PlanLine):
     phi = np.linspace(0, np.pi, FAN_RAYS + 2)[1:-1]
+    (first, last), tang = pl.at(np.array([0.0, pl.length]))
+    n_first = np.array([-tang[0, 1], tang[0, 0]])
+    n_last = np.array([-tang[1, 1], tang[1, 0]])
+    end = np.cos(phi)[:, None] * n_last + np.sin(phi)[:, None] * tang[1]
+    start = np.cos(phi)[:, None] * -n_first + np.sin(phi)[:, None] * -tang[0]
+    idx = np.arange(FAN_RAYS, dtype=float)
+    keys = np.concatenate(
+        [np.column_stack([np.ones_like(idx), idx]), np.column_stack([np.full_like(idx, 3), idx])]
+    )
+    return (
+        np.vstack([np.repeat(last[None], FAN_RAYS, 0), np.repeat(first[None], FAN_RAYS, 0)]),
+        np.vstack([end, start]),
+        keys,
+    )
 
-    def fan(a: np.ndarray, u: np.ndarray) -> np.ndarray:
-        return np.cos(phi)[:, None] * a + np.sin(phi)[:, None] * u
 
-    o = [
-        origin,
-        np.repeat(origin[-1:], FAN_RAYS, 0),
-        origin[::-1],
-        np.repeat(origin[:1], FAN_RAYS, 0),
-    ]
-    d = [normal, fan(normal[-1], tang[-1]), -normal[::-1], fan(-normal[0], -tang[0])]
-    return np.vstack(o), np.vstack(d)
+def _circle_rays(plan: np.ndarray):
+    """A wire vertical (or tiny) in plan view: a full circle of rays from its centre."""
+    phi = np.linspace(0, 2 * np.pi, 4 * (FAN_RAYS + 1), endpoint=False)
+    keys = np.column_stack([np.zeros_like(phi), phi])
+    return (
+        np.repeat(plan.mean(axis=0)[None], len(phi), axis=0),
+        np.column_stack([np.cos(phi), np.sin(phi)]),
+        keys,
+    )
 
 
 class _Evaluator:
@@ -183,10 +223,24 @@ def _crossing(d0: np.ndarray, d1: np.ndarray, r0: np.ndarray, r1: np.ndarray) ->
 class _Lines:
     boundary: np.ndarray  # (rays, heights) distance along the ray where the ratio falls to 1 [m]
     inside: np.ndarray  # (rays, heights) the ray starts inside a zone at that height
+    head_foot: np.ndarray  # (rays,) ratio at head height under the wire where the ray starts
     max_ratio: float
     max_point_m: np.ndarray
     touching: bool
     beyond: bool
+
+
+def _merge(a: _Lines, b: _Lines) -> _Lines:
+    best = a if a.max_ratio >= b.max_ratio else b
+    return _Lines(
+        boundary=np.vstack([a.boundary, b.boundary]),
+        inside=np.vstack([a.inside, b.inside]),
+        head_foot=np.concatenate([a.head_foot, b.head_foot]),
+        max_ratio=best.max_ratio,
+        max_point_m=best.max_point_m,
+        touching=a.touching or b.touching,
+        beyond=a.beyond or b.beyond,
+    )
 
 
 def _boundaries(
@@ -301,6 +355,7 @@ def _boundaries(
     return _Lines(
         boundary=boundary.reshape(n_rays, n_h),
         inside=inside.reshape(n_rays, n_h),
+        head_foot=r_foot[:, top],
         max_ratio=best["ratio"],
         max_point_m=np.asarray(best["point"]),
         touching=touching,
@@ -392,16 +447,48 @@ def keep_out(
         fields, wire, e_limit=e_limit, h_limit=h_limit, averaging_factor=averaging_factor
     )
     plan = wire[:, :2]
-    origins, dirs = _rays(plan)
     heights = np.array(PERSON_HEIGHTS_M)
-    plan_length = float(np.linalg.norm(np.diff(plan, axis=0), axis=1).sum())
-    lines = _boundaries(
-        ev,
-        origins,
-        dirs,
-        heights,
-        wire_low=bool(wire[:, 2].min() < heights.max() + LOW_WIRE_MARGIN_M),
-        point_like=plan_length < POINT_LIKE_M,
+    pl = _PlanLine.of(plan)
+    point_like = len(pl.seg) == 0 or pl.length < POINT_LIKE_M
+    kw = {
+        "wire_low": bool(wire[:, 2].min() < heights.max() + LOW_WIRE_MARGIN_M),
+        "point_like": point_like,
+    }
+    if point_like:
+        origins, dirs, keys = _circle_rays(plan)
+        lines = _boundaries(ev, origins, dirs, heights, **kw)
+    else:
+        n = int(min(MAX_STATIONS, max(2, math.ceil(pl.length / STATION_STEP_M) + 1)))
+        coarse = np.linspace(0.0, pl.length, n)
+        parts = [_side_rays(pl, coarse), _fan_rays(pl)]
+        origins, dirs, keys = (np.concatenate([p[i] for p in parts]) for i in range(3))
+        lines = _boundaries(ev, origins, dirs, heights, **kw)
+        # where a zone was found, or the field under the wire comes near the limit, stations every
+        # FINE_STATION_M within one coarse step (the peak under a sloping end can sit between stations)
+        hit = lines.inside.any(axis=1) | (lines.head_foot >= FINE_TRIGGER)
+        if hit.any():
+            step = coarse[1] - coarse[0]
+            at = np.where(keys[:, 0] == 0, keys[:, 1], np.where(keys[:, 0] == 2, -keys[:, 1], 0.0))
+            at = np.where(keys[:, 0] == 1, pl.length, at)
+            grid = np.arange(0.0, pl.length + 1e-9, FINE_STATION_M)
+            near = (np.abs(grid[:, None] - at[hit][None, :]) <= step).any(axis=1)
+            new = grid[near & (np.abs(grid[:, None] - coarse[None, :]) > 1e-6).all(axis=1)]
+            if len(new):
+                o2, d2, k2 = _side_rays(pl, new)
+                fine = _boundaries(ev, o2, d2, heights, **kw)
+                origins, dirs, keys = (
+                    np.vstack([origins, o2]),
+                    np.vstack([dirs, d2]),
+                    np.vstack([keys, k2]),
+                )
+                lines = _merge(lines, fine)
+    order = np.lexsort((keys[:, 1], keys[:, 0]))
+    origins, dirs = origins[order], dirs[order]
+    lines = replace(
+        lines,
+        boundary=lines.boundary[order],
+        inside=lines.inside[order],
+        head_foot=lines.head_foot[order],
     )
     boundary = lines.boundary.max(axis=1)
     inside = lines.inside.any(axis=1)
