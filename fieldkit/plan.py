@@ -11,7 +11,7 @@ from __future__ import annotations
 import time
 from typing import Any
 
-from fieldkit.errors import InputError
+from fieldkit.errors import InputError, join
 from fieldkit.planning.inputs import PlanInput, parse_plan
 from fieldkit.rigging.cut import EngineCounter, retrim
 from fieldkit.rigging.layouts import inverted_v_layouts, span_layouts
@@ -19,7 +19,10 @@ from fieldkit.rigging.linked import linked_option
 from fieldkit.rigging.options import Refusal, Warm, finish, screen
 
 FORMS = ("flat", "inverted-v", "sloping", "linked", "auto")
-MAX_OPTIONS = 8  # options returned in full, best first (the rest are listed in "more")
+# Channels within 6 % of one already swept on a layout reuse its chosen heights (one engine solve
+# instead of a sweep): heights in wavelengths differ by < 6 %, the NVIS figure by hundredths of a dB.
+CHANNEL_GROUP_FRACTION = 0.06
+MAX_OPTIONS = 6  # options returned in full, best first (the rest are listed in "more")
 MAX_SAFETY_CHECKS = 16  # safety blocks computed while looking for a raisable first option
 
 __all__ = ["FORMS", "plan"]
@@ -92,17 +95,40 @@ def plan(spec: dict) -> dict:
         candidates = [(o["score_db"], o) for o in got["options"]]
     else:
         candidates = []
+        swept: dict[int, list] = {}  # layout index -> screened channels of its full sweeps
         for f in channels:
-            for lay in layouts:
+            for i, lay in enumerate(layouts):
+                near = [
+                    sc
+                    for sc in swept.get(i, [])
+                    if abs(f / sc.frequency_hz - 1) < CHANNEL_GROUP_FRACTION
+                ]
                 try:
-                    sc = screen(lay, frequency_hz=f, kit=inp.kit, engine=engine, warm=warm)
+                    if near:
+                        sc = screen(
+                            lay,
+                            frequency_hz=f,
+                            kit=inp.kit,
+                            engine=engine,
+                            warm=warm,
+                            only=near[0].chosen,
+                            swept_at_hz=near[0].frequency_hz,
+                        )
+                    else:
+                        sc = screen(lay, frequency_hz=f, kit=inp.kit, engine=engine, warm=warm)
+                        swept.setdefault(i, []).append(sc)
                     candidates.append((sc.score_db, sc))
                 except Refusal as e:
                     refused.append(_refusal(lay, f, e))
     if not candidates:
         whys = "; ".join(sorted({r["why"] for r in refused}))
         raise InputError("site", f"nothing can be hung with this site and kit: {whys}")
-    candidates.sort(key=lambda c: -c[0])
+    times = {"screen_s": time.perf_counter() - t0}
+    t1 = time.perf_counter()
+    sky = _sky_fit(spec, inp)
+    times["sky_s"] = time.perf_counter() - t1
+    times["finish_s"] = times["safety_s"] = 0.0
+    candidates.sort(key=lambda c: (_channel_rank(sky, _freq(c[1])), -c[0]))
     # the exact cut, SWR curve and safety block only for the best few, in screened order, until
     # MAX_OPTIONS are in hand and at least one of them may be raised
     tried = 0
@@ -117,11 +143,15 @@ def plan(spec: dict) -> dict:
             opt = cand
         else:
             try:
+                t1 = time.perf_counter()
                 opt = finish(cand, kit=inp.kit, engine=engine, warm=warm)
+                times["finish_s"] += time.perf_counter() - t1
             except Refusal as e:
                 refused.append(_refusal(cand.layout, cand.frequency_hz, e))
                 continue
+        t1 = time.perf_counter()
         block, note = _safety(opt, spec, inp)
+        times["safety_s"] += time.perf_counter() - t1
         opt["safety"] = block
         if note:
             opt["warnings"].append(note)
@@ -131,8 +161,17 @@ def plan(spec: dict) -> dict:
                 0, "do not raise as planned: " + "; ".join(str(r) for r in reasons)
             )
         options.append(opt)
-    # never first when it may not be raised; then by score
-    options.sort(key=lambda o: (not (o["safety"] or {}).get("raise_ok", False), -o["score_db"]))
+    for opt in options:
+        if sky is not None:
+            opt["sky"] = sky["by_channel"].get(round(opt["frequency_mhz"], 6))
+    # never first when it may not be raised; then the channel that best fits the schedule; then score
+    options.sort(
+        key=lambda o: (
+            not (o["safety"] or {}).get("raise_ok", False),
+            _channel_rank(sky, o["frequency_mhz"] * 1e6),
+            -o["score_db"],
+        )
+    )
     shown = options[:MAX_OPTIONS]
     more = [_summary(o) for o in options[MAX_OPTIONS:]] + [_summary(c) for c in rest]
     if inp.retrim is not None:
@@ -146,15 +185,63 @@ def plan(spec: dict) -> dict:
         "refused": refused,
         "warnings": warnings,
         "ranking": (
-            "score = mean NVIS gain over 0–300 km elevations minus feedline loss; options that fail a "
-            "safety check come after all others"
+            "options that fail a safety check come after all others; then the channel that best covers "
+            "the schedule (sky estimate, when the sky and schedule are given); then score = mean NVIS "
+            "gain over the 0–300 km elevations minus feedline loss"
         ),
+        "sky": None if sky is None else {"schedule": sky["schedule"], "source": sky["source"]},
         "engine": {
             "solve_calls": engine.calls,
             "frequencies_solved": engine.frequencies,
+            **{k: round(v, 3) for k, v in times.items()},
             "total_seconds": round(time.perf_counter() - t0, 3),
         },
     }
+
+
+def _freq(c) -> float:
+    return c["frequency_mhz"] * 1e6 if isinstance(c, dict) else c.frequency_hz
+
+
+def _sky_fit(spec: dict[str, Any], inp: PlanInput) -> dict[str, Any] | None:
+    """The sky layer's schedule table for the plan's channels, or None without a sky input."""
+    if spec.get("sky") is None:
+        return None
+    from fieldkit.sky import sky_json
+
+    sky_spec = dict(spec["sky"])
+    sky_spec["channels_mhz"] = [round(f / 1e6, 6) for f in inp.channels_hz]
+    if spec.get("schedule") is not None and "schedule" not in sky_spec:
+        sky_spec["schedule"] = spec["schedule"]
+    try:
+        out = sky_json(sky_spec)
+    except InputError as e:
+        raise InputError(join("sky", e.field), e.detail, value=e.value) from None
+    sched = out.get("schedule")
+    if not sched or not sched.get("channels"):
+        return None
+    table = sorted(
+        sched["channels"],
+        key=lambda t: (
+            t["hours_full"],
+            t["score"],
+            t["hours_below_fot"],
+            t["mean_nvis_snr_db"] if t["mean_nvis_snr_db"] is not None else -999.0,
+        ),
+        reverse=True,
+    )
+    return {
+        "rank": {round(t["frequency_mhz"], 6): i for i, t in enumerate(table)},
+        "by_channel": {round(t["frequency_mhz"], 6): t for t in table},
+        "schedule": {k: v for k, v in sched.items() if k != "channels"},
+        "source": out.get("sky_source"),
+    }
+
+
+def _channel_rank(sky: dict[str, Any] | None, f_hz: float) -> int:
+    if sky is None:
+        return 0
+    return sky["rank"].get(round(f_hz / 1e6, 6), len(sky["rank"]))
 
 
 def _summary(c) -> dict[str, Any]:

@@ -117,13 +117,25 @@ class Screened:
 
 
 def screen(
-    layout: Layout, *, frequency_hz: float, kit: Kit, engine: EngineCounter, warm: Warm
+    layout: Layout,
+    *,
+    frequency_hz: float,
+    kit: Kit,
+    engine: EngineCounter,
+    warm: Warm,
+    only: dict[str, float] | None = None,
+    swept_at_hz: float | None = None,
 ) -> Screened:
     """Sweep the layout's rope heights at a near-resonant leg length (one frequency per height).
 
     The leg comes from the nearest resonance already found (same channel on another layout, or another
-    channel scaled by f·L ≈ const); only when none exists is a resonance solved first. The gain
+    channel scaled by f·L ≈ const, within a percent or two); only the very first screen solves a
+    resonance. The gain
     pattern of a dipole a percent off resonance is the same to a few hundredths of a dB.
+
+    ``only`` restricts the sweep to one setting: a channel within a few percent of one already swept on
+    this layout keeps that channel's chosen heights (heights in wavelengths differ by that few percent;
+    the figure of merit by a few hundredths of a dB) — ``swept_at_hz`` records which.
 
     Raises
     ------
@@ -131,7 +143,7 @@ def screen(
         When the wire cannot hang here at any setting or the spool is clearly short.
     """
     f = frequency_hz
-    settings = list(layout.settings)
+    settings = list(layout.settings) if only is None else [dict(only)]
     spool = kit.wire.spool_m
     rough = 2 * (FIRST_GUESS_FRACTION * rule_of_thumb_leg_m(f) * 0.95 + 2 * kit.wrap_allowance_m)
     if spool is not None and rough > spool:  # clearly short: say so before any engine work
@@ -140,7 +152,7 @@ def screen(
             f"the spool holds {spool:g} m"
         )
     seeded: dict[int, Any] = {}
-    if f not in warm.by_frequency:
+    if not warm.by_frequency:  # nothing to scale from yet: one resonance to start the chain
         last = "cannot hang"
         for i in reversed(range(len(settings))):
             try:
@@ -176,6 +188,8 @@ def screen(
         raise Refusal(_short_span_words(layout, f, warm) or last)
     points.sort(key=lambda p: p.feedpoint_height_m)
     pick, why = recommend(points, ground_name=kit.ground_name)
+    if only is not None and swept_at_hz is not None:
+        why = f"heights as swept at {swept_at_hz / 1e6:g} MHz on this layout (within a few percent of this channel)"
     # rank by the NVIS figure less the feedline loss at the resistance the dipole shows at resonance
     r = points[pick].resistance_ohm
     swr_est = max(r / 50.0, 50.0 / r)
