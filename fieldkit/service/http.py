@@ -88,6 +88,12 @@ def json_body(*, allow_array: bool = False) -> Any:
         raise BadBody(f"not valid JSON: {exc}"[:300]) from None
     if not _depth_ok(value):
         raise BadBody(f"JSON nested deeper than {MAX_JSON_DEPTH} levels")
+    try:  # a lone surrogate escape ("\ud800") is valid JSON but not text: SQLite would fail on it
+        json.dumps(value, ensure_ascii=False).encode("utf-8")
+    except UnicodeEncodeError:
+        raise BadBody(
+            "a string holds a lone UTF-16 surrogate escape; expected Unicode text"
+        ) from None
     if isinstance(value, dict) or (allow_array and isinstance(value, list)):
         return value
     expected = "a JSON object or array" if allow_array else "a JSON object"
