@@ -13,7 +13,7 @@ import numpy as np
 
 from fieldkit.errors import InputError, array, check_keys, choice, join, number, require_mapping
 
-from .geometry import Antenna, Feed, Wire
+from .geometry import Antenna, Feed, Wire, build_mesh, check_antenna
 from .grounds import parse_ground
 from .materials import CONDUCTORS, Insulation
 from .solver import MAX_FREQUENCY_HZ, MIN_FREQUENCY_HZ, solve
@@ -34,6 +34,12 @@ MAX_WIRES = 100
 MAX_PATTERN_POINTS = 200_000
 MAX_NEAR_FIELD_POINTS = 20_000
 MAX_COORDINATE_M = 10_000.0
+# Work bound of one call (a CLI run or an API request). Cost per frequency ≈ segments²/1000 + 1 work
+# units, each about 0.05 s on the shared 2-core test machine (measured, docs/robustness.md: 562
+# segments 12 s, 282 segments 5.5 s, 40 segments 0.1 s per frequency); 400 units keep a call near
+# 10 s on an idle laptop and refuse, at once, sweeps that would run for minutes.
+WORK_SEGMENTS_SQUARED = 1000.0
+MAX_WORK_UNITS = 400.0
 
 
 def _point(value: Any, field: str) -> list[float]:
@@ -261,8 +267,42 @@ def _result(sol, pattern, near) -> dict[str, Any]:
     return out
 
 
-def _model_one(spec: Any, field: str) -> dict[str, Any]:
+def _prefixed(err: InputError, field: str) -> InputError:
+    if field and not err.field.startswith(field):
+        return InputError(join(field, err.field), err.detail, value=err.value)
+    return err
+
+
+def _prepare(spec: Any, field: str) -> tuple[dict[str, Any], float, int]:
+    """The parsed spec, its cost in work units and its segment count (geometry checked here)."""
     p = parse_spec(spec, field)
+    try:
+        check_antenna(p["antenna"], p["ground"])
+        mesh = build_mesh(p["antenna"], max_frequency_hz=max(p["frequencies_hz"]))
+    except InputError as err:
+        raise _prefixed(err, field) from None
+    n = mesh.n_segments
+    return p, len(p["frequencies_hz"]) * (n * n / WORK_SEGMENTS_SQUARED + 1.0), n
+
+
+def _check_work(prepared: list[tuple[dict[str, Any], float, int]], fields: list[str]) -> None:
+    """Refuse a call whose total work is beyond :data:`MAX_WORK_UNITS`, naming what to reduce."""
+    total = 0.0
+    for (p, units, n), field in zip(prepared, fields, strict=True):
+        total += units
+        if total > MAX_WORK_UNITS:
+            n_freq = len(p["frequencies_hz"])
+            name = "frequencies_mhz" if n_freq > 1 else "frequency_mhz"
+            raise InputError(
+                join(field, name),
+                f"too much work for one request: {n_freq} frequencies x {n} segments"
+                f"{' (with the specs before it)' if total > units else ''} is about {total:.0f} "
+                f"work units, the limit is {MAX_WORK_UNITS:.0f}; use fewer frequencies, less wire "
+                "or split the request",
+            )
+
+
+def _solve_one(p: dict[str, Any], field: str) -> dict[str, Any]:
     try:
         sols = solve(
             p["antenna"],
@@ -272,14 +312,14 @@ def _model_one(spec: Any, field: str) -> dict[str, Any]:
             reference_impedance_ohm=p["reference_impedance_ohm"],
         )
     except InputError as err:
-        if field and not err.field.startswith(field):
-            raise InputError(join(field, err.field), err.detail, value=err.value) from None
-        raise
+        raise _prefixed(err, field) from None
     return {"results": [_result(s, p["pattern"], p["near_field"]) for s in sols]}
 
 
 def model_json(spec: dict | list) -> dict | list:
     """Run the `fieldkit model` contract on one spec (→ object) or a list of specs (→ list).
+
+    Every spec is checked, and the total work bounded (:data:`MAX_WORK_UNITS`), before any is solved.
 
     Raises
     ------
@@ -289,5 +329,10 @@ def model_json(spec: dict | list) -> dict | list:
     if isinstance(spec, list):
         if not spec:
             raise InputError("(top level)", "expected a spec object or a non-empty array of specs")
-        return [_model_one(s, f"[{i}]") for i, s in enumerate(spec)]
-    return _model_one(spec, "")
+        fields = [f"[{i}]" for i in range(len(spec))]
+        prepared = [_prepare(s, f) for s, f in zip(spec, fields, strict=True)]
+        _check_work(prepared, fields)
+        return [_solve_one(p, f) for (p, _u, _n), f in zip(prepared, fields, strict=True)]
+    prepared = _prepare(spec, "")
+    _check_work([prepared], [""])
+    return _solve_one(prepared[0], "")
