@@ -3,6 +3,13 @@
 Pure numpy/scipy, SI units, no I/O. See :func:`solve` and :func:`model_json`.
 """
 
+import os
+
+# The dense systems here are small (≤ 600 unknowns): BLAS worker threads only add start-up and
+# spin-wait time (2-3× the CPU of a height sweep on a busy 2-core machine, docs/engine.md). Takes
+# effect when this package is what first imports numpy (the `fieldkit model` command).
+os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
+
 from .geometry import Antenna, Feed, Wire
 from .grounds import GROUND_PRESETS, Ground, parse_ground
 from .materials import Insulation

@@ -86,7 +86,7 @@ class Solution:
                 el, az, g = coarse["elevation_deg"], coarse["azimuth_deg"], coarse["intensity_w_sr"]
             ia, ie = np.unravel_index(np.argmax(g), g.shape)
             best_el, best_az = el[ie], az[ia]
-            for step in (3.0, 1.0, 0.25):  # local refinements around the best direction
+            for step in (2.0, 0.4):  # local refinements around the best direction
                 el2 = np.clip(best_el + step * np.arange(-3, 4), lo, 90)
                 az2 = best_az + 1.5 * step * np.arange(-3, 4)
                 g2 = self.gain_dbi(el2, az2)
@@ -124,10 +124,8 @@ class Solution:
         """
         if "bw" not in self._cache:
             axis = self.wire_azimuth_deg()
-            out = {}
-            for name, az in (("broadside", axis + 90.0), ("along_wire", axis)):
-                out[name] = _cut_beamwidth(self, az)
-            self._cache["bw"] = out
+            widths = _cut_beamwidths(self, [axis + 90.0, axis])
+            self._cache["bw"] = {"broadside": widths[0], "along_wire": widths[1]}
         return dict(self._cache["bw"])
 
     # -- near field --------------------------------------------------------------------------
@@ -138,19 +136,20 @@ class Solution:
         return near_field(self, np.asarray(points_m, dtype=float).reshape(-1, 3))
 
 
-def _cut_beamwidth(sol: Solution, azimuth_deg: float) -> float:
-    """−3 dB width of the lobe holding the maximum of the vertical cut through zenith [deg].
+def _cut_beamwidths(sol: Solution, azimuths_deg: list[float]) -> list[float]:
+    """−3 dB width of the lobe holding the maximum of vertical cuts through zenith [deg].
 
-    The cut runs from the horizon at ``azimuth_deg`` (0°) over zenith (90°) to the opposite
-    horizon (180°). Sampled every BEAMWIDTH_STEP_DEG, then the peak and both −3 dB crossings are
-    refined on a 0.25° grid inside their brackets.
+    A cut runs from the horizon at its azimuth (0°) over zenith (90°) to the opposite horizon
+    (180°). Sampled every BEAMWIDTH_STEP_DEG, then the peak and both −3 dB crossings are refined
+    inside their brackets; the samples of all cuts go to the far field together.
     """
-    a = math.radians(azimuth_deg)
     lo, hi = (-90.0, 270.0) if sol.ground.kind == "free-space" else (0.0, 180.0)
+    n_cut = len(azimuths_deg)
+    az = np.radians(np.asarray(azimuths_deg, dtype=float))
 
-    def gain(theta):
-        t = np.radians(np.asarray(theta, dtype=float))
-        rhat = np.stack([np.cos(t) * math.cos(a), np.cos(t) * math.sin(a), np.sin(t)], axis=-1)
+    def gain(cut_index: np.ndarray, theta_deg: np.ndarray) -> np.ndarray:
+        t, a = np.radians(theta_deg), az[cut_index]
+        rhat = np.stack([np.cos(t) * np.cos(a), np.cos(t) * np.sin(a), np.sin(t)], axis=-1)
         e_th, e_ph = farfield.far_field(
             sol.mesh, *sol.segment_currents_a, sol.ground, sol.frequency_hz, rhat
         )
@@ -159,27 +158,44 @@ def _cut_beamwidth(sol: Solution, azimuth_deg: float) -> float:
 
     step = BEAMWIDTH_STEP_DEG
     theta = np.arange(lo, hi + step / 2, step)
-    cut = gain(theta)
-    peak = int(np.argmax(cut))
-    fine = np.clip(theta[peak] + np.arange(-step, step + 0.01, 0.25), lo, hi)
-    level = float(gain(fine).max()) - 3.0
-    i, j = peak, peak
-    while i > 0 and cut[i - 1] >= level:
-        i -= 1
-    while j < len(cut) - 1 and cut[j + 1] >= level:
-        j += 1
-
-    def crossing(inner: int, outer: int) -> float:
-        t = np.linspace(theta[outer], theta[inner], 9)
-        g = gain(t)
-        k = int(np.argmax(g >= level))  # first sample inside the lobe, walking inward
-        if k == 0:
-            return float(t[0])
-        return float(np.interp(level, [g[k - 1], g[k]], [t[k - 1], t[k]]))
-
-    left = float(theta[0]) if i == 0 else crossing(i, i - 1)
-    right = float(theta[-1]) if j == len(cut) - 1 else crossing(j, j + 1)
-    return right - left
+    n = len(theta)
+    rows = np.repeat(np.arange(n_cut), n)
+    cut = gain(rows, np.tile(theta, n_cut)).reshape(n_cut, n)
+    peak = np.argmax(cut, axis=1)
+    offsets = np.arange(-step, step + 0.01, 0.25)
+    fine = np.clip(theta[peak][:, None] + offsets[None, :], lo, hi)
+    level = (
+        gain(np.repeat(np.arange(n_cut), len(offsets)), fine.ravel()).reshape(n_cut, -1).max(axis=1)
+        - 3.0
+    )
+    # each crossing: (cut, index inside the lobe, index outside it or None at the end of the cut)
+    crossings = []
+    for c in range(n_cut):
+        i = j = int(peak[c])
+        while i > 0 and cut[c, i - 1] >= level[c]:
+            i -= 1
+        while j < n - 1 and cut[c, j + 1] >= level[c]:
+            j += 1
+        crossings += [(c, i, i - 1 if i > 0 else None), (c, j, j + 1 if j < n - 1 else None)]
+    inner = [x for x in crossings if x[2] is not None]
+    edge: dict[tuple, float] = {}
+    if inner:
+        t = np.array([np.linspace(theta[o], theta[i], 9) for _, i, o in inner])
+        g = gain(np.repeat([c for c, _, _ in inner], 9), t.ravel()).reshape(len(inner), 9)
+        for x, tk, gk in zip(inner, t, g, strict=True):
+            k = int(np.argmax(gk >= level[x[0]]))  # first sample inside the lobe, walking inward
+            edge[x] = (
+                float(tk[0])
+                if k == 0
+                else float(np.interp(level[x[0]], gk[k - 1 : k + 1], tk[k - 1 : k + 1]))
+            )
+    widths = []
+    for c in range(n_cut):
+        left, right = crossings[2 * c], crossings[2 * c + 1]
+        lo_edge = float(theta[0]) if left[2] is None else edge[left]
+        hi_edge = float(theta[-1]) if right[2] is None else edge[right]
+        widths.append(hi_edge - lo_edge)
+    return widths
 
 
 _FREE_SPACE_CACHE: OrderedDict[bytes, np.ndarray] = OrderedDict()
