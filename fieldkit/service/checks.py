@@ -45,18 +45,18 @@ def acknowledgement_body(body: dict[str, Any]) -> dict[str, Any]:
     }
 
 
-def _state(conn, deployment_id: str) -> tuple[deployments.Deployment, list[dict], dict]:
-    found = deployments.get(conn, deployment_id)
-    return found, *checklist_state(conn, deployment_id, found.plan_result)
+def _state(conn, deployment_id: str) -> tuple[int, list[dict], dict]:
+    revision, result = deployments.safety_view(conn, deployment_id)
+    return revision, *checklist_state(conn, deployment_id, result)
 
 
 @bp.get("/checks")
 def list_checks(deployment_id: str):
-    found, items, ready = _state(get_db(), deployment_id)
+    revision, items, ready = _state(get_db(), deployment_id)
     return jsonify(
         {
-            "deployment_id": found.id,
-            "revision": found.revision,
+            "deployment_id": deployment_id,
+            "revision": revision,
             "rule": CONFLICT_RULE,
             "items": items,
             **ready,
@@ -66,10 +66,10 @@ def list_checks(deployment_id: str):
 
 @bp.get("/checks.csv")
 def checks_csv(deployment_id: str):
-    found, items, _ready = _state(get_db(), deployment_id)
+    _revision, items, _ready = _state(get_db(), deployment_id)
     response = Response(transfer.checklist_csv(items), mimetype="text/csv")
     response.headers["Content-Disposition"] = (
-        f'attachment; filename="fieldkit-checks-{found.id}.csv"'
+        f'attachment; filename="fieldkit-checks-{deployment_id}.csv"'
     )
     return response
 
@@ -84,7 +84,7 @@ def _item(items: list[dict], item_id: str) -> dict:
 @bp.get("/checks/<item_id>")
 def read_check(deployment_id: str, item_id: str):
     conn = get_db()
-    _found, items, _ready = _state(conn, deployment_id)
+    _revision, items, _ready = _state(conn, deployment_id)
     item = _item(items, item_id)
     history = [ack.to_json() for ack in checks.history(conn, deployment_id, item_id)]
     return jsonify({"item": item, "history": history, "rule": CONFLICT_RULE})
@@ -95,10 +95,10 @@ def acknowledge(deployment_id: str, item_id: str):
     fields = acknowledgement_body(json_body())
     conn = get_db()
     with transaction(conn):
-        found = deployments.get(conn, deployment_id)
-        _item(checklist_state(conn, deployment_id, found.plan_result)[0], item_id)
+        _revision, result = deployments.safety_view(conn, deployment_id)
+        _item(checklist_state(conn, deployment_id, result)[0], item_id)
         ack, replayed = checks.insert(conn, deployment_id=deployment_id, item_id=item_id, **fields)
-    items, ready = checklist_state(conn, deployment_id, found.plan_result)
+    items, ready = checklist_state(conn, deployment_id, result)
     return jsonify(
         {
             "acknowledgement": ack.to_json(),

@@ -79,10 +79,13 @@ def create():
 def list_deployments():
     conn = get_db()
     out = []
-    for found in deployments.list_all(conn):
-        _items, ready = checklist_state(conn, found.id, found.plan_result)
-        planning = found.id in current_app.extensions["fieldkit_planning"]
-        out.append({**found.summary(), "planning": planning, **ready})
+    planning = current_app.extensions["fieldkit_planning"]
+    for summary in deployments.summaries(conn):
+        safety = summary.pop("safety")
+        # Readiness needs only the chosen option's safety block: a result holding just that.
+        result = {"options": [{"safety": safety}]} if summary["has_result"] else None
+        _items, ready = checklist_state(conn, summary["id"], result)
+        out.append({**summary, "planning": summary["id"] in planning, **ready})
     return jsonify({"deployments": out})
 
 

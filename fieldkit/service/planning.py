@@ -81,7 +81,7 @@ def checklist_state(
     (how many the history holds for the item).
     """
     history = checks.history(conn, deployment_id)
-    state = checks.current_state(conn, deployment_id)
+    state = checks.decide(history)
     counts: dict[str, int] = {}
     for ack in history:
         counts[ack.item_id] = counts.get(ack.item_id, 0) + 1

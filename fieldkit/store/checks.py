@@ -153,8 +153,13 @@ def history(
 
 def current_state(conn: sqlite3.Connection, deployment_id: str) -> dict[str, Acknowledgement]:
     """The deciding acknowledgement per item: latest ``at`` (UTC) wins, ties go to the later arrival."""
+    return decide(history(conn, deployment_id))
+
+
+def decide(acknowledgements: list[Acknowledgement]) -> dict[str, Acknowledgement]:
+    """:func:`current_state` of an already read history."""
     state: dict[str, Acknowledgement] = {}
-    for ack in history(conn, deployment_id):
+    for ack in acknowledgements:
         held = state.get(ack.item_id)
         if held is None or (ack.at_utc, ack.seq) > (held.at_utc, held.seq):
             state[ack.item_id] = ack

@@ -34,19 +34,6 @@ class Deployment:
     updated_at: str
     revision: int
 
-    def summary(self) -> dict[str, Any]:
-        site = self.plan_input.get("site")
-        return {
-            "id": self.id,
-            "name": self.name,
-            "site_name": site.get("name") if isinstance(site, dict) else None,
-            "channels_mhz": self.plan_input.get("channels_mhz"),
-            "has_result": self.plan_result is not None,
-            "created_at": self.created_at,
-            "updated_at": self.updated_at,
-            "revision": self.revision,
-        }
-
 
 def _row(row: sqlite3.Row) -> Deployment:
     return Deployment(
@@ -200,3 +187,57 @@ def set_result(
             ),
         )
     return cursor.rowcount == 1
+
+
+def summaries(conn: sqlite3.Connection) -> list[dict[str, Any]]:
+    """Every deployment for a list: its summary and the chosen option's safety block only.
+
+    The full plan result (hundreds of kB) stays in SQLite; ``json_extract`` takes out the part the
+    list needs (SQLite JSON1, https://sqlite.org/json1.html).
+    """
+    rows = conn.execute(
+        "SELECT id, name, created_at, updated_at, revision, plan_result IS NOT NULL AS has_result,"
+        " json_extract(plan_input, '$.site.name') AS site_name, channels,"
+        " json_extract(plan_result, '$.options[0].safety') AS safety"
+        " FROM deployments ORDER BY created_at, id"
+    ).fetchall()
+    out = []
+    for row in rows:
+        safety = row["safety"]
+        try:
+            safety = json.loads(safety) if isinstance(safety, str) else None
+        except ValueError:
+            safety = None
+        out.append(
+            {
+                "id": row["id"],
+                "name": row["name"],
+                "site_name": row["site_name"] if isinstance(row["site_name"], str) else None,
+                "channels_mhz": None if row["channels"] is None else json.loads(row["channels"]),
+                "has_result": bool(row["has_result"]),
+                "created_at": row["created_at"],
+                "updated_at": row["updated_at"],
+                "revision": row["revision"],
+                "safety": safety,
+            }
+        )
+    return out
+
+
+def safety_view(conn: sqlite3.Connection, deployment_id: str) -> tuple[int, dict[str, Any] | None]:
+    """``(revision, result)`` where result holds only the chosen option's safety block (or None).
+
+    The checklist endpoints need nothing else, and a write transaction should not spend its lock
+    parsing a whole plan result.
+    """
+    row = conn.execute(
+        "SELECT revision, plan_result IS NOT NULL AS has_result,"
+        " json_extract(plan_result, '$.options[0].safety') AS safety FROM deployments WHERE id = ?",
+        (deployment_id,),
+    ).fetchone()
+    if row is None:
+        raise NotFound("id", f"no deployment with id {deployment_id!r}", value=deployment_id)
+    if not row["has_result"]:
+        return row["revision"], None
+    safety = row["safety"]
+    return row["revision"], {"options": [{"safety": json.loads(safety) if safety else None}]}
