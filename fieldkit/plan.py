@@ -234,7 +234,7 @@ def _sky_fit(spec: dict[str, Any], inp: PlanInput) -> dict[str, Any] | None:
         "rank": {round(t["frequency_mhz"], 6): i for i, t in enumerate(table)},
         "by_channel": {round(t["frequency_mhz"], 6): t for t in table},
         "schedule": {k: v for k, v in sched.items() if k != "channels"},
-        "source": out.get("sky_source"),
+        "source": sorted(set(out.get("sky_source") or [])),
     }
 
 

@@ -198,7 +198,7 @@ def swr_curve(res: Resonance, *, engine: EngineCounter, wire: KitWire, ground) -
     inside = swr_fine <= 2.0
     if inside.any():
         idx = np.flatnonzero(inside)
-        lo, hi = fine[idx[0]], fine[idx[-1]]
+        lo, hi = float(fine[idx[0]]), float(fine[idx[-1]])
         edge = idx[0] == 0 or idx[-1] == len(fine) - 1
         bw = {
             "low_mhz": round(lo / 1e6, 4),
@@ -225,12 +225,38 @@ def swr_curve(res: Resonance, *, engine: EngineCounter, wire: KitWire, ground) -
     }
 
 
+def bare_wire_leg_m(res: Resonance, *, engine: EngineCounter, wire: KitWire, ground) -> float:
+    """Leg a bare wire of the same size would need in the same hang (one engine call) [m]."""
+    bare = KitWire(wire.diameter_m, wire.conductor, 0.0, 1.0, wire.spool_m)
+    f = res.solution.frequency_hz
+    fr_bare, _, _ = _resonance_at(engine, res.hung, bare, f, ground)
+    return res.leg_m + (f - fr_bare) / res.dfres_dleg_hz_per_m
+
+
+def _rule_words(rule: float, leg: float, bare_leg: float | None) -> str:
+    """Why the engine's leg differs from 143/f, with the share of each cause."""
+    total = (leg - rule) / rule * 100
+    if bare_leg is None:
+        return (
+            f"the engine's leg is {total:+.1f} % against the rule: the rule assumes a thin bare wire in free "
+            "space; this one hangs low over real ground with sag, which the engine includes"
+        )
+    site = (bare_leg - rule) / rule * 100
+    jacket = (leg - bare_leg) / bare_leg * 100
+    return (
+        f"the engine's leg is {total:+.1f} % against the rule: hanging here (height over this ground, sag, "
+        f"wire thickness) accounts for {site:+.1f} % — a bare wire would need {bare_leg:.2f} m — and the "
+        f"jacket for {jacket:+.1f} % (it slows the wave along the wire, so the wire resonates shorter)"
+    )
+
+
 def cut_json(
     res: Resonance,
     *,
     frequency_hz: float,
     wire: KitWire,
     wrap_allowance_m: float = WRAP_ALLOWANCE_M,
+    bare_leg_m: float | None = None,
 ) -> dict[str, Any]:
     """The option's cut block: per-leg lengths, wrap, cut-long spare, rule of thumb, trim steps."""
     leg = res.leg_m
@@ -260,15 +286,7 @@ def cut_json(
             "leg_m": round(rule, 3),
             "rule": "143/f MHz metres per half-wave (468/f feet), common practice",
             "difference_percent": round(diff, 2),
-            "why": (
-                "the rule assumes bare wire well clear of the ground; this wire "
-                + (
-                    "is jacketed (the jacket slows the wave, so the wire resonates shorter), "
-                    if wire.insulation_thickness_m > 0
-                    else ""
-                )
-                + "hangs low over real ground with sag, which the engine includes"
-            ),
+            "why": _rule_words(rule, leg, bare_leg_m),
         },
         "model_resonance_mhz": round(res.resonant_frequency_hz / 1e6, 5),
         "trim_steps": [

@@ -19,6 +19,7 @@ from fieldkit.rigging.cut import (
     EngineCounter,
     Resonance,
     ResonanceError,
+    bare_wire_leg_m,
     cut_json,
     resonate,
     rule_of_thumb_leg_m,
@@ -245,7 +246,19 @@ def finish(sc: Screened, *, kit: Kit, engine: EngineCounter, warm: Warm) -> dict
     res = _resonate_at(layout, chosen, f, kit, engine, warm)
     sol, hung = res.solution, res.hung
     curve = swr_curve(res, engine=engine, wire=kit.wire, ground=kit.ground)
-    cut = cut_json(res, frequency_hz=f, wire=kit.wire, wrap_allowance_m=kit.wrap_allowance_m)
+    bare_leg = None
+    if kit.wire.insulation_thickness_m > 0:
+        try:
+            bare_leg = bare_wire_leg_m(res, engine=engine, wire=kit.wire, ground=kit.ground)
+        except ResonanceError:
+            bare_leg = None
+    cut = cut_json(
+        res,
+        frequency_hz=f,
+        wire=kit.wire,
+        wrap_allowance_m=kit.wrap_allowance_m,
+        bare_leg_m=bare_leg,
+    )
     warnings: list[str] = list(hung.notes) + list(layout.notes)
     if spool is not None:
         need, spare_need = cut["total_wire_m"], cut["cut_with_spare_total_m"]

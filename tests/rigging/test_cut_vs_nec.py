@@ -103,3 +103,55 @@ def test_cut_list_resonates_in_nec2(name, form, supports, channel, ground, wire,
 def test_ground_presets_used_here_exist():
     for c in CASES:
         parse_ground(c[4])
+
+
+def _first(points, length):
+    """The first `length` metres of a polyline (independent of fieldkit's own helper)."""
+    pts = np.asarray(points, dtype=float)
+    seg = np.linalg.norm(np.diff(pts, axis=0), axis=1)
+    cum = np.concatenate([[0.0], np.cumsum(seg)])
+    s = np.append(cum[cum < length], length)
+    return np.column_stack([np.interp(s, cum, pts[:, k]) for k in range(3)])
+
+
+def _inner(points, feed, leg):
+    pts = np.asarray(points, dtype=float)
+    seg = np.linalg.norm(np.diff(pts, axis=0), axis=1)
+    cum = np.concatenate([[0.0], np.cumsum(seg)])
+    k = int(np.argmin(np.abs(cum - feed)))
+    left = _first(pts[: k + 1][::-1], leg)[::-1]
+    right = _first(pts[k:], leg)
+    return np.vstack([left, right[1:]])
+
+
+@pytest.mark.slow
+def test_linked_dipole_sections_resonate_in_nec2():
+    from fieldkit.plan import plan
+
+    s = spec(supports=two_trees(48, 12.0), channel_mhz=3.6, ground="average")
+    s["channels_mhz"] = [3.6, 7.1]
+    s["form"] = "linked"
+    out = plan(s)
+    opt = out["options"][0]
+    assert opt["form"] == "linked"
+    # links closed: the whole wire at the lowest channel
+    f_low = nec_resonance_mhz(
+        opt["hung_wire_m"],
+        feed_distance_m=opt["feed_distance_m"],
+        guess_mhz=3.6,
+        radius_m=1e-3,
+        ground=("lossy", 13, 0.005),
+    )
+    assert abs(f_low - 3.6) / 3.6 < TOLERANCE
+    # links open at the stated distance: the inner part of the same hung wire at 7.1 MHz
+    link = opt["links"][0]
+    inner = _inner(opt["hung_wire_m"], opt["feed_distance_m"], link["link_from_feed_m"])
+    f_high = nec_resonance_mhz(
+        inner,
+        feed_distance_m=link["link_from_feed_m"],
+        guess_mhz=7.1,
+        radius_m=1e-3,
+        ground=("lossy", 13, 0.005),
+    )
+    assert abs(f_high - 7.1) / 7.1 < TOLERANCE
+    assert sum(opt["cut"]["sections_m"]) == pytest.approx(opt["cut"]["leg_m"][0], abs=2e-3)
