@@ -33,8 +33,6 @@ CAUTIONS = (
     "Lightning: when thunder roars, go indoors; stay in shelter 30 minutes after the last thunder (US "
     "National Weather Service).",
 )
-#: A wire end this close (horizontally) to a support is named after it [m].
-END_SUPPORT_NAME_M = 3.0
 
 
 def _feed_point(wire: np.ndarray, distance_m: float) -> np.ndarray:
@@ -99,11 +97,8 @@ def _landmarks(wire: np.ndarray, feed: np.ndarray, rig: Rig) -> list[Landmark]:
     for end in (wire[0], wire[-1]):
         offset = end[:2] - feed[:2]
         word = compass_word(*offset) if np.linalg.norm(offset) > 0.5 else "lower"
-        near = [
-            s
-            for s in rig.supports
-            if np.linalg.norm(np.array([s.x_m, s.y_m]) - end[:2]) < END_SUPPORT_NAME_M
-        ]
+        # the support whose rope goes to this end names it
+        near = [s for s in rig.supports if s.end_m is not None and np.allclose(s.end_m, end)]
         key = f"end-{slug(near[0].id if near else word)}"
         name = f"{word} end" + (f" ({near[0].id})" if near else "")
         out.append(Landmark(key, name, end))

@@ -170,7 +170,13 @@ def _exposure_items(f: OptionFindings) -> list[ChecklistItem]:
         )
     else:
         p = f.power_for_no_zone_w
-        more = f" (a zone starts above about {p:.0f} W)" if p else ""
+        share = 100 * ko.max_ratio
+        more = (
+            f" (the time-averaged fields reach {share:.0f} % of the limit; a zone would start above "
+            f"about {p:.0f} W)"
+            if p
+            else ""
+        )
         out.append(
             _item(
                 "pre-raise",
