@@ -117,6 +117,10 @@ def delete_at(doc: Any, path: tuple) -> Any:
 def mutated(draw, base: Any, values=hostile):
     """The base document with one to three paths replaced by hostile values, deleted, or extended."""
     doc = copy.deepcopy(base)
+
+    def value() -> Any:  # a copy: sampled constants must never be changed by a later "add"
+        return copy.deepcopy(draw(values))
+
     for _ in range(draw(st.integers(1, 3))):
         where = draw(st.sampled_from(paths(doc)))
         action = draw(st.sampled_from(["replace", "replace", "replace", "delete", "add"]))
@@ -127,11 +131,11 @@ def mutated(draw, base: Any, values=hostile):
             for key in where:
                 node = node[key]
             if isinstance(node, dict):
-                node[draw(st.sampled_from(["extra", "ünïcode", "", "__proto__"]))] = draw(values)
+                node[draw(st.sampled_from(["extra", "ünïcode", "", "__proto__"]))] = value()
             elif isinstance(node, list):
-                node.append(draw(values))
+                node.append(value())
             else:
-                doc = replace_at(doc, where, draw(values))
+                doc = replace_at(doc, where, value())
         else:
-            doc = replace_at(doc, where, draw(values))
+            doc = replace_at(doc, where, value())
     return doc

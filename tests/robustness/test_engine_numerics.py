@@ -69,8 +69,8 @@ def test_fattest_wire_allowed_still_solves():
     out = finite_or_refused(spec(wires=[{**DIPOLE["wires"][0], "diameter_mm": 100}]))
     assert not isinstance(out, InputError)
     # a fatter dipole resonates at a shorter length (more end effect), so at the same length and
-    # frequency it is the more inductive of the two (Balanis §8.3, Fig. 8.16: resonant length
-    # falls as the radius grows)
+    # frequency it is the more inductive of the two (Balanis, Antenna Theory, ch. 8, the resonant
+    # length falls as the radius grows — from memory)
     thin = model_json(spec())["results"][0]["impedance_ohm"]["x"]
     assert out["results"][0]["impedance_ohm"]["x"] > thin
 
