@@ -37,15 +37,22 @@ PLAN_TIMEOUT_MS = 300_000
 class Service:
     """The real fieldkit service in a thread, restartable on the same port."""
 
-    def __init__(self, data_dir: Path, *, demo: bool = True) -> None:
+    def __init__(
+        self, data_dir: Path, *, demo: bool = True, host: str = "127.0.0.1", key: str | None = None
+    ) -> None:
         self.data_dir = data_dir
         self.demo = demo
+        self.host = host
+        self.key = key
         self.port = 0
         self.running = None
 
     def start(self) -> None:
-        app = create_app({"DATA_DIR": self.data_dir, "DEMO": self.demo})
-        self.running = start_in_thread(app, port=self.port)
+        config = {"DATA_DIR": self.data_dir, "DEMO": self.demo}
+        if self.key:
+            config.update({"LAN": True, "KEY": self.key})
+        app = create_app(config)
+        self.running = start_in_thread(app, host=self.host, port=self.port)
         self.port = self.running.port
 
     def stop(self) -> None:
@@ -55,10 +62,13 @@ class Service:
 
     @property
     def url(self) -> str:
-        return f"http://127.0.0.1:{self.port}/"
+        return f"http://{self.host}:{self.port}/"
 
     def get(self, path: str) -> dict:
-        with urllib.request.urlopen(self.url.rstrip("/") + path, timeout=30) as r:
+        req = urllib.request.Request(self.url.rstrip("/") + path)
+        if self.key:
+            req.add_header("X-Fieldkit-Key", self.key)
+        with urllib.request.urlopen(req, timeout=30) as r:
             return json.loads(r.read())
 
 
@@ -92,23 +102,25 @@ def open_app(chromium, service):
     contexts = []
     foreign: list[str] = []
     errors: list[str] = []
-    origin = urlsplit(service.url)
 
-    def watch(request):
-        u = urlsplit(request.url)
-        if u.scheme in ("data", "blob", "about"):
-            return
-        if (u.scheme, u.hostname, u.port) != (origin.scheme, origin.hostname, origin.port):
-            foreign.append(request.url)
+    def make(kind: str, path: str = "", base: str | None = None):
+        base = base or service.url
+        origin = urlsplit(base)
 
-    def make(kind: str, path: str = ""):
+        def watch(request):
+            u = urlsplit(request.url)
+            if u.scheme in ("data", "blob", "about"):
+                return
+            if (u.scheme, u.hostname, u.port) != (origin.scheme, origin.hostname, origin.port):
+                foreign.append(request.url)
+
         ctx = chromium.new_context(**VIEWPORTS[kind])
         ctx.on("request", watch)
         contexts.append(ctx)
         page = ctx.new_page()
         page.on("pageerror", lambda e: errors.append(str(e)))
         page.set_default_timeout(30_000)
-        page.goto(service.url + path)
+        page.goto(base + path)
         page.wait_for_selector("html[data-ready='1']")
         return page
 

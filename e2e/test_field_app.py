@@ -10,10 +10,13 @@ from __future__ import annotations
 
 import math
 import re
+import secrets
 import time
 
 import pytest
-from conftest import ARTIFACTS, PLAN_TIMEOUT_MS, shot
+from conftest import ARTIFACTS, PLAN_TIMEOUT_MS, Service, shot
+
+from fieldkit.service.lan import lan_address
 
 pytestmark = [pytest.mark.browser, pytest.mark.slow]
 
@@ -74,8 +77,15 @@ def walk_sections(page, kind: str, *, touch: bool) -> None:
     assert total > sum(legs)  # the wrap allowance is extra wire
     assert cut.is_visible()
     page.get_by_test_id("swr-plot").wait_for(timeout=120_000)
-    page.get_by_test_id("dip").fill("7.0")
-    assert re.search(r"(Cut|Add|leave)", page.get_by_test_id("retrim-result").inner_text())
+    f_mhz = float(
+        re.search(r"(\d+\.\d+) MHz", page.get_by_test_id("option-0").inner_text()).group(1)
+    )
+    # A dip 2 % low means the wire is long: cut (length goes as 1/f, common practice)
+    page.get_by_test_id("dip").fill(f"{f_mhz * 0.98:.4f}")
+    advice = page.get_by_test_id("retrim-result").inner_text()
+    assert advice.startswith("Cut "), advice
+    leg = legs[0]
+    assert 0.3 * 0.02 * leg < metres(advice) < 3 * 0.02 * leg, (advice, leg)
     shot(page, f"{kind}-wire")
 
     go(page, "mast", touch=touch)
@@ -252,6 +262,55 @@ def test_pending_ticks_survive_a_service_restart(open_app, service):
     }
     assert all(again[i] == after[i]["acknowledgements"] for i in ids)
     page.get_by_test_id("pending-count").wait_for(state="detached")
+
+
+UUID4 = re.compile(r"^[0-9a-f]{8}-[0-9a-f]{4}-4[0-9a-f]{3}-[89ab][0-9a-f]{3}-[0-9a-f]{12}$")
+
+
+def test_lan_phone_over_plain_http_keeps_ticks_in_local_storage(open_app, service):
+    """A phone on the laptop's network: plain HTTP, so no secure context, no service worker and no
+    crypto.randomUUID. Its ticks wait in localStorage with their own UUIDs and arrive once."""
+    assert WALK.get("id"), "needs the phone walk's deployment"
+    host = lan_address()
+    if host.startswith("127."):
+        pytest.skip("this machine has no non-loopback address to serve the LAN on")
+    dep = WALK["id"]
+    lan = Service(service.data_dir, demo=False, host=host, key=secrets.token_urlsafe(24))
+    lan.start()
+    try:
+        page = open_app("phone", f"?key={lan.key}", base=lan.url)
+        assert page.evaluate("isSecureContext") is False
+        assert page.evaluate("typeof crypto.randomUUID") == "undefined"
+        assert (
+            page.evaluate("!!(navigator.serviceWorker && navigator.serviceWorker.controller)")
+            is False
+        )
+        page.get_by_test_id("deployment-select").select_option(dep)
+        go(page, "checks", touch=True)
+        page.get_by_test_id("initials").fill("GH")
+        items = page.locator("ul.checklist[data-stage='tear-down'] li.check")
+        ids = [items.nth(i).get_attribute("data-testid").removeprefix("check-") for i in range(2)]
+        lan.stop()
+        for item_id in ids:
+            page.get_by_test_id(f"tick-{item_id}").tap()
+            page.get_by_test_id(f"pending-{item_id}").wait_for()
+        stored = page.evaluate("JSON.parse(localStorage.getItem('fieldkit.kv.pending-ticks'))")
+        assert [e["item_id"] for e in stored] == ids
+        client_ids = [e["body"]["client_id"] for e in stored]
+        assert all(UUID4.match(c) for c in client_ids), client_ids
+        assert len(set(client_ids)) == len(client_ids)
+        shot(page, "phone-lan-pending")
+        lan.start()
+        page.wait_for_function(
+            "() => !document.querySelector('[data-testid=pending-count]')", timeout=30_000
+        )
+        assert page.evaluate("localStorage.getItem('fieldkit.kv.pending-ticks')") == "[]"
+        for item_id, client_id in zip(ids, client_ids, strict=True):
+            history = service.get(f"/api/deployments/{dep}/checks/{item_id}")["history"]
+            assert [a["client_id"] for a in history].count(client_id) == 1
+            assert history[-1]["by"] == "GH" and history[-1]["done"] is True
+    finally:
+        lan.stop()
 
 
 def test_laptop_walk(open_app, service):

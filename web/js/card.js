@@ -73,12 +73,13 @@ export function render(app, panel) {
   if (r.raiseOk === false) openChecks.append(h("p", { class: "warn", text: "Do not raise: a clearance fails." }));
   const ul = h("ul", { "data-testid": "card-open-checks" });
   for (const c of r.open) ul.append(h("li", { text: c.text }));
+  if (r.ready) openChecks.append(h("p", { text: `All ${st.checks.filter((c) => c.stage === "pre-raise" && c.required).length} required pre-raise checks ticked${r.pending.length ? " (some still to reach the service)" : ""}.` }));
   openChecks.append(ul);
   const qr = h("section", { class: "fc-block fc-qr" }, [qrSvg(cardText(st.dep, o, units), { label: "QR code of the field card", testid: "card-qr" }), h("p", { class: "hint", text: "Scan: the card as text, no network needed." })]);
   cardEl.append(h("div", { class: "fc-grid" }, [ropes, cut, safe, openChecks, qr]));
   const cautions = (o.safety?.cautions ?? []).slice(0, 4);
   if (cautions.length) cardEl.append(h("ul", { class: "fc-cautions" }, cautions.map((c) => h("li", { text: c }))));
-  cardEl.append(h("p", { class: "fc-foot", text: "Estimates from fieldkit. Follow local codes, licence conditions and your team's practice." }));
+  cardEl.append(h("p", { class: "fc-foot", text: `Printed ${new Date().toISOString().slice(0, 16).replace("T", " ")} UTC. Estimates from fieldkit. Follow local codes, licence conditions and your team's practice.` }));
   panel.append(cardEl);
   const actions = h("div", { class: "row no-print" }, [
     h("button", { type: "button", class: "primary", "data-testid": "print", text: "Print the card", on: { click: () => window.print() } }),

@@ -137,7 +137,7 @@ export function linePlot(opts) {
       g.append(s("line", { x1: lx, x2: lx + 18, y1: ly - 4, y2: ly - 4, class: item.cls }));
       const t = s("text", { x: lx + 22, y: ly, class: "legend", text: item.label });
       g.append(t);
-      lx += 30 + item.label.length * 6.4;
+      lx += 34 + item.label.length * 7.6;
     }
   }
   return svg;

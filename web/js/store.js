@@ -1,5 +1,7 @@
-// Device storage: IndexedDB where the browser offers it, localStorage otherwise (and as a fallback when
-// IndexedDB refuses to open, e.g. some private modes). Used for pending ticks and for the deployments viewed.
+// Device storage for pending ticks and the deployments viewed. On the laptop (a secure context, with the
+// service worker) IndexedDB; on phones that reach the laptop over plain HTTP, and wherever IndexedDB
+// refuses to open (some private modes), localStorage: synchronous, so a tick is on the device before the
+// tap's handler returns, and it survives the browser tab being closed.
 
 const DB_NAME = "fieldkit";
 const STORE = "kv";
@@ -10,7 +12,7 @@ let dbPromise = null;
 function openDb() {
   if (dbPromise) return dbPromise;
   dbPromise = new Promise((resolve) => {
-    if (typeof indexedDB === "undefined") return resolve(null);
+    if (typeof indexedDB === "undefined" || !globalThis.isSecureContext) return resolve(null);
     let req;
     try {
       req = indexedDB.open(DB_NAME, 1);
