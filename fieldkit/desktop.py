@@ -75,6 +75,9 @@ def open_window(
         print(f"fieldkit window on {running.url}", file=out, flush=True)
         webview.start(gui="qt")
     finally:
+        from fieldkit.service.lan import stop_share
+
+        stop_share(app)  # phones lose access when the window closes
         running.stop()
         checkpoint_and_close(app.config["DATABASE"])
     return 0
@@ -105,7 +108,8 @@ def run(
     if reason is None:
         from fieldkit.service import create_app
 
-        return open_window(create_app({"DATA_DIR": data_dir}), on_loaded=on_loaded, out=out)
+        app = create_app({"DATA_DIR": data_dir, "LAN_SWITCH": True})
+        return open_window(app, on_loaded=on_loaded, out=out)
     print(f"No desktop window: {reason}.", file=out)
     print("Serving instead; open the address below in a browser on this computer.", file=out)
     try:

@@ -32,6 +32,8 @@ DEFAULTS: dict[str, Any] = {
     "LAN": False,
     "KEY": None,  # LAN mode without a key: a new one is made
     "PUBLIC_URL": None,  # the address phones use, set by serve(); else the request's host
+    "LAN_SWITCH": False,  # the desktop window may share on the LAN (POST /api/lan)
+    "LAN_PORT": 8765,  # where the share listens (a free port if taken)
     "DEMO": True,  # load the demo deployment into an empty database on first start
     "DEMO_PLAN": True,  # and plan it in the background
     "PLAN_CACHE_ENTRIES": DEFAULT_ENTRIES,  # 0 turns the plan cache off

@@ -3,11 +3,14 @@
 from __future__ import annotations
 
 import io
+import ipaddress
 import socket
 
 import segno
 from flask import Blueprint, current_app, jsonify, request
 
+from fieldkit.errors import InputError, check_keys
+from fieldkit.service.http import json_body
 from fieldkit.service.security import KEY_QUERY, keyring, set_key_cookie
 from fieldkit.store.errors import Conflict
 
@@ -58,11 +61,27 @@ def qr_terminal(url: str) -> str:
     return buffer.getvalue()
 
 
+def _share():
+    """The running LAN share of a desktop app (its RunningServer and app), or None."""
+    return current_app.extensions.get("fieldkit_lan_share")
+
+
 def _current() -> dict:
     lan = current_app.config["LAN"]
-    base = current_app.config.get("PUBLIC_URL") or request.host_url
-    url = access_url(base, keyring().key if lan else None)
-    return {"lan": lan, "url": url, "qr_svg": qr_svg(url)}
+    share = _share()
+    if share is not None:
+        running, share_app = share
+        url = access_url(share_app.config["PUBLIC_URL"], keyring(share_app).key)
+    else:
+        base = current_app.config.get("PUBLIC_URL") or request.host_url
+        url = access_url(base, keyring().key if lan else None)
+    return {
+        "lan": lan,
+        "sharing": share is not None,
+        "switch": bool(current_app.config["LAN_SWITCH"]),
+        "url": url,
+        "qr_svg": qr_svg(url),
+    }
 
 
 @bp.get("/lan")
@@ -70,11 +89,75 @@ def read_lan():
     return jsonify(_current())
 
 
+@bp.post("/lan")
+def switch_lan():
+    """The desktop window's switch: share this fieldkit with phones on the local network, or stop."""
+    body = json_body()
+    check_keys(body, "", ("enabled",))
+    enabled = body.get("enabled")
+    if not isinstance(enabled, bool):
+        raise InputError("enabled", f"expected true or false, got {enabled!r}"[:200])
+    if not current_app.config["LAN_SWITCH"] or not _from_loopback():
+        raise Conflict(
+            "enabled",
+            "only the desktop window can switch sharing; on a server use `fieldkit serve --lan`",
+        )
+    if enabled and _share() is None:
+        start_share(current_app._get_current_object())
+    elif not enabled:
+        stop_share(current_app._get_current_object())
+    return jsonify(_current())
+
+
+def _from_loopback() -> bool:
+    try:
+        return ipaddress.ip_address(request.remote_addr or "").is_loopback
+    except ValueError:
+        return False
+
+
+def start_share(app) -> None:
+    """Start a second server on every interface with its own app in LAN mode (the key required).
+
+    The desktop window keeps its loopback server without a key; phones reach only the shared one.
+    """
+    from fieldkit.service.app import create_app
+    from fieldkit.service.server import start_in_thread
+
+    shared = create_app(
+        {
+            "DATA_DIR": app.config["DATA_DIR"],
+            "WEB_DIR": app.config["WEB_DIR"],
+            "LAN": True,
+            "DEMO": False,
+            "PLAN_CACHE": app.extensions["fieldkit_plan_cache"],
+        }
+    )
+    try:
+        running = start_in_thread(shared, host="0.0.0.0", port=app.config["LAN_PORT"])
+    except OSError:  # the usual port is taken: any free one will do, the QR code carries it
+        running = start_in_thread(shared, host="0.0.0.0", port=0)
+    shared.config["PUBLIC_URL"] = f"http://{lan_address()}:{running.port}/"
+    app.extensions["fieldkit_lan_share"] = (running, shared)
+
+
+def stop_share(app) -> None:
+    share = app.extensions.pop("fieldkit_lan_share", None)
+    if share is not None:
+        share[0].stop()
+
+
 @bp.post("/lan/key")
 def rotate_key():
-    if not current_app.config["LAN"]:
+    share = _share()
+    if share is not None:
+        target = share[1]
+    elif current_app.config["LAN"]:
+        target = current_app._get_current_object()
+    else:
         raise Conflict("lan", "the service is not on the local network; there is no key to rotate")
-    key = keyring().rotate()
+    key = keyring(target).rotate()
     response = jsonify({**_current(), "rotated": True})
-    set_key_cookie(response, key)
+    if target is current_app._get_current_object():
+        set_key_cookie(response, key)
     return response

@@ -218,7 +218,22 @@ PATHS: dict[str, Any] = {
             {"200": _json(_ref("Lan"), "address")},
             tag="lan",
             errors={"401": _ERRORS["401"]},
-        )
+        ),
+        "post": _op(
+            "Desktop window only: share on the local network (a second server, key required) or stop.",
+            {
+                "200": _json(_ref("Lan"), "sharing state"),
+                "409": {"$ref": "#/components/responses/Conflict"},
+            },
+            body={
+                "type": "object",
+                "required": ["enabled"],
+                "additionalProperties": False,
+                "properties": {"enabled": {"type": "boolean"}},
+            },
+            tag="lan",
+            errors=_ERRORS,
+        ),
     },
     "/api/lan/key": {
         "post": _op(
@@ -434,7 +449,13 @@ SCHEMAS: dict[str, Any] = {
     "Lan": {
         "type": "object",
         "required": ["lan", "url", "qr_svg"],
-        "properties": {"lan": {"type": "boolean"}, "url": _STRING, "qr_svg": _STRING},
+        "properties": {
+            "lan": {"type": "boolean"},
+            "sharing": {"type": "boolean"},
+            "switch": {"type": "boolean"},
+            "url": _STRING,
+            "qr_svg": _STRING,
+        },
     },
 }
 

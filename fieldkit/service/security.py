@@ -10,6 +10,7 @@ close cross-site request forgery.
 from __future__ import annotations
 
 import hmac
+import ipaddress
 import secrets
 import threading
 from urllib.parse import urlencode
@@ -82,10 +83,37 @@ def _unauthorized(detail: str) -> Response:
     return response
 
 
+def is_loopback_host(host: str) -> bool:
+    """Whether a Host header (name, optional port) names this computer's loopback interface."""
+    if host.startswith("["):  # [::1]:8765
+        name = host[1:].split("]", 1)[0]
+    elif host.count(":") == 1:  # name:port
+        name = host.split(":", 1)[0]
+    else:  # a bare name or a bare IPv6 address
+        name = host
+    if name == "localhost":
+        return True
+    try:
+        return ipaddress.ip_address(name).is_loopback
+    except ValueError:
+        return False
+
+
 def _guard() -> Response | None:
-    """Before every request: the LAN key for the API, the cookie from ``?key=``, JSON-only writes."""
+    """Before every request: the LAN key for the API, the cookie from ``?key=``, JSON-only writes.
+
+    Without LAN mode the service answers only requests addressed to a loopback name: a web page that
+    rebinds its own domain name to 127.0.0.1 (DNS rebinding) cannot read or change anything.
+    """
     path = request.path
     is_api = path == "/api" or path.startswith("/api/")
+    if not current_app.config["LAN"] and not is_loopback_host(request.host):
+        return error_response(
+            400,
+            "misdirected request",
+            "this fieldkit answers only http://127.0.0.1 or localhost",
+            "Host",
+        )
     if current_app.config["LAN"]:
         ring = keyring()
         if is_api and path not in OPEN_API_PATHS:

@@ -157,3 +157,62 @@ def test_key_never_reaches_the_log(lan_app, caplog):
 @pytest.mark.parametrize("path", ["/api/health"])
 def test_health_is_open(lan_app, path):
     assert lan_app.test_client().get(path).status_code == 200
+
+
+@pytest.mark.parametrize(
+    "host", ["evil.example", "evil.example:8765", "192.168.4.1:8765", "10.0.0.1"]
+)
+def test_loopback_service_refuses_other_host_names(client, host):
+    # DNS rebinding: a page whose name now points at 127.0.0.1 still sends its own name as Host.
+    response = client.get("/api/deployments", headers={"Host": host})
+    assert response.status_code == 400
+    assert response.json["field"] == "Host"
+
+
+@pytest.mark.parametrize("host", ["localhost", "localhost:8765", "127.0.0.1:8765", "[::1]:8765"])
+def test_loopback_service_answers_loopback_names(client, host):
+    assert client.get("/api/health", headers={"Host": host}).status_code == 200
+
+
+def test_lan_switch_only_in_the_desktop_app(client, lan_app):
+    assert client.post("/api/lan", json={"enabled": True}).status_code == 409
+    key = lan_app.config["KEY"]
+    response = lan_app.test_client().post(
+        "/api/lan", json={"enabled": True}, headers={KEY_HEADER: key}
+    )
+    assert response.status_code == 409  # a phone cannot switch sharing
+
+
+def test_lan_switch_shares_on_a_second_keyed_server(tmp_path):
+    import json
+    import urllib.error
+    import urllib.request
+
+    from fieldkit.service import create_app
+
+    app = create_app({"DATA_DIR": tmp_path / "d", "DEMO": False, "LAN_SWITCH": True, "LAN_PORT": 0})
+    client = app.test_client()
+    assert client.post("/api/lan", json={"enabled": "yes"}).json["field"] == "enabled"
+    try:
+        on = client.post("/api/lan", json={"enabled": True})
+        assert on.status_code == 200, on.json
+        assert on.json["sharing"] is True
+        match = re.search(r"http://[\d.]+:(\d+)/\?key=([A-Za-z0-9_-]+)$", on.json["url"])
+        port, key = match.groups()
+        shared = f"http://127.0.0.1:{port}/api/kit"
+        with pytest.raises(urllib.error.HTTPError) as refused:
+            urllib.request.urlopen(shared, timeout=10)
+        assert refused.value.code == 401
+        refused.value.close()
+        request = urllib.request.Request(shared, headers={KEY_HEADER: key})
+        with urllib.request.urlopen(request, timeout=10) as answer:
+            assert json.loads(answer.read())["kit"] == {}
+        # Rotation from the window replaces the shared server's key.
+        new = client.post("/api/lan/key", json={}).json["url"]
+        assert not new.endswith(key)
+        assert client.get("/api/lan").json["url"] == new
+    finally:
+        off = client.post("/api/lan", json={"enabled": False})
+    assert off.json["sharing"] is False
+    with pytest.raises(urllib.error.URLError):
+        urllib.request.urlopen(shared, timeout=3)
