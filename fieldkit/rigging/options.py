@@ -28,6 +28,7 @@ from fieldkit.rigging.cut import (
 from fieldkit.rigging.feedline import Coax, feedline_json, total_loss_db
 from fieldkit.rigging.heights import (
     MIN_END_HEIGHT_M,
+    WITHIN_BEST_DB,
     HeightPoint,
     nvis_figure_dbi,
     recommend,
@@ -166,7 +167,17 @@ def screen(
     leg = warm.guess(f)[0]
     points: list[HeightPoint] = []
     last = "cannot hang"
-    for i, s in enumerate(settings):
+    # from the top down; stop once the figure falls, and is already more than 0.3 dB below the best:
+    # between 0.03 and 0.3 wavelength the NVIS figure has one peak in height, so nothing lower can
+    # come back within 0.3 dB (REFERENCES.md, NEC-2 zenith gains versus height)
+    for i in reversed(range(len(settings))):
+        s = settings[i]
+        if (
+            len(points) >= 2
+            and points[-1].nvis_dbi < points[-2].nvis_dbi
+            and points[-1].nvis_dbi < max(p.nvis_dbi for p in points) - WITHIN_BEST_DB
+        ):
+            break
         try:
             hung = layout.build(s, leg)
         except HangError as e:
