@@ -228,12 +228,15 @@ def _check_overlaps(antenna: Antenna) -> None:
     for a, b in zip(ii[close], jj[close], strict=True):
         if owner[a] == owner[b] and abs(index[a] - index[b]) == 1:
             continue  # consecutive pieces of one polyline share a vertex
-        shared = min(np.linalg.norm(x - y) for x in (p[a], q[a]) for y in (p[b], q[b]))
-        if shared < JUNCTION_TOLERANCE_M and owner[a] != owner[b]:
-            # touching at end points is a junction; check the pieces do not also run along each other
-            ta = (q[a] - p[a]) / np.linalg.norm(q[a] - p[a])
-            tb = (q[b] - p[b]) / np.linalg.norm(q[b] - p[b])
-            if abs(float(ta @ tb)) < 1 - 1e-6:
+        ends_a, ends_b = (p[a], q[a]), (p[b], q[b])
+        pairs = [(x, y) for x in range(2) for y in range(2)]
+        gap, ia, ib = min((float(np.linalg.norm(ends_a[x] - ends_b[y])), x, y) for x, y in pairs)
+        if gap < JUNCTION_TOLERANCE_M and owner[a] != owner[b]:
+            # touching at end points is a junction; refuse only a piece folded back along the other
+            da = ends_a[1 - ia] - ends_a[ia]
+            db = ends_b[1 - ib] - ends_b[ib]
+            cos = float(da @ db) / (np.linalg.norm(da) * np.linalg.norm(db))
+            if cos < 1 - 1e-6:
                 continue
         raise InputError(
             f"wires[{owner[b]}].points_m[{index[b]}]",

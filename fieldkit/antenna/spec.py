@@ -259,12 +259,32 @@ def _result(sol, pattern, near) -> dict[str, Any]:
         e, h = sol.near_field(near)
         out["near_field"] = {
             "points_m": near.tolist(),
+            "low_accuracy_points": _far_from_wires(sol, near),
             "e_v_per_m": np.round(np.linalg.norm(e, axis=1), 4).tolist(),
             "h_a_per_m": np.round(np.linalg.norm(h, axis=1), 6).tolist(),
             "e_vector_v_per_m": [[{"re": c.real, "im": c.imag} for c in row] for row in e.tolist()],
             "h_vector_a_per_m": [[{"re": c.real, "im": c.imag} for c in row] for row in h.tolist()],
         }
     return out
+
+
+NEAR_FIELD_RANGE_WL = (
+    0.4  # complex-image ground is checked to this horizontal distance (docs/engine.md)
+)
+
+
+def _far_from_wires(sol, points: np.ndarray) -> list[int]:
+    """Indices of points (over lossy ground) farther than NEAR_FIELD_RANGE_WL from every wire point.
+
+    There the reflected field from the complex images loses accuracy (tens of % at 1 λ), while the
+    field itself is weak; the keep-out zones lie well inside this range.
+    """
+    if sol.ground.kind != "lossy":
+        return []
+    lam = 299_792_458.0 / sol.frequency_hz
+    c = sol.mesh.centre
+    d = np.hypot(points[:, None, 0] - c[None, :, 0], points[:, None, 1] - c[None, :, 1]).min(axis=1)
+    return np.nonzero(d > NEAR_FIELD_RANGE_WL * lam)[0].tolist()
 
 
 def _prefixed(err: InputError, field: str) -> InputError:
