@@ -49,9 +49,9 @@ REFINE = 6
 #: over the limit there, or rising outward above this share of the limit.
 SCREEN_STEP_M = 0.5
 SCREEN_RATIO = 0.25
-#: Vertical lines above and below each wire end: spacing and first reach [m].
+#: The vertical line under each wire end: sample spacing and furthest reach [m].
 END_STEP_M = 0.25
-END_START_M = 6.0
+END_MAX_M = 24.0
 #: A wire lower than the head height plus this anywhere [m] gets every height checked everywhere.
 LOW_WIRE_MARGIN_M = 1.0
 #: A wire shorter than this in plan view is treated as a point (rays all round it) [m].
@@ -363,51 +363,35 @@ def _boundaries(
     )
 
 
-def _end_samples(span_m: float) -> np.ndarray:
-    """Distances from a wire end: just outside touching, then every END_STEP_M [m]."""
-    return np.concatenate([[CONTACT_M + 0.01], np.arange(END_STEP_M, span_m + 1e-9, END_STEP_M)])
-
-
 def _end_separation(ev: _Evaluator, end_m: np.ndarray) -> float:
     """Distance below a wire end at which the exposure ratio falls to 1 [m].
 
-    Sampled straight down from the end to the ground; past a point on the wire the line is under
-    another part of the antenna and stops. When the zone still reaches the ground, the line goes on
-    above the end to the same distance (the end's field moves with it when the end is raised: an
-    extrapolation, reported as such).
+    Sampled straight down from the end (just outside touching, then every END_STEP_M, in chunks that
+    double until the ratio is under 1); past a point on the wire the line is under another part of the
+    antenna and stops. Where the ground comes first, the line goes on above the end at the same
+    distances (the end's field moves with the end when it is raised: an extrapolation, reported).
     """
-    first = np.array([[end_m[0], end_m[1], max(end_m[2] - CONTACT_M - 0.01, 0.06)]])
-    r_first, t_first = ev(first)
-    if r_first[0] < 1.0 and not t_first[0]:
-        return 0.0  # under the limit just below the end: the field only weakens further down
-    s = _end_samples(END_START_M)
-    below = s[end_m[2] - s > 0.05]
-    pts = np.column_stack(
-        [np.full_like(below, end_m[0]), np.full_like(below, end_m[1]), end_m[2] - below]
+    samples = np.concatenate(
+        [[CONTACT_M + 0.01], np.arange(END_STEP_M, END_MAX_M + 1e-9, END_STEP_M)]
     )
-    r, touch = ev(pts) if len(below) else (np.zeros(0), np.zeros(0, bool))
-    r = np.where(np.logical_or.accumulate(touch), 0.0, r)
-    if len(r) and r[-1] < 1.0 or len(below) and np.logical_or.accumulate(touch)[-1]:
-        samples, ratio = below, r
-    else:
-        span = END_START_M
-        while True:
-            s = _end_samples(span)
-            up = s[len(below) :]
-            pts = np.column_stack(
-                [np.full_like(up, end_m[0]), np.full_like(up, end_m[1]), end_m[2] + up]
-            )
-            r_up, t_up = ev(pts)
-            samples = s
-            ratio = np.concatenate([r, np.where(np.logical_or.accumulate(t_up), 0.0, r_up)])
-            if ratio[-1] < 1.0 or span >= 4 * END_START_M:
-                break
-            span *= 2
-    k = int(_last_over(ratio)) if len(ratio) else -1
+    ratio = np.zeros(0)
+    blocked = False
+    done, chunk = 0, 1  # the first chunk is the single sample next to the end
+    while done < len(samples):
+        s = samples[done : done + chunk]
+        z = np.where(end_m[2] - s > 0.05, end_m[2] - s, end_m[2] + s)
+        r, t = ev(np.column_stack([np.full_like(s, end_m[0]), np.full_like(s, end_m[1]), z]))
+        ratio = np.concatenate([ratio, np.where(np.logical_or.accumulate(t) | blocked, 0.0, r)])
+        blocked |= bool(t.any())
+        done += len(s)
+        if ratio[-1] < 1.0:
+            break
+        chunk = max(8, 2 * chunk)
+    k = int(_last_over(ratio))
     if k < 0:
         return 0.0
     if k == len(ratio) - 1:
-        return float(samples[-1])
+        return float(samples[k])
     return float(_crossing(samples[k], samples[k + 1], ratio[k], ratio[k + 1]))
 
 

@@ -171,8 +171,9 @@ def _exposure_items(f: OptionFindings) -> list[ChecklistItem]:
     else:
         p = f.power_for_no_zone_w
         share = 100 * ko.max_ratio
+        pct = f"{share:.0f} %" if share >= 1 else "less than 1 %"
         more = (
-            f" (the time-averaged fields reach {share:.0f} % of the limit; a zone would start above "
+            f" (the time-averaged fields reach {pct} of the limit; a zone would start above "
             f"about {p:.0f} W)"
             if p
             else ""
