@@ -22,6 +22,8 @@ FORMS = ("flat", "inverted-v", "sloping", "linked", "auto")
 # Channels within 6 % of one already swept on a layout reuse its chosen heights (one engine solve
 # instead of a sweep): heights in wavelengths differ by < 6 %, the NVIS figure by hundredths of a dB.
 CHANNEL_GROUP_FRACTION = 0.06
+OTHER_CHANNEL_LAYOUTS = 2  # layouts screened on the channels after the sky's best one
+TOP_CHANNEL_OPTIONS = 3  # options in full on the best channel; then the best of each other channel
 MAX_OPTIONS = 6  # options returned in full, best first (the rest are listed in "more")
 MAX_SAFETY_CHECKS = 16  # safety blocks computed while looking for a raisable first option
 
@@ -89,15 +91,26 @@ def plan(spec: dict) -> dict:
             _no_layout_reason(inp),
         )
     channels = sorted(inp.channels_hz)
+    times = {"sky_s": 0.0}
+    sky = None
     if inp.form == "linked":
         got = linked_option(layouts, channels, kit=inp.kit, engine=engine, warm=warm)
         refused.extend(got["refused"])
         candidates = [(o["score_db"], o) for o in got["options"]]
     else:
+        t1 = time.perf_counter()
+        sky = _sky_fit(spec, inp)
+        times["sky_s"] = time.perf_counter() - t1
+        # with a sky estimate: every layout on the channel that best fits the schedule, then only the
+        # best few layouts on the other channels (which layout wins hardly depends on the channel)
+        order = sorted(channels, key=lambda f: (_channel_rank(sky, f), f))
         candidates = []
         swept: dict[int, list] = {}  # layout index -> screened channels of its full sweeps
-        for f in channels:
-            for i, lay in enumerate(layouts):
+        layout_order = list(range(len(layouts)))
+        for n, f in enumerate(order):
+            use = layout_order if (sky is None or n == 0) else layout_order[:OTHER_CHANNEL_LAYOUTS]
+            for i in use:
+                lay = layouts[i]
                 near = [
                     sc
                     for sc in swept.get(i, [])
@@ -120,15 +133,15 @@ def plan(spec: dict) -> dict:
                     candidates.append((sc.score_db, sc))
                 except Refusal as e:
                     refused.append(_refusal(lay, f, e))
+            if n == 0:
+                best = {id(sc.layout): sc.score_db for _, sc in candidates}
+                layout_order.sort(key=lambda i: -best.get(id(layouts[i]), -1e9))
+    times["screen_s"] = time.perf_counter() - t0 - times["sky_s"]
     if not candidates:
         whys = "; ".join(sorted({r["why"] for r in refused}))
         raise InputError("site", f"nothing can be hung with this site and kit: {whys}")
-    times = {"screen_s": time.perf_counter() - t0}
-    t1 = time.perf_counter()
-    sky = _sky_fit(spec, inp)
-    times["sky_s"] = time.perf_counter() - t1
     times["finish_s"] = times["safety_s"] = 0.0
-    candidates.sort(key=lambda c: (_channel_rank(sky, _freq(c[1])), -c[0]))
+    candidates = _finish_order(candidates, sky)
     # the exact cut, SWR curve and safety block only for the best few, in screened order, until
     # MAX_OPTIONS are in hand and at least one of them may be raised
     tried = 0
@@ -197,6 +210,25 @@ def plan(spec: dict) -> dict:
             "total_seconds": round(time.perf_counter() - t0, 3),
         },
     }
+
+
+def _finish_order(candidates: list, sky: dict[str, Any] | None) -> list:
+    """Order in which options are worked out in full: without a sky estimate, by score; with one,
+    the best few on the best channel, then the best on each other channel, then the rest."""
+    by_score = sorted(candidates, key=lambda c: -c[0])
+    if sky is None:
+        return by_score
+    ranked = sorted(by_score, key=lambda c: _channel_rank(sky, _freq(c[1])))
+    top = _channel_rank(sky, _freq(ranked[0][1]))
+    first = [c for c in ranked if _channel_rank(sky, _freq(c[1])) == top][:TOP_CHANNEL_OPTIONS]
+    seen, others = set(), []
+    for c in ranked:
+        ch = _channel_rank(sky, _freq(c[1]))
+        if ch != top and ch not in seen:
+            seen.add(ch)
+            others.append(c)
+    head = first + others
+    return head + [c for c in ranked if not any(c is h for h in head)]
 
 
 def _freq(c) -> float:
