@@ -72,13 +72,19 @@ def _rig(
         )
     rigged = []
     for i, sid in enumerate(array(option.get("supports_used", []), "option.supports_used")):
+        if not isinstance(sid, str):
+            raise InputError(join("option.supports_used", i), f"expected a support id, got {sid!r}")
         if sid in by_id:
             s = by_id[sid]
             kind, x, y, top = s.kind, s.x_m, s.y_m, s.height_m
         elif mast is not None and mast.get("id") == sid:
             # a centre mast stands under the feedpoint unless the option places it
-            kind, x, y = "mast", float(mast.get("x_m", feed[0])), float(mast.get("y_m", feed[1]))
-            top = float(mast.get("height_m", feed[2]))
+            kind = "mast"
+            x = number(mast.get("x_m", float(feed[0])), "option.mast.x_m", unit="m")
+            y = number(mast.get("y_m", float(feed[1])), "option.mast.y_m", unit="m")
+            top = number(
+                mast.get("height_m", float(feed[2])), "option.mast.height_m", unit="m", minimum=0.0
+            )
         else:
             raise InputError(
                 join("option.supports_used", i),

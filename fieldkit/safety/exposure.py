@@ -12,13 +12,20 @@ so ratio ≥ 1 means over the limit (ratio scales with power, which gives the po
 left). A person is taken as a column 1.8 m tall: the worst of the fields at 0.5, 1.0 and 1.8 m above
 ground decides (no spatial averaging over the body, which the standards allow — conservative).
 
-Sampling: rays in the ground plane leave the wire's plan view — at right angles on both sides from
-stations along the wire, and in a fan around each end — with samples every 0.25 m; on each ray the last
-sample over the limit and the next one are refined with 8 more samples and log-linear interpolation. The
-ray ends walk around the wire in order, so they form the outline polygon directly. All points go to the
-engine in one vectorised call per pass (three passes: rays, refinement, vertical lines at the ends).
-Points closer than 0.1 m to the wire are "touching": thin-wire fields mean nothing there, and they count
-as inside the zone.
+Sampling (a coarse grid refined at the boundary): rays in the ground plane leave the wire's plan
+view — at right angles on both sides from stations along the wire, and in a fan round each end. Each
+ray is screened at its foot (under the wire) and one step out; rays over the limit, or near it and
+rising outward, are sampled every 0.5 m and their last crossing refined with 6 more samples and
+log-linear interpolation. Where a zone is found (or the field under the wire comes near the limit) the
+stations are made 4 × finer there. The ray ends, walked once around the wire, form the outline polygon
+directly. Every pass sends all its points to the engine in one vectorised call. Points closer than
+0.1 m to the wire are "touching": thin-wire fields mean nothing there, and they count as inside.
+
+References
+----------
+.. [1] 47 CFR §1.1310 (both E and H apply in the near field below 300 MHz); FCC OET Bulletin 65 (1997),
+   §2 (near-field evaluation, time and spatial averaging).
+.. [2] ICNIRP 2020, Health Phys. 118(5): reference levels averaged over 30 min and the whole body.
 """
 
 from __future__ import annotations
@@ -36,7 +43,7 @@ FieldFn = Callable[[np.ndarray], tuple[np.ndarray, np.ndarray]]
 #: Heights above ground at which a standing person is checked [m] (feet/knees, trunk, head).
 PERSON_HEIGHTS_M = (0.5, 1.0, 1.8)
 #: The person's height [m].
-PERSON_HEIGHT_M = 1.8
+PERSON_HEIGHT_M = PERSON_HEIGHTS_M[-1]
 #: Closer than this to the wire a point counts as touching it [m].
 CONTACT_M = 0.1
 #: Ray sample spacing [m], first reach of the rays [m] and the furthest they grow to [m].
