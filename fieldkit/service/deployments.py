@@ -10,7 +10,7 @@ from fieldkit.errors import InputError, text
 from fieldkit.service.db import get_db
 from fieldkit.service.http import json_body
 from fieldkit.service.planning import checklist_state, plan_cache, run_plan
-from fieldkit.store import deployments, transaction, transfer
+from fieldkit.store import checks, deployments, transaction, transfer
 from fieldkit.store.errors import Conflict
 
 bp = Blueprint("deployments", __name__, url_prefix="/api/deployments")
@@ -80,11 +80,13 @@ def list_deployments():
     conn = get_db()
     out = []
     planning = current_app.extensions["fieldkit_planning"]
+    histories = checks.histories(conn)
     for summary in deployments.summaries(conn):
         safety = summary.pop("safety")
         # Readiness needs only the chosen option's safety block: a result holding just that.
         result = {"options": [{"safety": safety}]} if summary["has_result"] else None
-        _items, ready = checklist_state(conn, summary["id"], result)
+        history = histories.get(summary["id"], [])
+        _items, ready = checklist_state(conn, summary["id"], result, history)
         out.append({**summary, "planning": summary["id"] in planning, **ready})
     return jsonify({"deployments": out})
 

@@ -73,14 +73,18 @@ def raise_ok(result: Mapping[str, Any] | None) -> bool | None:
 
 
 def checklist_state(
-    conn: sqlite3.Connection, deployment_id: str, result: Any
+    conn: sqlite3.Connection,
+    deployment_id: str,
+    result: Any,
+    history: list[checks.Acknowledgement] | None = None,
 ) -> tuple[list[dict], dict[str, Any]]:
     """Each checklist item with its current state, and the deployment's readiness to raise.
 
     Items carry ``done``, ``by``, ``at`` (from the deciding acknowledgement) and ``acknowledgements``
     (how many the history holds for the item).
     """
-    history = checks.history(conn, deployment_id)
+    if history is None:
+        history = checks.history(conn, deployment_id)
     state = checks.decide(history)
     counts: dict[str, int] = {}
     for ack in history:

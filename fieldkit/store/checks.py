@@ -151,6 +151,15 @@ def history(
     return [_row(row) for row in rows.fetchall()]
 
 
+def histories(conn: sqlite3.Connection) -> dict[str, list[Acknowledgement]]:
+    """Every deployment's history in one query (for lists), by deployment id, in order of arrival."""
+    out: dict[str, list[Acknowledgement]] = {}
+    for row in conn.execute("SELECT * FROM acknowledgements ORDER BY seq").fetchall():
+        ack = _row(row)
+        out.setdefault(ack.deployment_id, []).append(ack)
+    return out
+
+
 def current_state(conn: sqlite3.Connection, deployment_id: str) -> dict[str, Acknowledgement]:
     """The deciding acknowledgement per item: latest ``at`` (UTC) wins, ties go to the later arrival."""
     return decide(history(conn, deployment_id))

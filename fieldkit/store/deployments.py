@@ -48,6 +48,15 @@ def _row(row: sqlite3.Row) -> Deployment:
     )
 
 
+def _safety(plan_result: dict[str, Any] | None) -> str | None:
+    """The chosen (first) option's safety block as JSON text, kept beside the full result."""
+    try:
+        block = plan_result["options"][0]["safety"]  # type: ignore[index]
+    except (TypeError, KeyError, IndexError):
+        return None
+    return dumps(block)
+
+
 def _columns(plan_input: dict[str, Any]) -> tuple[str | None, str | None, str | None]:
     def part(key: str) -> str | None:
         return None if plan_input.get(key) is None else dumps(plan_input[key])
@@ -77,7 +86,7 @@ def insert(
     site, kit, channels = _columns(plan_input)
     conn.execute(
         "INSERT INTO deployments (id, name, plan_input, plan_result, plan_error, site, kit, channels,"
-        " created_at, updated_at, revision) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
+        " created_at, updated_at, revision, safety) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
         (
             deployment_id,
             name,
@@ -90,6 +99,7 @@ def insert(
             created_at or now,
             updated_at or created_at or now,
             revision,
+            _safety(plan_result),
         ),
     )
     return deployment_id
@@ -136,7 +146,8 @@ def update(
     with transaction(conn):
         cursor = conn.execute(
             "UPDATE deployments SET name = ?, plan_input = ?, plan_result = ?, plan_error = ?,"
-            " site = ?, kit = ?, channels = ?, updated_at = ?, revision = revision + 1 WHERE id = ?",
+            " site = ?, kit = ?, channels = ?, safety = ?, updated_at = ?, revision = revision + 1"
+            " WHERE id = ?",
             (
                 name,
                 dumps(plan_input),
@@ -145,6 +156,7 @@ def update(
                 site,
                 kit,
                 channels,
+                _safety(plan_result),
                 utc_now(),
                 deployment_id,
             ),
@@ -176,11 +188,12 @@ def set_result(
     """
     with transaction(conn):
         cursor = conn.execute(
-            "UPDATE deployments SET plan_result = ?, plan_error = ?, updated_at = ?"
+            "UPDATE deployments SET plan_result = ?, plan_error = ?, safety = ?, updated_at = ?"
             " WHERE id = ? AND revision = ?",
             (
                 None if plan_result is None else dumps(plan_result),
                 None if plan_error is None else dumps(plan_error),
+                _safety(plan_result),
                 utc_now(),
                 deployment_id,
                 revision,
@@ -192,14 +205,12 @@ def set_result(
 def summaries(conn: sqlite3.Connection) -> list[dict[str, Any]]:
     """Every deployment for a list: its summary and the chosen option's safety block only.
 
-    The full plan result (hundreds of kB) stays in SQLite; ``json_extract`` takes out the part the
-    list needs (SQLite JSON1, https://sqlite.org/json1.html).
+    The full plan result (hundreds of kB) stays in SQLite; the safety block has its own column.
     """
     rows = conn.execute(
         "SELECT id, name, created_at, updated_at, revision, plan_result IS NOT NULL AS has_result,"
-        " json_extract(plan_input, '$.site.name') AS site_name, channels,"
-        " json_extract(plan_result, '$.options[0].safety') AS safety"
-        " FROM deployments ORDER BY created_at, id"
+        " json_extract(site, '$.name') AS site_name, channels,"
+        " safety FROM deployments ORDER BY created_at, id"
     ).fetchall()
     out = []
     for row in rows:
@@ -231,8 +242,8 @@ def safety_view(conn: sqlite3.Connection, deployment_id: str) -> tuple[int, dict
     parsing a whole plan result.
     """
     row = conn.execute(
-        "SELECT revision, plan_result IS NOT NULL AS has_result,"
-        " json_extract(plan_result, '$.options[0].safety') AS safety FROM deployments WHERE id = ?",
+        "SELECT revision, plan_result IS NOT NULL AS has_result, safety FROM deployments"
+        " WHERE id = ?",
         (deployment_id,),
     ).fetchone()
     if row is None:

@@ -57,7 +57,15 @@ _V2 = (
         BEGIN SELECT RAISE(ABORT, 'acknowledgements are append-only'); END""",
 )
 
-MIGRATIONS: tuple[tuple[str, ...], ...] = (_V1, _V2)
+# Version 3: the chosen option's safety block in its own column, so that a list of deployments and
+# the checklist endpoints read a few kB instead of parsing every plan result (hundreds of kB each).
+_V3 = (
+    "ALTER TABLE deployments ADD COLUMN safety TEXT",
+    "UPDATE deployments SET safety = json_extract(plan_result, '$.options[0].safety')"
+    " WHERE plan_result IS NOT NULL",
+)
+
+MIGRATIONS: tuple[tuple[str, ...], ...] = (_V1, _V2, _V3)
 SCHEMA_VERSION = len(MIGRATIONS)
 
 

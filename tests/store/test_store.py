@@ -44,11 +44,11 @@ def test_migrate_from_empty(tmp_path):
     assert migrate(path) == SCHEMA_VERSION  # running again changes nothing
 
 
-def test_migrate_from_previous_schema_keeps_and_fills_data(tmp_path):
+def test_migrate_from_version_1_keeps_and_fills_data(tmp_path):
     path = store.database_path(tmp_path)
-    assert migrate(path, target=SCHEMA_VERSION - 1) == SCHEMA_VERSION - 1
+    assert migrate(path, target=1) == 1
     conn = store.connect(path)
-    # A database as the previous fieldkit wrote it: version-1 columns only.
+    # A database as the first fieldkit wrote it: version-1 columns only.
     conn.execute(
         "INSERT INTO deployments (id, name, plan_input, plan_result, created_at, updated_at)"
         " VALUES ('d1', 'Old one', ?, NULL, '2026-11-30T10:00:00.000000Z', '2026-11-30T10:00:00.000000Z')",
@@ -75,6 +75,48 @@ def test_migrate_from_previous_schema_keeps_and_fills_data(tmp_path):
             conn.execute("UPDATE acknowledgements SET done = 0")
     finally:
         conn.close()
+
+
+def test_migrate_from_previous_schema_fills_the_safety_column(tmp_path):
+    path = store.database_path(tmp_path)
+    previous = SCHEMA_VERSION - 1
+    assert migrate(path, target=previous) == previous
+    conn = store.connect(path)
+    safety = {
+        "raise_ok": True,
+        "checklist": [{"id": "pre-x", "stage": "pre-raise", "required": True}],
+    }
+    result = {"options": [{"form": "flat", "safety": safety}, {"form": "inverted-v"}]}
+    conn.execute(
+        "INSERT INTO deployments (id, name, plan_input, plan_result, created_at, updated_at, site,"
+        " kit, channels, revision) VALUES ('d2', 'Previous', ?, ?, '2026-11-30T10:00:00.000000Z',"
+        " '2026-11-30T10:00:00.000000Z', ?, NULL, '[3.79]', 4)",
+        (json.dumps(PLAN_INPUT), json.dumps(result), json.dumps(PLAN_INPUT["site"])),
+    )
+    conn.close()
+    assert migrate(path) == SCHEMA_VERSION
+    conn = store.connect(path)
+    try:
+        assert deployments.safety_view(conn, "d2") == (4, {"options": [{"safety": safety}]})
+        assert deployments.get(conn, "d2").plan_result == result
+        [summary] = deployments.summaries(conn)
+        assert summary["safety"] == safety and summary["revision"] == 4
+    finally:
+        conn.close()
+
+
+def test_set_result_only_for_the_revision_it_was_planned_for(db):
+    new_id = deployments.create(db, name="A", plan_input=PLAN_INPUT, plan_result=None)
+    deployments.update(db, new_id, name="edited", plan_input=PLAN_INPUT, plan_result=None)
+    # A background plan of revision 1 arrives after the edit: the edit wins.
+    assert not deployments.set_result(
+        db, new_id, plan_result={"options": []}, plan_error=None, revision=1
+    )
+    assert deployments.get(db, new_id).plan_result is None
+    assert deployments.set_result(
+        db, new_id, plan_result={"options": []}, plan_error=None, revision=2
+    )
+    assert deployments.get(db, new_id).plan_result == {"options": []}
 
 
 def test_a_failed_migration_leaves_the_old_version(tmp_path, monkeypatch):
