@@ -72,10 +72,15 @@ class EngineCounter:
     def solve(self, hung: HungDipole, wire: KitWire, *, frequencies_hz, ground) -> list:
         from fieldkit.antenna import solve
 
+        from fieldkit.errors import InputError
+
         freqs = [float(f) for f in frequencies_hz]
         self.calls += 1
         self.frequencies += len(freqs)
-        return solve(antenna_for(hung, wire), frequencies_hz=freqs, ground=ground)
+        try:
+            return solve(antenna_for(hung, wire), frequencies_hz=freqs, ground=ground)
+        except InputError as e:  # a hang the engine refuses is a layout problem, not the user's input
+            raise ResonanceError(f"the engine cannot solve this hang ({e.detail})") from None
 
 
 @dataclass(frozen=True)

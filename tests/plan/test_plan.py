@@ -203,3 +203,51 @@ def test_rule_of_thumb_shown_and_marked():
         (cut["leg_m"][0] - rule["leg_m"]) / rule["leg_m"] * 100, abs=0.02
     )
     assert np.isfinite(cut["sensitivity_khz_per_cm"])
+
+
+@pytest.mark.slow
+def test_option_that_may_not_be_raised_is_never_first():
+    """Two pairs: A–B right beside a power line (fails the fall-distance rule of REFERENCES.md:
+    antenna + support height + 3.05 m, 29 CFR 1910.333 / common practice), C–D well away and lower.
+    The A–B pair is higher and would score better on NVIS gain alone."""
+    s = spec(
+        supports=[
+            {"id": "A", "kind": "tree", "height_m": 14.0, "x_m": -22, "y_m": -4},
+            {"id": "B", "kind": "tree", "height_m": 14.0, "x_m": 22, "y_m": -4},
+            {"id": "C", "kind": "tree", "height_m": 10.0, "x_m": -22, "y_m": 80},
+            {"id": "D", "kind": "tree", "height_m": 10.0, "x_m": 22, "y_m": 80},
+        ],
+        channel_mhz=7.1,
+        ground="average",
+    )
+    s["form"] = "flat"
+    s["site"]["hazards"] = [{"kind": "power_line", "points_m": [[-200, 0], [200, 0]], "height_m": 8.5}]
+    out = plan(s)
+    first = out["options"][0]
+    assert set(first["supports_used"]) == {"C", "D"}
+    assert first["safety"]["raise_ok"] is True
+    near = [o for o in out["options"] if set(o["supports_used"]) & {"A", "B"}]
+    assert near and all(o["safety"]["raise_ok"] is False for o in near)
+    assert any(o["score_db"] > first["score_db"] for o in near)  # it really would have won on gain
+    assert near[0]["warnings"][0].startswith("do not raise as planned")
+
+
+@pytest.mark.parametrize(
+    ("supports", "words"),
+    [
+        ([], "at least two safe supports"),
+        ([{"id": "A", "kind": "tree", "height_m": 10, "x_m": 0, "y_m": 0}], "at least two safe supports"),
+        (
+            [
+                {"id": "A", "kind": "tree", "height_m": 10, "x_m": 0, "y_m": 0, "unsafe": True},
+                {"id": "B", "kind": "tree", "height_m": 10, "x_m": 40, "y_m": 0},
+            ],
+            "at least two safe supports",
+        ),
+    ],
+)
+def test_not_enough_supports(supports, words):
+    s = spec(supports=supports, channel_mhz=7.1, ground="perfect")
+    with pytest.raises(InputError) as e:
+        plan(s)
+    assert words in e.value.detail
