@@ -71,7 +71,6 @@ class EngineCounter:
 
     def solve(self, hung: HungDipole, wire: KitWire, *, frequencies_hz, ground) -> list:
         from fieldkit.antenna import solve
-
         from fieldkit.errors import InputError
 
         freqs = [float(f) for f in frequencies_hz]
@@ -79,7 +78,9 @@ class EngineCounter:
         self.frequencies += len(freqs)
         try:
             return solve(antenna_for(hung, wire), frequencies_hz=freqs, ground=ground)
-        except InputError as e:  # a hang the engine refuses is a layout problem, not the user's input
+        except (
+            InputError
+        ) as e:  # a hang the engine refuses is a layout problem, not the user's input
             raise ResonanceError(f"the engine cannot solve this hang ({e.detail})") from None
 
 

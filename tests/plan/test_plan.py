@@ -221,7 +221,9 @@ def test_option_that_may_not_be_raised_is_never_first():
         ground="average",
     )
     s["form"] = "flat"
-    s["site"]["hazards"] = [{"kind": "power_line", "points_m": [[-200, 0], [200, 0]], "height_m": 8.5}]
+    s["site"]["hazards"] = [
+        {"kind": "power_line", "points_m": [[-200, 0], [200, 0]], "height_m": 8.5}
+    ]
     out = plan(s)
     first = out["options"][0]
     assert set(first["supports_used"]) == {"C", "D"}
@@ -236,7 +238,10 @@ def test_option_that_may_not_be_raised_is_never_first():
     ("supports", "words"),
     [
         ([], "at least two safe supports"),
-        ([{"id": "A", "kind": "tree", "height_m": 10, "x_m": 0, "y_m": 0}], "at least two safe supports"),
+        (
+            [{"id": "A", "kind": "tree", "height_m": 10, "x_m": 0, "y_m": 0}],
+            "at least two safe supports",
+        ),
         (
             [
                 {"id": "A", "kind": "tree", "height_m": 10, "x_m": 0, "y_m": 0, "unsafe": True},
