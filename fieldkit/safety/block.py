@@ -9,7 +9,7 @@ from typing import Any
 
 import numpy as np
 
-from fieldkit.errors import InputError, array, join, number, require_mapping
+from fieldkit.errors import InputError, array, choice, join, number, require_mapping
 from fieldkit.safety.checklists import slug
 from fieldkit.safety.duty import Radio, parse_radio
 from fieldkit.safety.exposure import Landmark, keep_out
@@ -126,6 +126,7 @@ def _engine_fields(
     """Near-field function of the hung wire at the radio's power, and the solution (one solve)."""
     if solution is None:
         from fieldkit.antenna import Antenna, Feed, Insulation, Wire, solve
+        from fieldkit.antenna.materials import CONDUCTORS
 
         kit = require_mapping(option.get("wire"), "option.wire")
         diameter = number(
@@ -155,7 +156,7 @@ def _engine_fields(
         w = Wire(
             points_m=wire,
             radius_m=diameter / 2000,
-            conductor=kit.get("conductor", "copper"),
+            conductor=choice(kit.get("conductor", "copper"), "option.wire.conductor", CONDUCTORS),
             insulation=insulation,
         )
         solution = solve(
@@ -229,7 +230,9 @@ def safety_block(
         minimum=0.0,
         exclusive_minimum=True,
     )
-    limit = exposure_limit(limit_name, frequency_hz=f_mhz * 1e6)
+    limit = exposure_limit(
+        limit_name, frequency_hz=f_mhz * 1e6, frequency_field="option.frequency_mhz"
+    )
     wire = _wire_points(option.get("hung_wire_m"), "option.hung_wire_m")
     feed_d = number(option.get("feed_distance_m"), "option.feed_distance_m", unit="m", minimum=0.0)
     length = polyline_length(wire)

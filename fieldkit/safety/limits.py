@@ -120,7 +120,11 @@ def parse_limit_set(value, field: str = "limit_set") -> str:
 
 
 def exposure_limit(
-    limit_set: str, *, frequency_hz: float, field: str = "limit_set"
+    limit_set: str,
+    *,
+    frequency_hz: float,
+    field: str = "limit_set",
+    frequency_field: str = "frequency_mhz",
 ) -> ExposureLimit:
     """Maximum permissible exposure of a limit set at a frequency.
 
@@ -143,7 +147,7 @@ def exposure_limit(
     bands, source = _TABLES[name]
     f_mhz = frequency_hz / 1e6
     if not math.isfinite(f_mhz) or f_mhz <= 0:
-        raise InputError("frequency_mhz", f"expected a positive frequency, got {f_mhz!r}")
+        raise InputError(frequency_field, f"expected a positive frequency, got {f_mhz!r}")
     for low, high, e_fn, h_fn, s_fn in bands:
         if low <= f_mhz <= high:
             e = e_fn(f_mhz)
@@ -163,7 +167,7 @@ def exposure_limit(
                 source=source,
             )
     raise InputError(
-        "frequency_mhz",
+        frequency_field,
         f"{f_mhz:g} MHz is outside the {name} table ({bands[0][0]:g}–{bands[-1][1]:g} MHz)",
         value=f_mhz,
     )

@@ -243,6 +243,20 @@ def test_unsafe_support_in_use_blocks_raising():
         ({"option": {**INV_V, "hung_wire_m": [[0, 0, 5], [1, 0, -1]]}}, "option.hung_wire_m[1][2]"),
         ({"option": {**INV_V, "feed_distance_m": 99.0}}, "option.feed_distance_m"),
         ({"option": {**INV_V, "frequency_mhz": "3.8"}}, "option.frequency_mhz"),
+        (
+            {"option": {**INV_V, "frequency_mhz": 500.0}},
+            "option.frequency_mhz",
+        ),  # beyond the tables
+        (
+            {"option": {**INV_V, "wire": {"diameter_mm": 1.6, "conductor": "gold"}}},
+            "option.wire.conductor",
+        ),
+        ({"option": {**INV_V, "wire": None}}, "option.wire"),
+        ({"option": {**INV_V, "mast": {"id": "M1", "x_m": "a"}}}, "option.mast.x_m"),
+        (
+            {"site": {**SITE, "supports": [{**SITE["supports"][0], "unsafe": "yes"}]}},
+            "site.supports[0].unsafe",
+        ),
     ],
 )
 def test_bad_input_names_the_field(kwargs, field):
