@@ -225,7 +225,7 @@ def ready_to_raise(
     return True
 
 
-CSV_COLUMNS = ("id", "stage", "required", "done", "by", "at_utc", "device", "text")
+CSV_COLUMNS = ("id", "stage", "required", "done", "by", "at_utc", "device", "client_id", "text")
 
 
 def _cell(value: Any) -> str:
@@ -248,8 +248,9 @@ def checklist_rows(items, acknowledgements) -> list[dict[str, Any]]:
                 "required": bool(it.get("required", True)),
                 "done": ack.get("done") is True,
                 "by": ack.get("by"),
-                "at_utc": ack.get("at"),
-                "device": ack.get("device", ack.get("client_id")),
+                "at_utc": ack.get("at_utc", ack.get("at")),
+                "device": ack.get("device"),
+                "client_id": ack.get("client_id"),
                 "text": it["text"],
             }
         )
