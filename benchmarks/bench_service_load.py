@@ -53,7 +53,12 @@ def percentile(values: list[float], q: float) -> float:
 
 class Client:
     def __init__(self, port: int) -> None:
+        self.port = port
         self.conn = http.client.HTTPConnection("127.0.0.1", port, timeout=300)
+
+    def reconnect(self) -> None:
+        self.conn.close()
+        self.conn = http.client.HTTPConnection("127.0.0.1", self.port, timeout=300)
 
     def call(self, method: str, path: str, body=None) -> tuple[int, object]:
         headers = {"Content-Type": "application/json"} if body is not None else {}
@@ -76,18 +81,21 @@ def run_pass(port: int, plan_input: dict, clients: int, rounds: int) -> dict:
     start_gate = threading.Barrier(clients)
 
     def timed(client: Client, kind: str, method: str, path: str, body=None, ok=(200, 201)):
+        """The answer, or None after counting an error (a failed request or an unexpected status)."""
         t0 = time.perf_counter()
         try:
             status, answer = client.call(method, path, body)
         except Exception as exc:  # a benchmark counts failures, whatever they are
             with lock:
                 errors.append(f"{kind}: {type(exc).__name__}: {exc}")
+            client.reconnect()
             return None
         elapsed = time.perf_counter() - t0
         with lock:
             timings.setdefault(kind, []).append(elapsed)
             if status not in ok:
                 errors.append(f"{kind}: HTTP {status} {str(answer)[:200]}")
+                return None
         return answer
 
     def worker(n: int) -> None:
@@ -151,9 +159,12 @@ def main() -> int:
         try:
             port = int(server.stdout.readline())
             t0 = time.perf_counter()
-            status, _ = Client(port).call("POST", "/api/plan", plan_input)
+            status, answer = Client(port).call("POST", "/api/plan", plan_input)
             cold = time.perf_counter() - t0
             print(f"cold demo plan (POST /api/plan, computed once): {cold:.1f} s, HTTP {status}")
+            if status != 200:
+                print(f"the demo plan fails ({str(answer)[:300]}); no load run without a plan")
+                return 1
             print(f"server RSS after warm-up: {rss_kib(server.pid) / 1024:.1f} MiB")
             total_errors = 0
             for p in range(1, args.passes + 1):

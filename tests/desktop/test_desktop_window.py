@@ -49,14 +49,22 @@ REPORT = textwrap.dedent(
 def run_under_xvfb(script: str, *args: str, timeout: float = 120) -> subprocess.CompletedProcess:
     env = {k: v for k, v in os.environ.items() if k not in ("DISPLAY", "WAYLAND_DISPLAY")}
     env.pop("QT_QPA_PLATFORM", None)
-    return subprocess.run(
+    proc = subprocess.Popen(
         ["xvfb-run", "-a", "-s", "-screen 0 1280x800x24", sys.executable, "-c", script, *args],
-        capture_output=True,
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
         text=True,
-        timeout=timeout,
         cwd=ROOT,
         env=env,
+        start_new_session=True,  # on a hang, end Xvfb and the window process together
     )
+    try:
+        out, err = proc.communicate(timeout=timeout)
+    except subprocess.TimeoutExpired:
+        os.killpg(proc.pid, signal.SIGKILL)
+        out, err = proc.communicate()
+        pytest.fail(f"the window did not close within {timeout} s: {out[-1000:]} {err[-2000:]}")
+    return subprocess.CompletedProcess(proc.args, proc.returncode, out, err)
 
 
 def reported(proc: subprocess.CompletedProcess) -> dict:
