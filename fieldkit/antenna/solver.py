@@ -23,6 +23,7 @@ import numpy as np
 from fieldkit.errors import InputError
 
 from . import farfield
+from .blas import single_threaded
 from .geometry import Antenna, Mesh, build_mesh, check_antenna
 from .grounds import Ground
 from .kernel import free_space_matrix, loading_matrix, perfect_image_matrix, segment_end_currents
@@ -50,6 +51,7 @@ class Solution:
     _cache: dict = field(default_factory=dict, repr=False, compare=False)
 
     # -- far field ---------------------------------------------------------------------------
+    @single_threaded()
     def partial_gains(self, elevation_deg, azimuth_deg) -> tuple[np.ndarray, np.ndarray]:
         """Linear partial gains (θ/vertical, φ/horizontal) [n_azimuth, n_elevation] [-]."""
         rhat = farfield.directions(elevation_deg, azimuth_deg)
@@ -75,6 +77,7 @@ class Solution:
     def zenith_gain_dbi(self) -> float:
         return float(self.gain_dbi([90.0], [0.0])[0, 0])
 
+    @single_threaded()
     def _maximum(self) -> tuple[float, float, float]:
         if "max" not in self._cache:
             lo = -90.0 if self.ground.kind == "free-space" else 0.0
@@ -117,6 +120,7 @@ class Solution:
             return 0.0
         return float(math.degrees(math.atan2(h[1], h[0])) % 180.0)
 
+    @single_threaded()
     def beamwidth_deg(self) -> dict[str, float]:
         """−3 dB width of the elevation cut through zenith, broadside (⟂ wire) and along the wire [deg].
 
@@ -129,6 +133,7 @@ class Solution:
         return dict(self._cache["bw"])
 
     # -- near field --------------------------------------------------------------------------
+    @single_threaded()
     def near_field(self, points_m) -> tuple[np.ndarray, np.ndarray]:
         """E [V/m] and H [A/m] complex RMS vectors (n, 3) at points, ground included."""
         from .nearfield import near_field
@@ -295,51 +300,60 @@ def solve(
         )
     check_antenna(antenna, ground)
     mesh = build_mesh(antenna, max_frequency_hz=float(freqs.max()))
-    out = []
-    for f in freqs:
-        omega = 2 * math.pi * f
-        k = omega / C0
-        zmat = _free_space_matrix_cached(mesh, k, omega) + _ground_matrix(mesh, ground, f, k, omega)
-        z_load = _series_loading(antenna, mesh, f)
-        if np.any(z_load != 0):
-            zmat = zmat + loading_matrix(mesh, z_load)
-        rhs = np.zeros(mesh.n_basis, dtype=complex)
-        rhs[mesh.feed_basis] = 1.0
-        coeff = np.linalg.solve(zmat, rhs)
-        z_in = 1.0 / coeff[mesh.feed_basis]
-        if z_in.real <= 0:
-            raise InputError("wires", "the model gives a feed resistance ≤ 0; check the geometry")
-        # scale so that the delivered power is power_w with RMS currents
-        i_feed = math.sqrt(power_w / z_in.real)
-        coeff = coeff / coeff[mesh.feed_basis] * i_feed
-        i_start, i_end = segment_end_currents(mesh, coeff)
-        seg_sq = (np.abs(i_start) ** 2 + np.abs(i_end) ** 2 + (i_start * i_end.conj()).real) / 3
-        conductor_loss = float((z_load.real * mesh.length * seg_sq).sum())
-        grid: dict = {}
-        radiated = farfield.radiated_power(mesh, i_start, i_end, ground, f, grid=grid)
-        ground_loss = (
-            max(0.0, power_w - radiated - conductor_loss) if ground.kind == "lossy" else 0.0
-        )
-        gamma = abs((z_in - reference_impedance_ohm) / (z_in + reference_impedance_ohm))
-        swr = float((1 + gamma) / (1 - gamma)) if gamma < 1 else math.inf
-        out.append(
-            Solution(
-                frequency_hz=float(f),
-                impedance_ohm=complex(z_in),
-                swr=swr,
-                radiation_efficiency=radiated / power_w,
-                power_w={
-                    "input": float(power_w),
-                    "radiated": radiated,
-                    "ground_loss": ground_loss,
-                    "conductor_loss": conductor_loss,
-                },
-                currents_a=0.5 * (i_start + i_end),
-                segment_centres_m=mesh.centre,
-                mesh=mesh,
-                ground=ground,
-                segment_currents_a=(i_start, i_end),
-                _cache={"grid": grid},
-            )
-        )
-    return out
+    with single_threaded():
+        return [
+            _solve_one(antenna, mesh, float(f), ground, power_w, reference_impedance_ohm)
+            for f in freqs
+        ]
+
+
+def _solve_one(
+    antenna: Antenna,
+    mesh: Mesh,
+    f: float,
+    ground: Ground,
+    power_w: float,
+    reference_impedance_ohm: float,
+) -> Solution:
+    """Solve at one frequency (see :func:`solve`)."""
+    omega = 2 * math.pi * f
+    k = omega / C0
+    zmat = _free_space_matrix_cached(mesh, k, omega) + _ground_matrix(mesh, ground, f, k, omega)
+    z_load = _series_loading(antenna, mesh, f)
+    if np.any(z_load != 0):
+        zmat = zmat + loading_matrix(mesh, z_load)
+    rhs = np.zeros(mesh.n_basis, dtype=complex)
+    rhs[mesh.feed_basis] = 1.0
+    coeff = np.linalg.solve(zmat, rhs)
+    z_in = 1.0 / coeff[mesh.feed_basis]
+    if z_in.real <= 0:
+        raise InputError("wires", "the model gives a feed resistance ≤ 0; check the geometry")
+    # scale so that the delivered power is power_w with RMS currents
+    i_feed = math.sqrt(power_w / z_in.real)
+    coeff = coeff / coeff[mesh.feed_basis] * i_feed
+    i_start, i_end = segment_end_currents(mesh, coeff)
+    seg_sq = (np.abs(i_start) ** 2 + np.abs(i_end) ** 2 + (i_start * i_end.conj()).real) / 3
+    conductor_loss = float((z_load.real * mesh.length * seg_sq).sum())
+    grid: dict = {}
+    radiated = farfield.radiated_power(mesh, i_start, i_end, ground, f, grid=grid)
+    ground_loss = max(0.0, power_w - radiated - conductor_loss) if ground.kind == "lossy" else 0.0
+    gamma = abs((z_in - reference_impedance_ohm) / (z_in + reference_impedance_ohm))
+    swr = float((1 + gamma) / (1 - gamma)) if gamma < 1 else math.inf
+    return Solution(
+        frequency_hz=float(f),
+        impedance_ohm=complex(z_in),
+        swr=swr,
+        radiation_efficiency=radiated / power_w,
+        power_w={
+            "input": float(power_w),
+            "radiated": radiated,
+            "ground_loss": ground_loss,
+            "conductor_loss": conductor_loss,
+        },
+        currents_a=0.5 * (i_start + i_end),
+        segment_centres_m=mesh.centre,
+        mesh=mesh,
+        ground=ground,
+        segment_currents_a=(i_start, i_end),
+        _cache={"grid": grid},
+    )

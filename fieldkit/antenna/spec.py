@@ -13,6 +13,7 @@ import numpy as np
 
 from fieldkit.errors import InputError, array, check_keys, choice, join, number, require_mapping
 
+from .blas import single_threaded
 from .geometry import Antenna, Feed, Wire, build_mesh, check_antenna
 from .grounds import parse_ground
 from .materials import CONDUCTORS, Insulation
@@ -336,6 +337,7 @@ def _solve_one(p: dict[str, Any], field: str) -> dict[str, Any]:
     return {"results": [_result(s, p["pattern"], p["near_field"]) for s in sols]}
 
 
+@single_threaded()
 def model_json(spec: dict | list) -> dict | list:
     """Run the `fieldkit model` contract on one spec (→ object) or a list of specs (→ list).
 

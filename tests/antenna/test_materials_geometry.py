@@ -123,3 +123,16 @@ def test_wire_folded_back_over_another_is_refused():
     with pytest.raises(InputError, match="overlaps") as err:
         solve(ant, frequencies_hz=3.6e6, ground=Ground("perfect"))
     assert err.value.field == "wires[1].points_m[0]"
+
+
+def test_blas_single_threaded_switch_restores_the_count():
+    from fieldkit.antenna import blas
+
+    api = blas._openblas()
+    if api is None:
+        pytest.skip("numpy here does not bundle OpenBLAS")
+    getter, setter = api
+    before = getter()
+    with blas.single_threaded():
+        assert getter() == 1
+    assert getter() == before
