@@ -454,9 +454,14 @@ def keep_out(
         parts = [_side_rays(pl, coarse), _fan_rays(pl)]
         origins, dirs, keys = (np.concatenate([p[i] for p in parts]) for i in range(3))
         lines = _boundaries(ev, origins, dirs, heights, **kw)
-        # where a zone was found, or the field under the wire comes near the limit, stations every
-        # FINE_STATION_M within one coarse step (the peak under a sloping end can sit between stations)
-        hit = lines.inside.any(axis=1) | (lines.head_foot >= FINE_TRIGGER)
+        # stations every FINE_STATION_M within one coarse step of each end (the field under a wire
+        # peaks near its ends, often between the coarse stations), of any zone found and wherever the
+        # field under the wire comes near the limit
+        hit = (
+            lines.inside.any(axis=1)
+            | (lines.head_foot >= FINE_TRIGGER)
+            | np.isin(keys[:, 0], (1.0, 3.0))
+        )
         if hit.any():
             step = coarse[1] - coarse[0]
             at = np.where(keys[:, 0] == 0, keys[:, 1], np.where(keys[:, 0] == 2, -keys[:, 1], 0.0))

@@ -341,3 +341,19 @@ def test_limit_sets_order(block, limit_set, stricter):
         assert out["exposure"]["power_for_no_zone_w"] < block["exposure"]["power_for_no_zone_w"]
     else:
         assert out["exposure"]["power_for_no_zone_w"] > block["exposure"]["power_for_no_zone_w"]
+
+
+@pytest.mark.parametrize("power_w", [20.0, 60.0, 200.0, 800.0])
+def test_power_scaling_is_consistent(block, power_w):
+    # fields ∝ √P, so the power at which no zone is left does not depend on the power asked about,
+    # and the zone grows with power (ratio ∝ P)
+    out = safety_block(
+        option=INV_V, site=SITE, radio={"power_w": power_w, "mode": "data"}, ground=PERFECT
+    )
+    p0 = block["exposure"]["power_for_no_zone_w"]
+    assert out["exposure"]["power_for_no_zone_w"] == pytest.approx(p0, rel=0.01)
+    assert (out["keep_out_m"] > 0) == (power_w > p0)
+    if power_w > RADIO["power_w"]:
+        assert out["keep_out_m"] >= block["keep_out_m"]
+    else:
+        assert out["keep_out_m"] <= block["keep_out_m"]
