@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 import numpy as np
 
@@ -243,6 +244,13 @@ def _check_overlaps(antenna: Antenna) -> None:
             f"piece {index[b]} of wire {owner[b]} overlaps or crosses piece {index[a]} of wire "
             f"{owner[a]}; wires may only meet at their end points",
         )
+
+
+@lru_cache(maxsize=64)
+def checked_mesh(antenna: Antenna, ground: Ground, max_frequency_hz: float) -> Mesh:
+    """:func:`check_antenna` then :func:`build_mesh`, cached (a spec is checked, then solved)."""
+    check_antenna(antenna, ground)
+    return build_mesh(antenna, max_frequency_hz=max_frequency_hz)
 
 
 def build_mesh(antenna: Antenna, *, max_frequency_hz: float) -> Mesh:

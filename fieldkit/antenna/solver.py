@@ -24,7 +24,7 @@ from fieldkit.errors import InputError
 
 from . import farfield
 from .blas import single_threaded
-from .geometry import Antenna, Mesh, build_mesh, check_antenna
+from .geometry import Antenna, Mesh, checked_mesh
 from .grounds import Ground
 from .kernel import free_space_matrix, loading_matrix, perfect_image_matrix, segment_end_currents
 from .materials import C0, conductor_impedance_per_m, insulation_impedance_per_m
@@ -298,8 +298,7 @@ def solve(
         raise InputError(
             "reference_impedance_ohm", f"expected more than 0 ohm, got {reference_impedance_ohm:g}"
         )
-    check_antenna(antenna, ground)
-    mesh = build_mesh(antenna, max_frequency_hz=float(freqs.max()))
+    mesh = checked_mesh(antenna, ground, float(freqs.max()))
     with single_threaded():
         return [
             _solve_one(antenna, mesh, float(f), ground, power_w, reference_impedance_ohm)

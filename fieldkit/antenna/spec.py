@@ -14,7 +14,7 @@ import numpy as np
 from fieldkit.errors import InputError, array, check_keys, choice, join, number, require_mapping
 
 from .blas import single_threaded
-from .geometry import Antenna, Feed, Wire, build_mesh, check_antenna
+from .geometry import Antenna, Feed, Wire, checked_mesh
 from .grounds import parse_ground
 from .materials import CONDUCTORS, Insulation
 from .solver import MAX_FREQUENCY_HZ, MIN_FREQUENCY_HZ, solve
@@ -298,8 +298,7 @@ def _prepare(spec: Any, field: str) -> tuple[dict[str, Any], float, int]:
     """The parsed spec, its cost in work units and its segment count (geometry checked here)."""
     p = parse_spec(spec, field)
     try:
-        check_antenna(p["antenna"], p["ground"])
-        mesh = build_mesh(p["antenna"], max_frequency_hz=max(p["frequencies_hz"]))
+        mesh = checked_mesh(p["antenna"], p["ground"], float(max(p["frequencies_hz"])))
     except InputError as err:
         raise _prefixed(err, field) from None
     n = mesh.n_segments
