@@ -326,5 +326,8 @@ def _attach_retrim(options: list[dict[str, Any]], inp: PlanInput) -> None:
 def _no_layout_reason(inp: PlanInput) -> str:
     safe = [s for s in inp.supports if not s.unsafe]
     if len(safe) < 2 and not inp.masts:
-        return "need at least two safe supports, or a mast in kit.masts for an inverted-V"
+        return (
+            "need at least two safe supports, a safe tree tall enough for an inverted-V apex "
+            "(5 m or more), or a mast in kit.masts"
+        )
     return "the supports are too low: every rope height is under the 3 m minimum end height"

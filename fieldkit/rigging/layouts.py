@@ -257,7 +257,48 @@ def inverted_v_layouts(
                 ),
             )
         )
+    out.extend(_branch_apex_layouts(safe, mech, axis))
     return out
+
+
+def _branch_apex_layouts(
+    safe: list[Support], mech: Mechanics, axis: tuple[float, float]
+) -> list[Layout]:
+    """An inverted-V with its apex on the highest safe branch (a tree as the centre support)."""
+    trees = [s for s in safe if s.kind == "tree"]
+    if not trees:
+        return []
+    tree = max(trees, key=lambda s: s.height_m)
+    apex = tree.height_m
+    top = apex - INVERTED_V_MIN_DROP_M
+    if top < MIN_END_HEIGHT_M:
+        return []
+    grid = height_grid(MIN_END_HEIGHT_M, min(top, MIN_END_HEIGHT_M + 3 * HEIGHT_STEP_M))
+
+    def build(setting: dict[str, float], leg_m: float) -> HungDipole:
+        return hang_inverted_v(
+            centre_xy=(tree.x_m, tree.y_m),
+            axis_xy=axis,
+            apex_height_m=apex,
+            end_height_m=setting["ends"],
+            leg_m=leg_m,
+            wire_weight_n_per_m=mech.wire_weight_n_per_m,
+            feed_load_n=mech.feed_load_n(apex),
+            tension_n=mech.tension_n,
+        )
+
+    return [
+        Layout(
+            form="inverted-v",
+            supports_used=(tree.id,),
+            settings=tuple({tree.id: apex, "ends": h} for h in grid),
+            build=build,
+            notes=(
+                f"apex on the {tree.id} branch at {apex:g} m, legs toward {_bearing_word(axis)}; the "
+                "branch carries the feedpoint and both legs' pull: choose a sound branch",
+            ),
+        )
+    ]
 
 
 def _bearing_word(axis: tuple[float, float]) -> str:

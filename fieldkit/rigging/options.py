@@ -381,6 +381,10 @@ def _rigging_json(
                 "top_load_kg": round(hung.top_load_n / g, 3),
             }
         )
+        if layout.mast is None:  # apex hauled up over a branch on its own halyard
+            apex_rope = halyard_rope_m(rope_height_m=hung.feedpoint_height_m, span_rope_m=0.0)
+            out["apex_halyard_rope_m"] = round(apex_rope, 1)
+            out["rope_needed_m"] = round(2 * rope_each + apex_rope, 1)
         if hung.end_tension_n[0] < kit.mech.tension_n - 1e-6:
             out["note"] = (
                 f"pull the ends to only {hung.end_tension_n[0]:.0f} N (not {kit.mech.tension_n:g} N) so the "

@@ -112,7 +112,7 @@ def test_spool_too_short():
 
 def test_mast_too_weak_is_refused():
     s = spec(
-        supports=two_trees(10, 5.0),
+        supports=two_trees(10, 4.0),  # too low to be an apex themselves
         channel_mhz=3.6,
         ground="perfect",
         masts=[{"id": "M9", "height_m": 9.0, "top_load_kg": 0.3, "guys": 3}],
@@ -239,20 +239,38 @@ def test_option_that_may_not_be_raised_is_never_first():
     [
         ([], "at least two safe supports"),
         (
-            [{"id": "A", "kind": "tree", "height_m": 10, "x_m": 0, "y_m": 0}],
+            [{"id": "A", "kind": "tree", "height_m": 4, "x_m": 0, "y_m": 0}],
             "at least two safe supports",
         ),
         (
             [
                 {"id": "A", "kind": "tree", "height_m": 10, "x_m": 0, "y_m": 0, "unsafe": True},
-                {"id": "B", "kind": "tree", "height_m": 10, "x_m": 40, "y_m": 0},
+                {"id": "B", "kind": "tree", "height_m": 4, "x_m": 40, "y_m": 0},
             ],
             "at least two safe supports",
         ),
     ],
 )
 def test_not_enough_supports(supports, words):
+    # one safe tree of 4 m: no pair, and too low for an inverted-V apex (3 m ends, 2 m drop)
     s = spec(supports=supports, channel_mhz=7.1, ground="perfect")
     with pytest.raises(InputError) as e:
         plan(s)
     assert words in e.value.detail
+
+
+def test_one_tall_tree_makes_an_inverted_v_apex():
+    s = spec(
+        supports=[{"id": "A", "kind": "tree", "height_m": 12, "x_m": 0, "y_m": 0}],
+        channel_mhz=7.1,
+        ground="perfect",
+    )
+    opt = plan(s)["options"][0]
+    assert opt["form"] == "inverted-v" and opt["supports_used"] == ["A"] and opt["mast"] is None
+    assert opt["feedpoint_height_m"] == pytest.approx(12.0)
+    assert min(opt["end_heights_m"]) >= 3.0  # the end minimum (common practice)
+    # apex angle from the chord geometry of the hung polyline
+    p = np.asarray(opt["hung_wire_m"])
+    reach = np.hypot(*(p[-1, :2] - p[len(p) // 2, :2]))
+    drop = 12.0 - p[-1, 2]
+    assert opt["apex_angle_deg"] == pytest.approx(2 * np.degrees(np.arctan2(reach, drop)), abs=0.2)
