@@ -64,12 +64,13 @@ LOW_WIRE_MARGIN_M = 1.0
 #: A wire shorter than this in plan view is treated as a point (rays all round it) [m].
 POINT_LIKE_M = 0.5
 #: Stations along the wire: at most this spacing [m] and at most this many stations.
-STATION_STEP_M = 2.0
-MAX_STATIONS = 24
+STATION_STEP_M = 3.0
+MAX_STATIONS = 16
 #: Station spacing near a zone found on the coarse stations [m], and the share of the limit under the
 #: wire at a coarse station that calls for it.
 FINE_STATION_M = 0.5
 FINE_TRIGGER = 0.5
+FINE_END_M = 1.5
 #: Rays in the fan around each wire end (between the two side rays).
 FAN_RAYS = 5
 
@@ -393,7 +394,7 @@ def _end_separation(ev: _Evaluator, end_m: np.ndarray) -> float:
         done += len(s)
         if ratio[-1] < 1.0:
             break
-        chunk = max(8, 2 * chunk)
+        chunk = max(4, 2 * chunk)
     k = int(_last_over(ratio))
     if k < 0:
         return 0.0
@@ -454,30 +455,26 @@ def keep_out(
         parts = [_side_rays(pl, coarse), _fan_rays(pl)]
         origins, dirs, keys = (np.concatenate([p[i] for p in parts]) for i in range(3))
         lines = _boundaries(ev, origins, dirs, heights, **kw)
-        # stations every FINE_STATION_M within one coarse step of each end (the field under a wire
-        # peaks near its ends, often between the coarse stations), of any zone found and wherever the
-        # field under the wire comes near the limit
-        hit = (
-            lines.inside.any(axis=1)
-            | (lines.head_foot >= FINE_TRIGGER)
-            | np.isin(keys[:, 0], (1.0, 3.0))
-        )
-        if hit.any():
-            step = coarse[1] - coarse[0]
-            at = np.where(keys[:, 0] == 0, keys[:, 1], np.where(keys[:, 0] == 2, -keys[:, 1], 0.0))
-            at = np.where(keys[:, 0] == 1, pl.length, at)
-            grid = np.arange(0.0, pl.length + 1e-9, FINE_STATION_M)
-            near = (np.abs(grid[:, None] - at[hit][None, :]) <= step).any(axis=1)
-            new = grid[near & (np.abs(grid[:, None] - coarse[None, :]) > 1e-6).all(axis=1)]
-            if len(new):
-                o2, d2, k2 = _side_rays(pl, new)
-                fine = _boundaries(ev, o2, d2, heights, **kw)
-                origins, dirs, keys = (
-                    np.vstack([origins, o2]),
-                    np.vstack([dirs, d2]),
-                    np.vstack([keys, k2]),
-                )
-                lines = _merge(lines, fine)
+        # finer stations (every FINE_STATION_M) within FINE_END_M of each end — the field under a wire
+        # peaks near its ends, often between coarse stations — and within one coarse step of any zone
+        # found or wherever the field under the wire comes near the limit
+        hit = lines.inside.any(axis=1) | (lines.head_foot >= FINE_TRIGGER)
+        step = coarse[1] - coarse[0]
+        at = np.where(keys[:, 0] == 0, keys[:, 1], np.where(keys[:, 0] == 2, -keys[:, 1], 0.0))
+        at = np.where(keys[:, 0] == 1, pl.length, at)
+        grid = np.arange(0.0, pl.length + 1e-9, FINE_STATION_M)
+        near = (np.abs(grid[:, None] - at[hit][None, :]) <= step).any(axis=1)
+        near |= (grid <= FINE_END_M) | (grid >= pl.length - FINE_END_M)
+        new = grid[near & (np.abs(grid[:, None] - coarse[None, :]) > 1e-6).all(axis=1)]
+        if len(new):
+            o2, d2, k2 = _side_rays(pl, new)
+            fine = _boundaries(ev, o2, d2, heights, **kw)
+            origins, dirs, keys = (
+                np.vstack([origins, o2]),
+                np.vstack([dirs, d2]),
+                np.vstack([keys, k2]),
+            )
+            lines = _merge(lines, fine)
     order = np.lexsort((keys[:, 1], keys[:, 0]))
     origins, dirs = origins[order], dirs[order]
     lines = replace(
