@@ -9,7 +9,7 @@ resonance at the recommended height (usually 1–2 calls, warm-started) and one 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
@@ -66,6 +66,9 @@ class Warm:
     """Resonances found so far, to warm-start the next search: frequency -> (leg, sensitivity)."""
 
     by_frequency: dict[float, tuple[float, float]]
+    jacket_ratio: dict[float, float | None] = field(
+        default_factory=dict
+    )  # jacketed/bare leg, per channel
 
     def guess(self, f: float) -> tuple[float, float | None]:
         if f in self.by_frequency:
@@ -259,10 +262,15 @@ def finish(sc: Screened, *, kit: Kit, engine: EngineCounter, warm: Warm) -> dict
     curve = swr_curve(res, engine=engine, wire=kit.wire, ground=kit.ground)
     bare_leg = None
     if kit.wire.insulation_thickness_m > 0:
-        try:
-            bare_leg = bare_wire_leg_m(res, engine=engine, wire=kit.wire, ground=kit.ground)
-        except ResonanceError:
-            bare_leg = None
+        # the jacket's share of the length hardly depends on the hang: one bare-wire solve per channel
+        if f not in warm.jacket_ratio:
+            try:
+                bare = bare_wire_leg_m(res, engine=engine, wire=kit.wire, ground=kit.ground)
+                warm.jacket_ratio[f] = res.leg_m / bare
+            except ResonanceError:
+                warm.jacket_ratio[f] = None
+        if warm.jacket_ratio[f]:
+            bare_leg = res.leg_m / warm.jacket_ratio[f]
     cut = cut_json(
         res,
         frequency_hz=f,
