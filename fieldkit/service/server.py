@@ -111,6 +111,12 @@ def serve(
         app.config["PUBLIC_URL"] = f"http://{address}:{port}/"
         url = access_url(app.config["PUBLIC_URL"], app.config["KEY"])
         print(f"fieldkit on the local network: {url}", file=out)
+        if address.startswith("127."):
+            print(
+                "No local network found: start the laptop's hotspot (or join a network) and "
+                "restart, or phones cannot reach this address.",
+                file=out,
+            )
         print("Phones on the same network: scan this code, or type the address.", file=out)
         print(qr_terminal(url), file=out)
     else:
