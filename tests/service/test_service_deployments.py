@@ -80,11 +80,22 @@ def test_created_deployment_has_the_plan_layers_checklist(client, demo_input):
     # unless the plan's own safety verdict forbids raising.
     required = [i["id"] for i in items if i["stage"] == "pre-raise" and i["required"]]
     assert required, "a real plan has pre-raise checks"
+    sent = []
     for n, item_id in enumerate(required, start=1):
-        put = client.put(f"/api/deployments/{new_id}/checks/{item_id}", json=ack())
+        sent.append(ack())
+        put = client.put(f"/api/deployments/{new_id}/checks/{item_id}", json=sent[-1])
         assert put.status_code == 200, put.json
         raise_ok = got["result"]["options"][0]["safety"]["raise_ok"]
         assert put.json["ready_to_raise"] is (raise_ok and n == len(required))
+    # The deployment is edited (re-planned, stable item ids); a phone then replays its queue:
+    # exactly one record per acknowledgement, the state unchanged.
+    edited = client.put(f"/api/deployments/{new_id}", json={**demo_input, "name": "renamed"})
+    assert edited.status_code == 200 and edited.json["revision"] == 2
+    for item_id, body in zip(required, sent, strict=True):
+        replay = client.put(f"/api/deployments/{new_id}/checks/{item_id}", json=body)
+        assert replay.json["replayed"] is True
+    after = client.get(f"/api/deployments/{new_id}/checks").json["items"]
+    assert sum(i["acknowledgements"] for i in after) == len(required)
 
 
 @pytest.mark.parametrize(
