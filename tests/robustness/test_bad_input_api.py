@@ -52,7 +52,7 @@ READS = [
     "/api/openapi.json",
 ]
 API_SETTINGS = settings(
-    max_examples=60,
+    max_examples=100,
     deadline=None,
     derandomize=True,
     suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow],

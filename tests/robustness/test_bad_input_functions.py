@@ -37,7 +37,7 @@ MODEL_FULL = {
     "near_field": {"points_m": [[0, 0, 1.8], [20, 0, 1.8]]},
 }
 FAST = settings(
-    max_examples=120, deadline=None, suppress_health_check=[HealthCheck.too_slow], derandomize=True
+    max_examples=200, deadline=None, suppress_health_check=[HealthCheck.too_slow], derandomize=True
 )
 TRIED: dict[str, int] = {}
 
@@ -76,7 +76,8 @@ def test_model_anything_at_all(value):
     assert isinstance(out, InputError)  # no random value is a whole valid spec
 
 
-@FAST
+@pytest.mark.slow
+@settings(max_examples=100, deadline=None, derandomize=True)
 @given(
     st.lists(
         st.fixed_dictionaries(
@@ -146,7 +147,7 @@ def test_model_negative_diameter_and_nan_coordinates_name_the_spot():
     assert holds(model_json, spec, "model").field == "wires[0].points_m[1][2]"
 
 
-@settings(max_examples=80, deadline=None, derandomize=True)
+@settings(max_examples=120, deadline=None, derandomize=True)
 @given(hs.mutated(SKY))
 def test_sky_mutations(spec):
     holds(sky_json, spec, "sky")
@@ -186,13 +187,13 @@ BAD_VALUES = st.one_of(
 
 
 @pytest.mark.slow
-@settings(max_examples=60, deadline=None, derandomize=True)
+@settings(max_examples=80, deadline=None, derandomize=True)
 @given(hs.mutated(SMALL_PLAN, values=BAD_VALUES))
 def test_plan_mutations(spec):
     holds(plan, spec, "plan")
 
 
-@settings(max_examples=30, deadline=None, derandomize=True)
+@settings(max_examples=60, deadline=None, derandomize=True)
 @given(hs.hostile)
 def test_plan_anything_at_all(value):
     assert isinstance(holds(plan, value, "plan"), InputError)
