@@ -101,14 +101,15 @@ def plan(spec: dict) -> dict:
         t1 = time.perf_counter()
         sky = _sky_fit(spec, inp)
         times["sky_s"] = time.perf_counter() - t1
-        # with a sky estimate: every layout on the channel that best fits the schedule, then only the
-        # best few layouts on the other channels (which layout wins hardly depends on the channel)
+        # every layout on the first channel (the one that best fits the schedule when the sky is
+        # given, else the lowest), then only the best few layouts on the other channels: which layout
+        # wins depends on the site and hardly on the channel
         order = sorted(channels, key=lambda f: (_channel_rank(sky, f), f))
         candidates = []
         swept: dict[int, list] = {}  # layout index -> screened channels of its full sweeps
         layout_order = list(range(len(layouts)))
         for n, f in enumerate(order):
-            use = layout_order if (sky is None or n == 0) else layout_order[:OTHER_CHANNEL_LAYOUTS]
+            use = layout_order if n == 0 else layout_order[:OTHER_CHANNEL_LAYOUTS]
             for i in use:
                 lay = layouts[i]
                 near = [

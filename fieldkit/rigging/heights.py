@@ -69,6 +69,7 @@ class HeightPoint:
     zenith_dbi: float
     efficiency: float
     resistance_ohm: float = float("nan")
+    reactance_ohm: float = float("nan")
 
 
 def sweep(

@@ -66,9 +66,17 @@ class Warm:
     """Resonances found so far, to warm-start the next search: frequency -> (leg, sensitivity)."""
 
     by_frequency: dict[float, tuple[float, float]]
-    jacket_ratio: dict[float, float | None] = field(
-        default_factory=dict
-    )  # jacketed/bare leg, per channel
+    jacket_ratio: dict[float, float | None] = field(default_factory=dict)  # jacketed/bare leg
+    reactance_slope: dict[float, float] = field(default_factory=dict)  # dX/df at resonance [Ω/Hz]
+
+    def slope(self, f: float) -> float | None:
+        """dX/df near resonance, from this channel or the nearest one (scaled as 1/f: Q ≈ const)."""
+        if f in self.reactance_slope:
+            return self.reactance_slope[f]
+        if not self.reactance_slope:
+            return None
+        g = min(self.reactance_slope, key=lambda k: abs(math.log(k / f)))
+        return self.reactance_slope[g] * g / f
 
     def guess(self, f: float) -> tuple[float, float | None]:
         if f in self.by_frequency:
@@ -85,9 +93,17 @@ def _points(hung: HungDipole) -> list[list[float]]:
 
 
 def _resonate_at(
-    layout: Layout, setting: dict[str, float], f: float, kit: Kit, engine, warm: Warm
+    layout: Layout,
+    setting: dict[str, float],
+    f: float,
+    kit: Kit,
+    engine,
+    warm: Warm,
+    leg_guess_m: float | None = None,
 ) -> Resonance:
     leg, sens = warm.guess(f)
+    if leg_guess_m is not None:
+        leg = leg_guess_m
     try:
         res = resonate(
             lambda L: layout.build(setting, L),
@@ -101,6 +117,7 @@ def _resonate_at(
     except (HangError, ResonanceError) as e:
         raise Refusal(str(e)) from None
     warm.by_frequency[f] = (res.leg_m, res.dfres_dleg_hz_per_m)
+    warm.reactance_slope[f] = res.dx_df_ohm_per_hz
     return res
 
 
@@ -197,6 +214,7 @@ def screen(
                 zenith_dbi=float(sol.zenith_gain_dbi),
                 efficiency=float(sol.radiation_efficiency),
                 resistance_ohm=float(sol.impedance_ohm.real),
+                reactance_ohm=float(sol.impedance_ohm.imag),
             )
         )
     if not points:
@@ -257,7 +275,17 @@ def finish(sc: Screened, *, kit: Kit, engine: EngineCounter, warm: Warm) -> dict
         sc.why,
     )
     spool = kit.wire.spool_m
-    res = _resonate_at(layout, chosen, f, kit, engine, warm)
+    # Newton step from the screening solve at the chosen heights (its X and the known slopes), so
+    # that the first engine call of the search usually lands within tolerance
+    guess = sc.leg_m
+    p = points[pick]
+    slope, (_, sens) = warm.slope(f), warm.guess(f)
+    if slope and sens and np.isfinite(p.reactance_ohm):
+        fr = f - p.reactance_ohm / slope
+        step = (f - fr) / sens
+        if abs(step) < 0.05 * guess:
+            guess = sc.leg_m + step
+    res = _resonate_at(layout, chosen, f, kit, engine, warm, leg_guess_m=guess)
     sol, hung = res.solution, res.hung
     curve = swr_curve(res, engine=engine, wire=kit.wire, ground=kit.ground)
     bare_leg = None
