@@ -211,3 +211,12 @@ def test_a_long_list_of_specs_is_refused_before_any_is_solved():
     assert isinstance(exc, InputError) and re.fullmatch(r"\[\d+\]\.frequency_mhz", exc.field)
     assert "limit" in exc.detail
     assert time.perf_counter() - start < 5.0
+
+
+def test_near_field_points_count_toward_the_work_limit():
+    """20 000 near-field points (allowed by count) on a dipole is ~20 s of work: refused by name."""
+    model = spec(near_field={"points_m": [[i * 0.002, 1.0, 1.8] for i in range(20_000)]})
+    start = time.perf_counter()
+    exc = finite_or_refused(model)
+    assert isinstance(exc, InputError) and exc.field == "near_field.points_m", exc
+    assert time.perf_counter() - start < 2.0
