@@ -3,6 +3,10 @@
 ``run()`` opens the window and returns when it is closed, after stopping the server and closing the
 database. Where there is no display or no usable GUI backend it says why, serves on
 http://127.0.0.1:8765/ instead and prints the address to open in a browser.
+
+Closing the window is the clean way out. Ctrl+C or SIGTERM end the window process at once (Qt's event
+loop does not return to Python for a handler); every committed write is already on disk (WAL with
+``synchronous=FULL``), and the log is replayed at the next start.
 """
 
 from __future__ import annotations
@@ -13,7 +17,7 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import Any, TextIO
 
-from fieldkit.service.server import LOOPBACK, serve, start_in_thread
+from fieldkit.service.server import LOOPBACK, PortUnavailable, serve, start_in_thread
 from fieldkit.store.db import checkpoint_and_close
 
 FALLBACK_PORT = 8765
@@ -114,7 +118,7 @@ def run(
     print("Serving instead; open the address below in a browser on this computer.", file=out)
     try:
         serve(host=LOOPBACK, port=FALLBACK_PORT, data_dir=data_dir, out=out)
-    except OSError as exc:  # the port is taken, e.g. by another fieldkit
-        print(f"Port {FALLBACK_PORT} is not free ({exc.strerror}); using a free port.", file=out)
+    except PortUnavailable:  # the port is taken, e.g. by another fieldkit
+        print(f"Port {FALLBACK_PORT} is not free; using a free port.", file=out)
         serve(host=LOOPBACK, port=0, data_dir=data_dir, out=out)
     return 0

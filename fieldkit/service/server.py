@@ -19,6 +19,7 @@ from flask import Flask
 from waitress import wasyncore
 from waitress.server import create_server
 
+from fieldkit.errors import InputError
 from fieldkit.service.app import create_app
 from fieldkit.service.lan import access_url, lan_address, qr_terminal
 from fieldkit.store.db import checkpoint_and_close
@@ -71,6 +72,18 @@ def _is_loopback(host: str) -> bool:
         return False
 
 
+class PortUnavailable(InputError):
+    """The address cannot be listened on (in use, or not this computer's); the CLI exits 2."""
+
+    def __init__(self, host: str, port: int, exc: OSError) -> None:
+        super().__init__(
+            "port",
+            f"cannot listen on {host}:{port} ({exc.strerror or exc}); another fieldkit or "
+            "program may be using it: choose another with --port",
+            value=port,
+        )
+
+
 def _stop(signum: int, _frame: object) -> None:
     raise KeyboardInterrupt(signal.Signals(signum).name)
 
@@ -104,7 +117,10 @@ def serve(
         lan = True
         print(f"{host} is not a loopback address: LAN mode with an access key is on.", file=out)
     app = create_app({"DATA_DIR": data_dir, "LAN": lan})
-    server = create_server(app, host=host, port=port, threads=THREADS, ident="fieldkit")
+    try:
+        server = create_server(app, host=host, port=port, threads=THREADS, ident="fieldkit")
+    except OSError as exc:
+        raise PortUnavailable(host, port, exc) from None
     port = server.effective_port
     if lan:
         address = lan_address() if host in ("0.0.0.0", "") else host

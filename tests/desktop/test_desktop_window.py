@@ -25,7 +25,7 @@ ROOT = Path(__file__).resolve().parents[2]
 pytestmark = [
     pytest.mark.desktop,
     pytest.mark.slow,
-    pytest.mark.skipif(shutil.which("xvfb-run") is None, reason="needs Debian's xvfb (xvfb-run)"),
+    pytest.mark.skipif(shutil.which("Xvfb") is None, reason="needs Debian's xvfb"),
 ]
 
 REPORT = textwrap.dedent(
@@ -46,17 +46,39 @@ REPORT = textwrap.dedent(
 )
 
 
-def run_under_xvfb(script: str, *args: str, timeout: float = 120) -> subprocess.CompletedProcess:
+@pytest.fixture(scope="module")
+def display():
+    """A private Xvfb; ``-displayfd`` lets the server pick a free display (no race with others)."""
+    read_fd, write_fd = os.pipe()
+    server = subprocess.Popen(
+        ["Xvfb", "-displayfd", str(write_fd), "-screen", "0", "1280x800x24", "-nolisten", "tcp"],
+        pass_fds=(write_fd,),
+        stdout=subprocess.DEVNULL,
+        stderr=subprocess.DEVNULL,
+    )
+    os.close(write_fd)
+    with os.fdopen(read_fd) as pipe:
+        number = pipe.readline().strip()
+    assert number.isdigit(), "Xvfb did not start"
+    yield f":{number}"
+    server.terminate()
+    server.wait(timeout=10)
+
+
+def run_under_xvfb(
+    display: str, script: str, *args: str, timeout: float = 120
+) -> subprocess.CompletedProcess:
     env = {k: v for k, v in os.environ.items() if k not in ("DISPLAY", "WAYLAND_DISPLAY")}
     env.pop("QT_QPA_PLATFORM", None)
+    env["DISPLAY"] = display
     proc = subprocess.Popen(
-        ["xvfb-run", "-a", "-s", "-screen 0 1280x800x24", sys.executable, "-c", script, *args],
+        [sys.executable, "-c", script, *args],
         stdout=subprocess.PIPE,
         stderr=subprocess.PIPE,
         text=True,
         cwd=ROOT,
         env=env,
-        start_new_session=True,  # on a hang, end Xvfb and the window process together
+        start_new_session=True,  # on a hang, end the window process and its helpers together
     )
     try:
         out, err = proc.communicate(timeout=timeout)
@@ -73,7 +95,7 @@ def reported(proc: subprocess.CompletedProcess) -> dict:
     return json.loads(lines[0].removeprefix("REPORT "))
 
 
-def test_window_loads_a_page_and_reports_its_title(tmp_path):
+def test_window_loads_a_page_and_reports_its_title(display, tmp_path):
     web = tmp_path / "web"
     web.mkdir()
     (web / "index.html").write_text(
@@ -88,14 +110,14 @@ def test_window_loads_a_page_and_reports_its_title(tmp_path):
         sys.exit(open_window(app, on_loaded=report))
         """
     )
-    proc = run_under_xvfb(script, str(tmp_path / "data"), str(web))
+    proc = run_under_xvfb(display, script, str(tmp_path / "data"), str(web))
     assert proc.returncode == 0, proc.stderr[-3000:]
     got = reported(proc)
     assert got["title"] == "fieldkit window probe"
     assert json.loads(got["health"])["ok"] is True
 
 
-def test_run_opens_the_app_in_a_window_and_stops_when_it_closes(tmp_path):
+def test_run_opens_the_app_in_a_window_and_stops_when_it_closes(display, tmp_path):
     index = (ROOT / "web" / "index.html").read_text(encoding="utf-8")
     expected = re.search(r"<title>([^<]*)</title>", index).group(1)
     script = REPORT + textwrap.dedent(
@@ -104,7 +126,7 @@ def test_run_opens_the_app_in_a_window_and_stops_when_it_closes(tmp_path):
         sys.exit(run(data_dir=sys.argv[1], on_loaded=report))
         """
     )
-    proc = run_under_xvfb(script, str(tmp_path / "data"))
+    proc = run_under_xvfb(display, script, str(tmp_path / "data"))
     assert proc.returncode == 0, proc.stderr[-3000:]
     assert reported(proc)["title"] == expected
     url = re.search(r"fieldkit window on (http://127\.0\.0\.1:\d+/)", proc.stdout).group(1)

@@ -155,3 +155,19 @@ def test_non_loopback_host_turns_lan_mode_on(tmp_path):
     finally:
         proc.kill()
     assert proc.returncode == 0
+
+
+def test_serve_on_a_busy_port_is_a_clear_input_error(tmp_path):
+    import socket
+
+    from fieldkit.errors import InputError
+    from fieldkit.service import serve
+
+    with socket.socket() as taken:
+        taken.bind(("127.0.0.1", 0))
+        taken.listen()
+        port = taken.getsockname()[1]
+        with open(os.devnull, "w") as quiet, pytest.raises(InputError) as caught:
+            serve(host="127.0.0.1", port=port, data_dir=tmp_path / "data", out=quiet)
+    assert caught.value.field == "port"
+    assert "--port" in caught.value.detail
