@@ -284,7 +284,7 @@ def test_no_key_in_any_log_over_waitress(tmp_path):
         with socket.create_connection(("127.0.0.1", port), timeout=10) as sock:
             sock.sendall(
                 (
-                    f"PUT /api/kit HTTP/1.1\r\nHost: x\r\n{KEY_HEADER}: {key}\r\n"
+                    f"PUT /api/kit HTTP/1.1\r\nHost: 127.0.0.1\r\n{KEY_HEADER}: {key}\r\n"
                     "Content-Type: application/json\r\nContent-Length: 9\r\n"
                     "Connection: close\r\n\r\n{not json"
                 ).encode()
@@ -296,7 +296,7 @@ def test_no_key_in_any_log_over_waitress(tmp_path):
         with socket.create_connection(("127.0.0.1", port), timeout=10) as sock:
             sock.sendall(
                 (
-                    f"POST /api/lan/key HTTP/1.1\r\nHost: x\r\nCookie: {KEY_COOKIE}={key}\r\n"
+                    f"POST /api/lan/key HTTP/1.1\r\nHost: 127.0.0.1\r\nCookie: {KEY_COOKIE}={key}\r\n"
                     "Content-Type: application/json\r\nContent-Length: 2\r\n"
                     "Connection: close\r\n\r\n{}"
                 ).encode()
