@@ -133,4 +133,7 @@ def open_app(chromium, service):
 
 def shot(page, name: str) -> None:
     ARTIFACTS.mkdir(exist_ok=True)
+    page.evaluate(
+        "window.scrollTo(0, 0)"
+    )  # the sticky header belongs at the top of a full-page shot
     page.screenshot(path=str(ARTIFACTS / f"{name}.png"), full_page=True)

@@ -14,8 +14,8 @@ import secrets
 import time
 
 import pytest
-from conftest import ARTIFACTS, PLAN_TIMEOUT_MS, Service, shot
 
+from e2e.conftest import ARTIFACTS, PLAN_TIMEOUT_MS, Service, shot
 from fieldkit.service.lan import lan_address
 
 pytestmark = [pytest.mark.browser, pytest.mark.slow]
@@ -52,10 +52,17 @@ def metres(text: str) -> float:
 
 
 def wait_plan(page) -> None:
-    page.wait_for_function(
-        "() => /^Plan:/.test(document.querySelector('[data-testid=plan-status]')?.textContent || '')",
+    """Until the plan is shown; fails at once with the app's message when the service refuses or breaks."""
+    outcome = page.wait_for_function(
+        """() => {
+          const status = document.querySelector('[data-testid=plan-status]')?.textContent || '';
+          if (/^Plan:/.test(status)) return 'ok';
+          const banner = document.querySelector('[data-testid=banner]');
+          return banner && !banner.hidden ? 'banner: ' + banner.textContent : null;
+        }""",
         timeout=PLAN_TIMEOUT_MS,
-    )
+    ).json_value()
+    assert outcome == "ok", outcome
 
 
 def walk_sections(page, kind: str, *, touch: bool) -> None:
@@ -196,6 +203,9 @@ def test_phone_newcomer_walk(open_app, service):
     assert sketch.locator("line.power-line").count() == 1
 
     page.get_by_test_id("save-plan").tap()
+    # planning takes seconds: the progress bar must show (anything over 0.25 s)
+    page.get_by_test_id("busy").wait_for(state="visible")
+    assert "planning" in page.get_by_test_id("busy").inner_text()
     wait_plan(page)
     status = page.get_by_test_id("plan-status").inner_text()
     assert "T3" not in status.split("rope heights")[0], "the unsafe snag must not be used"
@@ -412,3 +422,20 @@ def test_bad_entry_shows_the_error_at_the_field(open_app, service, testid, typed
         assert "Fix the marked fields" in page.get_by_test_id("add-error").inner_text()
     field.fill("12 m" if "height" in testid else "7.055" if testid == "channels" else "90")
     error.wait_for(state="hidden")
+
+
+def test_service_refusal_shows_at_the_field(open_app, service):
+    """A rule only the service knows (a name of at most 200 characters) comes back at its field."""
+    page = open_app("phone", "#site")
+    page.get_by_test_id("place").locator("summary").tap()
+    name = page.locator("[data-field='name']")
+    name.fill("Larch " * 40)  # 240 characters
+    page.get_by_test_id("save-plan").tap()
+    error = name.locator("xpath=..").locator(".field-error")
+    error.wait_for()
+    assert "at most 200 characters" in error.inner_text()
+    assert name.get_attribute("aria-invalid") == "true"
+    assert "name" in page.get_by_test_id("banner").inner_text()
+    assert (
+        service.get("/api/deployments")["deployments"][0]["name"] == "Larch Basin relay camp (demo)"
+    )

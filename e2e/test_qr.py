@@ -19,6 +19,7 @@ import pytest
 import segno
 import segno.consts
 import segno.encoder
+
 from e2e.conftest import Service
 
 pytestmark = pytest.mark.browser

@@ -357,13 +357,21 @@ async function saveAndPlan() {
   app.refresh();
 }
 
-/** Show an API error at the input it names (data-field), else in the banner. */
+/** Show an API error at the input it names (data-field, or the nearest enclosing name), else in the banner. */
 function reportFieldError(e) {
   if (e instanceof ApiError && e.field) {
-    const input = document.querySelector(`[data-field="${CSS.escape(e.field)}"]`);
-    if (input) {
-      site.showFieldError(input, e.detail);
-      return;
+    let name = e.field;
+    while (name) {
+      const input = document.querySelector(`[data-field="${CSS.escape(name)}"]`);
+      if (input) {
+        site.showFieldError(input, name === e.field ? e.detail : `${e.field}: ${e.detail}`);
+        input.closest("details")?.setAttribute("open", "");
+        input.scrollIntoView({ block: "center" });
+        showBanner(`The service refused ${e.field}: ${e.detail}`);
+        return;
+      }
+      const cut = name.search(/(\[\d+\]|\.[^.[\]]+)$/);
+      name = cut > 0 ? name.slice(0, cut) : "";
     }
   }
   showBanner(e.message);
