@@ -30,6 +30,15 @@ log = logging.getLogger("fieldkit.service")
 # six keep reads and checklist writes from phones flowing while two plans run.
 THREADS = 6
 LOOPBACK = "127.0.0.1"
+# waitress buffers a request body (to disk past a point) before the app sees it: without a bound a
+# stranger on the hotspot could fill the disk before the key check. Above Flask's 1 MiB limit, so
+# that the app's own 413 JSON answers ordinary oversized bodies [bytes].
+MAX_REQUEST_BODY_BYTES = 4 * 1024 * 1024
+WAITRESS_OPTIONS = {
+    "threads": THREADS,
+    "ident": "fieldkit",
+    "max_request_body_size": MAX_REQUEST_BODY_BYTES,
+}
 
 
 @dataclass
@@ -57,7 +66,8 @@ def start_in_thread(
     app: Flask, *, host: str = LOOPBACK, port: int = 0, threads: int = THREADS
 ) -> RunningServer:
     """Start waitress for ``app`` on ``host:port`` (0: a free port) in a daemon thread."""
-    server = create_server(app, host=host, port=port, threads=threads, ident="fieldkit")
+    options = {**WAITRESS_OPTIONS, "threads": threads}
+    server = create_server(app, host=host, port=port, **options)
     thread = threading.Thread(target=server.run, name="fieldkit-waitress", daemon=True)
     thread.start()
     return RunningServer(server=server, thread=thread, host=host, port=server.effective_port)
@@ -118,7 +128,7 @@ def serve(
         print(f"{host} is not a loopback address: LAN mode with an access key is on.", file=out)
     app = create_app({"DATA_DIR": data_dir, "LAN": lan})
     try:
-        server = create_server(app, host=host, port=port, threads=THREADS, ident="fieldkit")
+        server = create_server(app, host=host, port=port, **WAITRESS_OPTIONS)
     except OSError as exc:
         raise PortUnavailable(host, port, exc) from None
     port = server.effective_port

@@ -123,3 +123,37 @@ def test_no_path_outside_web_through_real_waitress(site, tmp_path):
         assert raw_get(running.port, "/sw.js").startswith(b"HTTP/1.1 200")
     finally:
         running.stop()
+
+
+def send_chunked(port: int, body: bytes) -> bytes:
+    """PUT a chunked body; the reply, or b"reset" when the server cut the connection."""
+    chunked = f"{len(body):x}\r\n".encode() + body + b"\r\n0\r\n\r\n"
+    reply = b""
+    try:
+        with socket.create_connection(("127.0.0.1", port), timeout=30) as conn:
+            conn.sendall(
+                b"PUT /api/kit HTTP/1.1\r\nHost: 127.0.0.1\r\nContent-Type: application/json\r\n"
+                b"Transfer-Encoding: chunked\r\nConnection: close\r\n\r\n" + chunked
+            )
+            while chunk := conn.recv(65536):
+                reply += chunk
+    except (ConnectionResetError, BrokenPipeError):
+        return reply or b"reset"
+    return reply
+
+
+def test_oversized_bodies_stop_at_the_server(site):
+    # Chunked bodies have no Content-Length to refuse early: Flask's limit (1 MiB) answers 413 JSON,
+    # and waitress refuses anything past its own bound (4 MiB) before buffering it.
+    app, _ = site
+    running = start_in_thread(app)
+    try:
+        reply = send_chunked(running.port, b'{"note": "' + b"x" * (2 * 1024 * 1024) + b'"}')
+        assert reply.split(b" ", 2)[1] == b"413", reply[:200]
+        assert b'"error":"request too large"' in reply
+        reply = send_chunked(running.port, b'{"note": "' + b"x" * (6 * 1024 * 1024) + b'"}')
+        assert reply == b"reset" or reply.split(b" ", 2)[1] == b"413", reply[:200]
+        # The server is still there for the next request.
+        assert raw_get(running.port, "/sw.js").startswith(b"HTTP/1.1 200")
+    finally:
+        running.stop()
