@@ -187,7 +187,7 @@ CURVE_OFFSETS = (
 
 
 def swr_curve(res: Resonance, *, engine: EngineCounter, wire: KitWire, ground) -> dict[str, Any]:
-    """SWR from −3.5 % to +3.5 % around the channel at the cut length, and the 2:1 bandwidth [kHz]."""
+    """SWR from −3 % to +3 % around the channel at the cut length, and the 2:1 bandwidth [kHz]."""
     f0 = res.solution.frequency_hz
     span_fraction = max(abs(o) for o in CURVE_OFFSETS)
     new = engine.solve(

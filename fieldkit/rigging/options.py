@@ -290,15 +290,17 @@ def finish(sc: Screened, *, kit: Kit, engine: EngineCounter, warm: Warm) -> dict
     curve = swr_curve(res, engine=engine, wire=kit.wire, ground=kit.ground)
     bare_leg = None
     if kit.wire.insulation_thickness_m > 0:
-        # the jacket's share of the length hardly depends on the hang: one bare-wire solve per channel
-        if f not in warm.jacket_ratio:
+        # the jacket's share of the length hardly depends on the hang or the channel (it goes with
+        # ln(b/a) against ln(wavelength/a)): one bare-wire solve, on the first option worked out
+        if not warm.jacket_ratio:
             try:
                 bare = bare_wire_leg_m(res, engine=engine, wire=kit.wire, ground=kit.ground)
                 warm.jacket_ratio[f] = res.leg_m / bare
             except ResonanceError:
                 warm.jacket_ratio[f] = None
-        if warm.jacket_ratio[f]:
-            bare_leg = res.leg_m / warm.jacket_ratio[f]
+        ratio = next(iter(warm.jacket_ratio.values()))
+        if ratio:
+            bare_leg = res.leg_m / ratio
     cut = cut_json(
         res,
         frequency_hz=f,
