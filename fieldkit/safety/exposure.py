@@ -16,8 +16,8 @@ Sampling (a coarse grid refined at the boundary): rays in the ground plane leave
 view — at right angles on both sides from stations along the wire, and in a fan round each end. Each
 ray is screened at its foot (under the wire) and one step out; rays over the limit, or near it and
 rising outward, are sampled every 0.5 m and their last crossing refined with 6 more samples and
-log-linear interpolation. Where a zone is found (or the field under the wire comes near the limit) the
-stations are made 4 × finer there. The ray ends, walked once around the wire, form the outline polygon
+log-linear interpolation. Stations are 3 m apart, and 0.5 m apart within 1.5 m of each end and
+wherever a zone is found or the field under the wire comes near the limit. The ray ends, walked once around the wire, form the outline polygon
 directly. Every pass sends all its points to the engine in one vectorised call. Points closer than
 0.1 m to the wire are "touching": thin-wire fields mean nothing there, and they count as inside.
 
