@@ -439,3 +439,40 @@ def test_service_refusal_shows_at_the_field(open_app, service):
     assert (
         service.get("/api/deployments")["deployments"][0]["name"] == "Larch Basin relay camp (demo)"
     )
+
+
+def test_kit_entered_in_the_app_becomes_the_operators_kit(open_app, service):
+    """A first deployment on a laptop with no stored kit: the newcomer types the kit and stores it."""
+    assert service.get("/api/kit")["kit"] == {}
+    page = open_app("laptop")
+    page.get_by_test_id("deployment-select").select_option("__new")
+    page.get_by_test_id("new-name").fill("Kit check")
+    page.get_by_test_id("new-submit").click()
+    kit = page.get_by_test_id("kit")
+    kit.wait_for()
+    assert kit.get_attribute("open") is not None, "an empty kit opens for entry"
+    for name, value in (
+        ("Wire diameter (mm)", "1.6"),
+        ("Jacket thickness (mm, 0 = bare)", "0.7"),
+        ("Coax length (m)", "82 ft"),
+        ("Balun or centre insulator (kg)", "0.35"),
+        ("Rope (m)", "60"),
+        ("Pull on the wire (N)", "60"),
+    ):
+        kit.get_by_label(name, exact=True).fill(value)
+    page.get_by_test_id("kit-mast-id").fill("M1")
+    page.get_by_test_id("kit-mast-height").fill("9 m")
+    kit.get_by_role("button", name="Add mast").click()
+    page.get_by_test_id("mast-M1").wait_for()
+    page.get_by_test_id("kit-store").click()
+    page.get_by_test_id("kit-stored").filter(has_text="Stored").wait_for()
+    stored = service.get("/api/kit")["kit"]
+    assert stored["wire"] == {
+        "conductor": "copper",
+        "diameter_mm": 1.6,
+        "insulation": {"thickness_mm": 0.7, "relative_permittivity": 3.5},
+    }
+    assert stored["coax"] == {"class": "rg-58", "length_m": 24.99}  # 82 ft = 24.99 m
+    assert stored["rope"]["length_m"] == 60
+    assert stored["masts"][0]["id"] == "M1" and stored["masts"][0]["height_m"] == 9
+    shot(page, "laptop-kit")

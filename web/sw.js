@@ -30,6 +30,7 @@ const SHELL = [
   "js/store.js",
   "js/units.js",
   "js/wire.js",
+  "js/kit.js",
 ];
 const NETWORK_TIMEOUT_MS = 4000;
 

@@ -256,10 +256,7 @@ async function createDeployment(name, kitFrom = "__service") {
     showBanner(`Could not read the kit: ${e.message}`);
     return;
   }
-  if (!kit.wire) {
-    showBanner("That kit lists no wire: the plan needs the wire (and rope, coax). Choose another kit, or store the operator's kit on the laptop first.");
-    return;
-  }
+  if (!kit.wire) showBanner("That kit lists no wire yet: fill in the Kit at the end of Site before planning.", "warn");
   const today = new Date().toISOString().slice(0, 10);
   const dep = {
     name,
@@ -372,6 +369,15 @@ function reportFieldError(e) {
       }
       const cut = name.search(/(\[\d+\]|\.[^.[\]]+)$/);
       name = cut > 0 ? name.slice(0, cut) : "";
+    }
+    // A field that is missing altogether ("kit.wire"): show it at the first input inside it.
+    const inner = document.querySelector(`[data-field^="${CSS.escape(e.field)}."], [data-field^="${CSS.escape(e.field)}["]`);
+    if (inner) {
+      site.showFieldError(inner, `${e.field}: ${e.detail}`);
+      inner.closest("details")?.setAttribute("open", "");
+      inner.scrollIntoView({ block: "center" });
+      showBanner(`The service refused ${e.field}: ${e.detail}`);
+      return;
     }
   }
   showBanner(e.message);

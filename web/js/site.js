@@ -2,6 +2,7 @@
 
 import { clear, h } from "./dom.js";
 import { coordField, field, lengthField, numberField, selectField, showFieldError } from "./fields.js";
+import { kitEditor } from "./kit.js";
 import { siteSketch } from "./sketch.js";
 import { EntryError, formatLength } from "./units.js";
 
@@ -64,6 +65,7 @@ export function render(app, panel) {
   panel.append(helpers(app));
   panel.append(powerLines(app));
   panel.append(placeForm(app));
+  panel.append(kitEditor(app));
 }
 
 function supportCard(app, sp, i) {
@@ -269,7 +271,8 @@ function powerLines(app) {
 function placeForm(app) {
   const st = app.state;
   const dep = st.dep;
-  const box = h("details", { class: "card", "data-testid": "place", open: (dep.site.supports ?? []).length === 0 });
+  const box = h("details", { class: "card", "data-testid": "place", open: (dep.site.supports ?? []).length === 0 || st.placeOpen === true });
+  box.addEventListener("toggle", () => (st.placeOpen = box.open));
   box.append(h("summary", { text: "Place, ground, channels and schedule" }));
   const sky = dep.sky ?? (dep.sky = { site: {}, date: new Date().toISOString().slice(0, 10), solar: { f107: 120 } });
   const grid = h("div", { class: "grid-form" });
