@@ -193,9 +193,11 @@ def hang_between(
 
     def residual(x: np.ndarray) -> np.ndarray:
         h, v0, free = t * np.exp(x[0]), t * x[1], span_m * x[2]
-        u, z, v1 = _end_point(pieces_of(free), h, v0)
-        tmax = max(np.hypot(h, v0), np.hypot(h, v1))
-        return np.array([(u - span_m) / span_m, (z - rise_m) / span_m, tmax / t - 1.0])
+        with np.errstate(all="ignore"):  # the solver may probe absurd tensions on the way
+            u, z, v1 = _end_point(pieces_of(free), h, v0)
+            tmax = max(np.hypot(h, v0), np.hypot(h, v1))
+            out = np.array([(u - span_m) / span_m, (z - rise_m) / span_m, tmax / t - 1.0])
+        return np.where(np.isfinite(out), out, 1e6)
 
     best = None
     for guess_h in (0.97, 0.8, 0.5):

@@ -125,35 +125,54 @@ def hang_span(
 
     notes: list[str] = []
     tail = 0.0
-    try:
-        if span - 2 * leg_m < 0.02 * span:
-            raise HangError("short span")
-        shape, rope = hang_between(
-            with_ropes,
-            span_m=span,
-            rise_m=rise,
-            end_tension_n=tension_n,
-            free_guess=(span - 2 * leg_m) / 2,
+    weight = 2 * leg_m * ww + feed_load_n
+    if 2 * tension_n <= weight:  # the two end pulls cannot even carry the weight straight up
+        raise HangError(
+            f"a {tension_n:g} N pull cannot hold up {2 * leg_m:.0f} m of wire and the feedpoint "
+            f"({weight:.0f} N together): pull harder or lighten the feedpoint"
         )
-        if rope < 0:
-            raise HangError("short span")
-        wire_first, feed_idx, wire_last = (
-            shape.piece_bounds[1][0],
-            shape.piece_bounds[1][1],
-            shape.piece_bounds[2][1],
-        )
-    except HangError:
+    shape = None
+    if span > 2 * leg_m:
+        try:
+            shape, rope = hang_between(
+                with_ropes,
+                span_m=span,
+                rise_m=rise,
+                end_tension_n=tension_n,
+                free_guess=max((span - 2 * leg_m) / 2, 0.01 * span),
+            )
+        except HangError:
+            shape = None
+        if shape is not None and rope >= 0:
+            wire_first, feed_idx, wire_last = (
+                shape.piece_bounds[1][0],
+                shape.piece_bounds[1][1],
+                shape.piece_bounds[2][1],
+            )
+        else:
+            shape = None
+    if shape is None:
         # short span: insulators at the supports, the rest of each leg droops toward a stake
         def no_ropes(half: float) -> tuple[Piece, ...]:
             return (Piece(half, ww, True, feed_load_n), Piece(half, ww, True))
 
-        shape, half = hang_between(
-            no_ropes, span_m=span, rise_m=rise, end_tension_n=tension_n, free_guess=span / 2
-        )
+        try:
+            shape, half = hang_between(
+                no_ropes, span_m=span, rise_m=rise, end_tension_n=tension_n, free_guess=span / 2
+            )
+        except HangError:
+            raise HangError(
+                f"{2 * leg_m:.0f} m of wire will not hang between supports {span:.0f} m apart at a "
+                f"{tension_n:g} N pull"
+            ) from None
         rope = 0.0
         tail = leg_m - half
-        if tail < 0:
-            raise HangError("inconsistent short-span hang") from None
+        if tail < -1e-6:
+            raise HangError(
+                f"{2 * leg_m:.0f} m of wire will not hang between supports {span:.0f} m apart at a "
+                f"{tension_n:g} N pull"
+            )
+        tail = max(tail, 0.0)
         wire_first, feed_idx, wire_last = 0, shape.piece_bounds[0][1], shape.piece_bounds[1][1]
     pts = _plane_to_site(shape, wire_first, wire_last, a, axis, a_height_m)
     if tail > 0:

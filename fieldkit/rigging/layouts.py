@@ -25,6 +25,14 @@ HEIGHT_STEP_M = (
 MAX_SETTINGS = 5  # heights per sweep: the figure of merit is smooth in height (checked in tests)
 SLOPING_MIN_DIFFERENCE_M = 1.5  # below this a "sloping" hang is just a flat one
 INVERTED_V_MIN_DROP_M = 2.0  # ends at least this far below the apex to make it a V
+# Legs no steeper than 45° below horizontal (apex angle 90° or more): steeper legs cancel each other's
+# radiation straight up (common practice). Short legs from a high apex end higher than asked.
+INVERTED_V_MAX_LEG_SLOPE_DEG = 45.0
+
+
+def _end_height(asked_m: float, apex_m: float, leg_m: float) -> float:
+    """End height for an inverted-V: as asked, or higher when the legs would hang too steep [m]."""
+    return max(asked_m, apex_m - leg_m * math.sin(math.radians(INVERTED_V_MAX_LEG_SLOPE_DEG)))
 
 
 @dataclass(frozen=True)
@@ -229,7 +237,7 @@ def inverted_v_layouts(
         def build(
             setting: dict[str, float], leg_m: float, mast: Mast = mast, apex: float = apex
         ) -> HungDipole:
-            end = setting["ends"]
+            end = _end_height(setting["ends"], apex, leg_m)
             tension, local = mast_tension_n(mast, apex_m=apex, end_m=end, leg_m=leg_m, mech=mech)
             hung = hang_inverted_v(
                 centre_xy=site_xy,
@@ -280,7 +288,7 @@ def _branch_apex_layouts(
             centre_xy=(tree.x_m, tree.y_m),
             axis_xy=axis,
             apex_height_m=apex,
-            end_height_m=setting["ends"],
+            end_height_m=_end_height(setting["ends"], apex, leg_m),
             leg_m=leg_m,
             wire_weight_n_per_m=mech.wire_weight_n_per_m,
             feed_load_n=mech.feed_load_n(apex),

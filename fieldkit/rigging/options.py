@@ -186,6 +186,7 @@ def screen(
             raise Refusal(_short_span_words(layout, f, warm) or last)
     leg = warm.guess(f)[0]
     points: list[HeightPoint] = []
+    seen_shapes: set[tuple[float, ...]] = set()
     last = "cannot hang"
     # from the top down; stop once the figure falls, and is already more than 0.3 dB below the best:
     # between 0.03 and 0.3 wavelength the NVIS figure has one peak in height, so nothing lower can
@@ -203,6 +204,10 @@ def screen(
         except HangError as e:
             last = str(e)
             continue
+        shape_key = (round(hung.feedpoint_height_m, 2), *(round(h, 2) for h in hung.end_heights_m))
+        if shape_key in seen_shapes:  # two settings that hang the same way (e.g. ends clamped)
+            continue
+        seen_shapes.add(shape_key)
         sol = (
             seeded.get(i) or engine.solve(hung, kit.wire, frequencies_hz=[f], ground=kit.ground)[0]
         )
