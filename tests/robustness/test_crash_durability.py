@@ -19,7 +19,13 @@ import uuid
 
 import pytest
 
-from tests.robustness.helpers import CHECKLIST, ServerProcess, request_json, seed_data_dir
+from tests.robustness.helpers import (
+    CHECKLIST,
+    ServerProcess,
+    checklist_export,
+    request_json,
+    seed_data_dir,
+)
 
 ROUNDS = 6  # kills per run (seeded); odd rounds one phone, even rounds three at once
 SEED = 20261202
@@ -143,3 +149,71 @@ def test_sigkill_loses_no_confirmed_acknowledgement(tmp_path):
     total = sum(r["confirmed"] for r in rounds)
     print(f"\nSIGKILL rounds: {ROUNDS}, confirmed acknowledgements: {total}, lost: 0, {rounds}")
     assert total >= ROUNDS
+
+
+def _big_import(n: int) -> dict:
+    doc = checklist_export("big-import")
+    doc["acknowledgements"] = [
+        {
+            "client_id": str(uuid.uuid4()),
+            "item_id": ITEMS[i % len(ITEMS)],
+            "done": True,
+            "by": "AB",
+            "at": f"2026-12-01T14:{i // 60 % 60:02d}:{i % 60:02d}Z",
+            "received_at": "2026-12-01T15:00:00.000000Z",
+        }
+        for i in range(n)
+    ]
+    return doc
+
+
+@pytest.mark.slow
+def test_sigkill_during_a_large_import_is_all_or_nothing(tmp_path):
+    """An import (one transaction, SQLite docs "Atomic Commit") killed mid-way: all of it or none."""
+    rng = random.Random(SEED + 1)
+    doc = _big_import(5000)
+    body = json.dumps(doc)
+    outcomes = []
+    for round_no in range(5):
+        data_dir = tmp_path / f"import-{round_no}"
+        seed_data_dir(data_dir)
+        server = ServerProcess(data_dir).start()
+
+        def send(port=server.port):
+            conn = http.client.HTTPConnection("127.0.0.1", port, timeout=30)
+            try:
+                conn.request(
+                    "POST",
+                    "/api/deployments/import",
+                    body=body,
+                    headers={"Content-Type": "application/json"},
+                )
+                conn.getresponse().read()
+            except (ConnectionError, http.client.HTTPException, OSError):
+                pass
+            finally:
+                conn.close()
+
+        sender = threading.Thread(target=send, daemon=True)
+        sender.start()
+        time.sleep(rng.uniform(0.05, 1.5))  # from mid-upload to after the commit
+        server.kill()
+        sender.join(15)
+        with sqlite3.connect(data_dir / "fieldkit.sqlite3") as db:
+            count = db.execute(
+                "SELECT COUNT(*) FROM acknowledgements WHERE deployment_id = 'big-import'"
+            ).fetchone()[0]
+            present = db.execute(
+                "SELECT COUNT(*) FROM deployments WHERE id = 'big-import'"
+            ).fetchone()[0]
+            assert db.execute("PRAGMA integrity_check").fetchall() == [("ok",)]
+        assert (present, count) in ((0, 0), (1, 5000)), (present, count)
+        outcomes.append(present)
+        with ServerProcess(data_dir) as again:  # the laptop imports the file again: a replay
+            status, answer = request_json(
+                again.url("/api/deployments/import"), method="POST", body=doc, timeout=30
+            )
+            assert status == (200 if present else 201), answer
+            status, checks = request_json(again.url("/api/deployments/big-import/checks"))
+            assert status == 200 and sum(i["acknowledgements"] for i in checks["items"]) == 5000
+    print(f"\nimport kills: {len(outcomes)}, committed before the kill: {sum(outcomes)}")
