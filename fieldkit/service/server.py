@@ -9,6 +9,7 @@ from __future__ import annotations
 import ipaddress
 import logging
 import signal
+import socket
 import sys
 import threading
 from dataclasses import dataclass
@@ -94,6 +95,23 @@ class PortUnavailable(InputError):
         )
 
 
+def _check_port(host: str, port: int) -> None:
+    """Refuse a port another program listens on, the way waitress would bind it (SO_REUSEADDR)."""
+    if port == 0:
+        return
+    try:
+        infos = socket.getaddrinfo(host, port, type=socket.SOCK_STREAM)
+    except OSError as exc:
+        raise PortUnavailable(host, port, exc) from None
+    family, kind, proto, _name, address = infos[0]
+    with socket.socket(family, kind, proto) as probe:
+        probe.setsockopt(socket.SOL_SOCKET, socket.SO_REUSEADDR, 1)
+        try:
+            probe.bind(address)
+        except OSError as exc:
+            raise PortUnavailable(host, port, exc) from None
+
+
 def _stop(signum: int, _frame: object) -> None:
     raise KeyboardInterrupt(signal.Signals(signum).name)
 
@@ -126,6 +144,7 @@ def serve(
     if not lan and not _is_loopback(host):
         lan = True
         print(f"{host} is not a loopback address: LAN mode with an access key is on.", file=out)
+    _check_port(host, port)  # before the app exists: a busy port starts nothing
     app = create_app({"DATA_DIR": data_dir, "LAN": lan})
     try:
         server = create_server(app, host=host, port=port, **WAITRESS_OPTIONS)

@@ -9,11 +9,12 @@ import json
 from pathlib import Path
 
 import pytest
-from service_fixtures import export_doc
 
 from fieldkit import paths
 from fieldkit.service import create_app
 from fieldkit.service.plancache import PlanCache
+
+from .service_fixtures import export_doc
 
 
 @pytest.fixture(scope="session")

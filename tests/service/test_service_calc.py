@@ -5,9 +5,10 @@ from __future__ import annotations
 import json
 
 import pytest
-from service_fixtures import layer_state
 
 from fieldkit import paths
+
+from .service_fixtures import layer_state
 
 DEMO = paths.assets_dir() / "demo"
 ENDPOINTS = {

@@ -17,7 +17,8 @@ import uuid
 from pathlib import Path
 
 import pytest
-from service_fixtures import export_doc
+
+from .service_fixtures import export_doc
 
 ROOT = Path(__file__).resolve().parents[2]
 SERVER = """

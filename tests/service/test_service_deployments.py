@@ -7,7 +7,8 @@ import io
 import uuid
 
 import pytest
-from service_fixtures import CHECKLIST, ack, export_doc, layer_state
+
+from .service_fixtures import CHECKLIST, ack, export_doc, layer_state
 
 PLAN_STATE = layer_state("fieldkit.plan", "plan")
 PLAN_LAYER = PLAN_STATE == "present"

@@ -15,10 +15,11 @@ import urllib.request
 from pathlib import Path
 
 import pytest
-from service_fixtures import ack, export_doc
 
 from fieldkit.service import create_app
 from fieldkit.service.server import start_in_thread
+
+from .service_fixtures import ack, export_doc
 
 ROOT = Path(__file__).resolve().parents[2]
 
