@@ -49,7 +49,14 @@ def instant_utc(value: Any, field: str) -> str:
         ) from None
     if moment.tzinfo is None or moment.utcoffset() is None:
         raise InputError(field, f"expected a time zone (Z or ±hh:mm) in {value!r}")
-    return moment.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%S.%fZ")
+    try:
+        utc = moment.astimezone(UTC)
+    except OverflowError:  # 0001-01-01T00:00+14:00 has no UTC instant in datetime's range
+        raise InputError(
+            field, f"expected a date-time within the years 1-9999 in UTC, got {value!r}"
+        ) from None
+    # the year padded by hand: strftime("%Y") gives "999", not "0999", which would sort after 2026
+    return f"{utc.year:04d}-" + utc.strftime("%m-%dT%H:%M:%S.%fZ")
 
 
 def _row(row: sqlite3.Row) -> Acknowledgement:
