@@ -185,3 +185,18 @@ def test_replay_after_the_deployment_was_edited(client):
         assert again.get_json()["field"] == "item_id"
     exported = client.get(f"/api/deployments/{deployment_id}/export").get_json()
     assert [a["client_id"] for a in exported["acknowledgements"]] == [tick["client_id"]]
+
+
+@pytest.mark.parametrize("at", ["0001-01-01T00:00:00+14:00", "9999-12-31T23:59:59-14:00"])
+def test_instants_outside_the_utc_range_are_refused_by_name(client, deployment_id, at):
+    response = _put(client, deployment_id, "pre-item-0", ack(at=at))
+    assert response.status_code == 422 and response.get_json()["field"] == "at"
+
+
+def test_a_phone_with_its_clock_in_year_999_does_not_win(client, deployment_id):
+    """Latest time wins means compared as instants: a year-999 tick is older than a 2026 one."""
+    now = ack(done=True, by="AB", at="2026-12-01T14:05:00Z")
+    stale = ack(done=False, by="CD", at="0999-12-01T14:05:00Z")
+    _put(client, deployment_id, "pre-item-0", now)
+    item = _put(client, deployment_id, "pre-item-0", stale).get_json()["item"]
+    assert (item["done"], item["by"]) == (True, "AB")
