@@ -44,7 +44,12 @@ WEIRD_TEXT = [
     '=HYPERLINK("x")',
     "NaN",
     "1e308",
-    "\ud800 lone surrogate",  # legal as a JSON escape (RFC 8259 §8.2), not as UTF-8
+    "\ud800 lone surrogate",
+    "0001-01-01T00:00:00+14:00",  # instants at the edges of datetime's range
+    "9999-12-31T23:59:59-14:00",
+    "0999-12-01T14:05:00Z",
+    "24:00",
+    "99:99",  # legal as a JSON escape (RFC 8259 §8.2), not as UTF-8
 ]
 
 
