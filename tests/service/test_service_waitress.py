@@ -127,7 +127,7 @@ def test_serve_lan_prints_address_key_and_qr(tmp_path):
         match = re.search(r"http://([\d.]+):(\d+)/\?key=([A-Za-z0-9_-]{32})", first)
         assert match, first
         _address, port, key = match.groups()
-        lines = [proc.stdout.readline() for _ in range(4)]
+        lines = [proc.stdout.readline() for _ in range(8)]  # notes, a blank border, the code
         assert any("\u2580" in line or "\u2584" in line or "\u2588" in line for line in lines)
         local = f"http://127.0.0.1:{port}/"  # bound to 0.0.0.0, so loopback reaches it too
         assert call(local + "api/health")[0] == 200
