@@ -147,3 +147,40 @@ def test_impossible_hangs_raise():
         hang_to_height((Piece(5.0, 0.2, True),), drop_m=6.0, end_tension_n=20.0)
     with pytest.raises(HangError):
         _demo_span(b_xy=(0.5, 0.0))
+
+
+def test_inverted_v_mast_head_statics():
+    # vertical equilibrium of the whole V (statics): the mast head carries both legs' weight, the feed
+    # load, and the downward pull of both stake ropes (their vertical components at the ends)
+    w, leg, feed = 0.23, 19.5, 7.0
+    v = hang_inverted_v(
+        centre_xy=(0, 0),
+        axis_xy=(0, 1),
+        apex_height_m=9.0,
+        end_height_m=3.0,
+        leg_m=leg,
+        wire_weight_n_per_m=w,
+        feed_load_n=feed,
+        tension_n=25.0,
+    )
+    t_end = v.end_tension_n[0]
+    h = v.horizontal_tension_n
+    v_end = math.sqrt(t_end**2 - h**2)  # vertical part of the stake-rope pull at each end
+    assert v.top_load_n == pytest.approx(2 * w * leg + feed + 2 * v_end, rel=1e-9)
+    # the stake rope continues the wire's end direction (weightless rope, massless insulator)
+    reach = math.hypot(*v.points_m[-1, :2])
+    assert v.stake_distance_m == pytest.approx(reach + 3.0 * h / v_end, rel=1e-9)
+
+
+def test_heavier_coax_sags_the_centre_more():
+    from fieldkit.rigging.layouts import Mechanics
+
+    light = Mechanics(0.23, 0.1, 3.4, 0.04 * 9.81, 25.0, 60.0)
+    heavy = Mechanics(0.23, 0.1, 3.4, 0.15 * 9.81, 25.0, 60.0)  # RG-213 class vs RG-58 class mass
+    # the hanging coax (feedpoint down to the ground) adds to the point load (statics)
+    assert heavy.feed_load_n(9.0) - light.feed_load_n(9.0) == pytest.approx(
+        (0.15 - 0.04) * 9.81 * 9.0
+    )
+    d_light = _demo_span(feed_load_n=light.feed_load_n(10.0))
+    d_heavy = _demo_span(feed_load_n=heavy.feed_load_n(10.0))
+    assert d_heavy.sag_m > d_light.sag_m
