@@ -14,6 +14,7 @@ import secrets
 import time
 
 import pytest
+import segno
 
 from e2e.conftest import ARTIFACTS, PLAN_TIMEOUT_MS, Service, shot
 from fieldkit.service.lan import lan_address
@@ -319,6 +320,15 @@ def test_lan_phone_over_plain_http_keeps_ticks_in_local_storage(open_app, servic
             history = service.get(f"/api/deployments/{dep}/checks/{item_id}")["history"]
             assert [a["client_id"] for a in history].count(client_id) == 1
             assert history[-1]["by"] == "GH" and history[-1]["done"] is True
+        # Sharing: the Card shows the LAN address with its key as a QR code for the next phone.
+        go(page, "card", touch=True)
+        page.get_by_test_id("lan-show").tap()
+        page.get_by_test_id("lan-qr").wait_for()
+        url = page.get_by_test_id("lan-url").inner_text()
+        assert url == f"{lan.url}?key={lan.key}"
+        version = int(page.get_by_test_id("lan-qr").get_attribute("data-version"))
+        assert version == segno.make(url, error="m", mode="byte").version
+        shot(page, "phone-lan-card")
     finally:
         lan.stop()
 
