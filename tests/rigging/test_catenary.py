@@ -184,3 +184,41 @@ def test_heavier_coax_sags_the_centre_more():
     d_light = _demo_span(feed_load_n=light.feed_load_n(10.0))
     d_heavy = _demo_span(feed_load_n=heavy.feed_load_n(10.0))
     assert d_heavy.sag_m > d_light.sag_m
+
+
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+
+@settings(max_examples=60, deadline=None)
+@given(
+    span=st.floats(20.0, 70.0),
+    h1=st.floats(6.0, 20.0),
+    h2=st.floats(6.0, 20.0),
+    leg=st.floats(8.0, 22.0),
+    tension=st.floats(30.0, 300.0),
+    feed=st.floats(0.0, 15.0),
+)
+def test_any_hang_balances_and_keeps_the_wire_length(span, h1, h2, leg, tension, feed):
+    """Whatever the site: the polyline is the wire, the pull is as asked, and the supports carry the
+    whole weight (statics). Hangs the solver refuses must say so with HangError."""
+    try:
+        d = _demo_span(
+            b_xy=(span, 0.0),
+            a_height_m=h1,
+            b_height_m=h2,
+            leg_m=leg,
+            tension_n=tension,
+            feed_load_n=feed,
+        )
+    except HangError:
+        return
+    poly = np.sum(np.linalg.norm(np.diff(d.points_m, axis=0), axis=1))
+    assert poly == pytest.approx(2 * leg, rel=5e-4)
+    assert max(d.end_tension_n) == pytest.approx(tension, rel=1e-6)
+    if d.tail_m == 0:
+        total = 2 * leg * 0.23 + 2 * d.span_rope_m[0] * 0.1 + feed
+    else:  # the drooping tails hang from the supports too (their weight is not in the span)
+        total = 2 * (leg - d.tail_m) * 0.23 + feed
+    assert sum(d.support_vertical_n) == pytest.approx(total, rel=1e-6)
+    assert d.feedpoint_height_m < max(h1, h2)
