@@ -176,7 +176,7 @@ def test_ten_thousand_wires_are_refused_quickly():
     start = time.perf_counter()
     exc = finite_or_refused(spec(wires=wires))
     assert isinstance(exc, InputError) and exc.field == "wires"
-    assert time.perf_counter() - start < 2.0
+    assert time.perf_counter() - start < 5.0  # minutes without the limit; slack for a loaded CI
 
 
 def test_a_wire_of_two_thousand_points_is_refused_quickly():
@@ -187,7 +187,7 @@ def test_a_wire_of_two_thousand_points_is_refused_quickly():
         spec(wires=[{"points_m": pts, "diameter_mm": 0.01}], feed={"wire": 0, "distance_m": 10.005})
     )
     assert isinstance(exc, InputError) and exc.field.startswith("wires")
-    assert time.perf_counter() - start < 2.0
+    assert time.perf_counter() - start < 5.0  # minutes without the limit; slack for a loaded CI
 
 
 def test_a_frequency_sweep_beyond_the_work_limit_is_refused_quickly():
@@ -200,7 +200,7 @@ def test_a_frequency_sweep_beyond_the_work_limit_is_refused_quickly():
     start = time.perf_counter()
     exc = finite_or_refused(model)
     assert isinstance(exc, InputError) and exc.field.startswith("frequencies_mhz"), exc
-    assert time.perf_counter() - start < 2.0
+    assert time.perf_counter() - start < 5.0  # minutes without the limit; slack for a loaded CI
 
 
 def test_a_long_list_of_specs_is_refused_before_any_is_solved():
@@ -219,4 +219,4 @@ def test_near_field_points_count_toward_the_work_limit():
     start = time.perf_counter()
     exc = finite_or_refused(model)
     assert isinstance(exc, InputError) and exc.field == "near_field.points_m", exc
-    assert time.perf_counter() - start < 2.0
+    assert time.perf_counter() - start < 5.0  # minutes without the limit; slack for a loaded CI
