@@ -174,6 +174,12 @@ def plan(spec: dict) -> dict:
             opt["warnings"].insert(
                 0, "do not raise as planned: " + "; ".join(str(r) for r in reasons)
             )
+        low_end = min(opt["end_heights_m"])
+        if block is not None and block.get("min_end_height_m", 0) > low_end + 0.05:
+            opt["warnings"].append(
+                f"the lowest wire end hangs at {low_end:.1f} m; keep it at {block['min_end_height_m']:.1f} m "
+                "or more so that no RF keep-out zone remains under the ends (safety block)"
+            )
         options.append(opt)
     for opt in options:
         if sky is not None:
