@@ -36,11 +36,10 @@ MAX_PATTERN_POINTS = 200_000
 MAX_NEAR_FIELD_POINTS = 20_000
 MAX_COORDINATE_M = 10_000.0
 # Work bound of one call (a CLI run or an API request). Cost per frequency ≈ segments²/1000 + 1 work
-# units, each about 0.05 s on the shared 2-core test machine (measured, docs/robustness.md: 562
-# segments 12 s, 282 segments 5.5 s, 40 segments 0.1 s per frequency); 400 units keep a call near
-# 10 s on an idle laptop and refuse, at once, sweeps that would run for minutes.
-# Near-field points and pattern directions cost per segment too (measured the same way: 20 000
-# near-field points on 40 segments 19 s; 200 000 directions on 40 segments 7 s).
+# units, plus near-field points and pattern directions per segment; one unit is 0.01-0.05 s on the
+# shared 2-core test machine (measured, docs/robustness.md: 562 segments 9-12 s, 282 segments
+# 0.9-5.5 s per frequency; 10 000 near-field points on 40 segments 6.8 s; 200 000 directions 3.5-7 s),
+# so 400 units keep a call within ~15 s there and refuse, at once, work that would run for minutes.
 WORK_SEGMENTS_SQUARED = 1000.0
 WORK_NEAR_POINT_SEGMENTS = 2000.0
 WORK_DIRECTION_SEGMENTS = 50_000.0
