@@ -42,6 +42,13 @@ export function clear(node) {
   return node;
 }
 
+/** Width for a full-width drawing, in CSS pixels, so its text stays at its stated size on any screen. */
+export function drawingWidth() {
+  const main = document.querySelector("main");
+  const w = (main?.clientWidth ?? 360) - 44;
+  return Math.round(Math.max(360, Math.min(1000, w)));
+}
+
 /** "Nice" tick values covering [lo, hi] (1-2-5 steps). */
 export function ticks(lo, hi, count = 5) {
   if (!(hi > lo)) return [lo];

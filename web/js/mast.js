@@ -1,7 +1,7 @@
 // Mast: the to-scale side view of the hung antenna, rope heights, the centre mast, the rope-height sweep,
 // the elevation patterns in both planes and the reach against distance.
 
-import { clear, fmtTick, h, linePlot, s, ticks } from "./dom.js";
+import { clear, drawingWidth, fmtTick, h, linePlot, s, ticks } from "./dom.js";
 import { pointAlong, supportsById } from "./shapes.js";
 import { scheduleHours, skyInput } from "./sky.js";
 import { distanceUnit, formatLength, formatMass, toDisplayDistance, toDisplayLength, lengthUnit } from "./units.js";
@@ -74,7 +74,7 @@ export function sideView(dep, o, units) {
   const sMin = Math.min(0, ...placed.map((p) => p.sAt), kLo ?? 0) - 3;
   const sMax = personS + 2;
   const zMax = Math.max(...placed.map((p) => p.top ?? 0), ...wire.map((p) => p[2]), PERSON_M) * 1.12 + 1;
-  const W = 360;
+  const W = drawingWidth();
   const m = { l: 34, r: 8, t: 10, b: 34 };
   const scale = (W - m.l - m.r) / (sMax - sMin);
   const H = m.t + m.b + zMax * scale;

@@ -51,7 +51,7 @@ export function render(app, panel) {
   panel.append(h("div", { class: "sketch-holder", "data-sketch": "1" }, [siteSketch(dep, chosenOption(app), units)]));
   panel.append(h("p", { class: "legend-line" }, [
     h("span", { class: "key key-support" }), "support ", h("span", { class: "key key-used" }), "used by the plan ",
-    h("span", { class: "key key-unsafe" }), "unsafe ", h("span", { class: "key key-wire" }), "wire ", h("span", { class: "key key-keepout" }), "keep-out ", h("span", { class: "key key-power" }), "power line",
+    h("span", { class: "key key-unsafe" }), "unsafe ", h("span", { class: "key key-wire" }), "wire ", h("span", { class: "key key-rope" }), "rope ", h("span", { class: "key key-keepout" }), "keep-out ", h("span", { class: "key key-power" }), "power line",
   ]));
   panel.append(h("div", { "data-plan-status": "1" }, [planStatus(app)]));
   panel.append(h("div", { class: "row" }, [h("button", { type: "button", class: "primary", "data-testid": "save-plan", text: "Save and plan", on: { click: () => app.savePlan() } })]));

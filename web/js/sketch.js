@@ -1,6 +1,6 @@
 // The to-scale top-down sketch of the clearing: supports, power lines, the chosen wire and its keep-out zone.
 
-import { fmtTick, s, ticks } from "./dom.js";
+import { drawingWidth, fmtTick, s, ticks } from "./dom.js";
 import { formatLength, FOOT_M } from "./units.js";
 
 function niceBar(spanM, units) {
@@ -62,10 +62,14 @@ export function siteSketch(dep, option, units) {
   x1 += pad;
   y0 -= pad;
   y1 += pad;
-  const W = 360;
-  const scale = W / (x1 - x0);
-  const H = Math.min(520, Math.max(220, (y1 - y0) * scale));
-  // Keep the scale equal in x and y: widen the y range to the drawing's aspect.
+  const W = drawingWidth();
+  const H_MAX = Math.max(260, Math.min(560, W * 0.9)); // tall enough to read, short enough to scroll past
+  const scale = Math.min(W / (x1 - x0), H_MAX / (y1 - y0));
+  const H = Math.max(220, (y1 - y0) * scale);
+  // Equal scale in x and y: widen both ranges, centred, to the drawing's aspect.
+  const xMid = (x0 + x1) / 2;
+  x0 = xMid - W / scale / 2;
+  x1 = xMid + W / scale / 2;
   const yMid = (y0 + y1) / 2;
   y0 = yMid - H / scale / 2;
   y1 = yMid + H / scale / 2;
@@ -89,6 +93,14 @@ export function siteSketch(dep, option, units) {
     }
   }
   if (wire.length >= 2) {
+    // ropes from each end support to the nearer wire end
+    for (const id of option?.supports_used ?? []) {
+      const sp = supports.find((v) => v.id === id);
+      if (!sp) continue;
+      const ends = [wire[0], wire.at(-1)];
+      const end = ends.reduce((a, b) => (Math.hypot(b[0] - sp.x_m, b[1] - sp.y_m) < Math.hypot(a[0] - sp.x_m, a[1] - sp.y_m) ? b : a));
+      svg.append(s("line", { x1: X(sp.x_m), y1: Y(sp.y_m), x2: X(end[0]), y2: Y(end[1]), class: "rope" }));
+    }
     svg.append(s("polyline", { points: wire.map((p) => `${X(p[0]).toFixed(1)},${Y(p[1]).toFixed(1)}`).join(" "), class: "wire-line", "data-testid": "sketch-wire" }));
   }
   svg.append(s("rect", { x: X(0) - 4, y: Y(0) - 4, width: 8, height: 8, class: "origin" }));
