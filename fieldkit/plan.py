@@ -1,9 +1,11 @@
 """The one entry point that composes the layers: ``plan(spec) -> dict`` (the `fieldkit plan` contract).
 
 site + kit + channels → every layout the site allows (pairs of safe supports flat or sloping, an
-inverted-V on each kit mast) × every channel → resonance, height sweep, cut list, SWR, mast, feedline
-from the engine (:mod:`fieldkit.rigging`) → the safety block of each option (:mod:`fieldkit.safety`)
-→ options best first. An option whose safety block says ``raise_ok: false`` is never first.
+inverted-V on each kit mast or from the highest branch) → the sky layer's schedule fit per channel
+(when ``sky`` is given) → height sweeps with the engine (every layout on the best channel, the best
+two on the others; :mod:`fieldkit.rigging`) → for the best few: resonance, cut list, SWR, mast,
+feedline, and the safety block (:mod:`fieldkit.safety`) → options best first. An option whose safety
+block says ``raise_ok: false`` is never first.
 """
 
 from __future__ import annotations
@@ -12,13 +14,12 @@ import time
 from typing import Any
 
 from fieldkit.errors import InputError, join
-from fieldkit.planning.inputs import PlanInput, parse_plan
+from fieldkit.planning.inputs import FORMS, PlanInput, parse_plan
 from fieldkit.rigging.cut import EngineCounter, retrim
 from fieldkit.rigging.layouts import inverted_v_layouts, span_layouts
 from fieldkit.rigging.linked import linked_option
 from fieldkit.rigging.options import Refusal, Warm, finish, screen
 
-FORMS = ("flat", "inverted-v", "sloping", "linked", "auto")
 # Channels within 6 % of one already swept on a layout reuse its chosen heights (one engine solve
 # instead of a sweep): heights in wavelengths differ by < 6 %, the NVIS figure by hundredths of a dB.
 CHANNEL_GROUP_FRACTION = 0.06
