@@ -506,6 +506,17 @@ async function start() {
     } else await openDeployment(v);
   });
   window.addEventListener("hashchange", () => go(location.hash.slice(1)));
+  // Drawings take the screen's width when drawn: redraw after a rotation or a window resize.
+  let lastWidth = window.innerWidth;
+  let resizeTimer = null;
+  window.addEventListener("resize", () => {
+    clearTimeout(resizeTimer);
+    resizeTimer = setTimeout(() => {
+      if (Math.abs(window.innerWidth - lastWidth) < 60 || !app.state.dep) return;
+      lastWidth = window.innerWidth;
+      app.refresh();
+    }, 300);
+  });
   window.addEventListener("online", () => replay());
   setInterval(() => {
     if (app.state.pending.length) replay();
