@@ -486,3 +486,27 @@ def test_kit_entered_in_the_app_becomes_the_operators_kit(open_app, service):
     assert stored["rope"]["length_m"] == 60
     assert stored["masts"][0]["id"] == "M1" and stored["masts"][0]["height_m"] == 9
     shot(page, "laptop-kit")
+
+
+def test_sounding_overrides_the_estimate(open_app, service):
+    """An observed foF2 typed into Sky replaces the modelled one and the channel day follows it."""
+    page = open_app("phone", "#sky")
+    page.get_by_test_id("channel-day").wait_for(timeout=120_000)
+    before = page.locator("[data-testid=channel-day] td.fo").all_inner_texts()
+    page.get_by_test_id("sounding").locator("summary").tap()
+    fill(page, "sounding-fof2", "2.5")
+    fill(page, "sounding-height", "300")
+    fill(page, "sounding-hour", "17:00")
+    page.get_by_test_id("sounding-use").tap()
+    page.get_by_test_id("sounding-summary").filter(has_text="Sounding in use").wait_for()
+    page.wait_for_function(
+        "(b) => { const t = [...document.querySelectorAll('[data-testid=channel-day] td.fo')].map((e) => e.textContent);"
+        " return t.length === 24 && t.join() !== b.join(); }",
+        arg=before,
+        timeout=120_000,
+    )
+    after = page.locator("[data-testid=channel-day] td.fo").all_inner_texts()
+    assert after[17] == "2.5", after  # the observed reading at its hour
+    shot(page, "phone-sky-sounding")
+    fill(page, "sounding-height", "90")
+    assert "at least 150" in page.get_by_test_id("sounding-height-error").inner_text()

@@ -47,7 +47,10 @@ export async function ensureSky(app) {
     await app.saveView();
   } catch (e) {
     st.skyError = e instanceof UnreachableError ? `${e.message}; showing the last estimate saved on this device.` : e.message;
-    if (e instanceof ApiError) st.sky = null;
+    if (e instanceof ApiError) {
+      st.sky = null;
+      if (st.section === "sky") setTimeout(() => app.reportFieldError(e), 0);
+    }
   }
   return st.sky;
 }
@@ -221,17 +224,33 @@ function soundingForm(app) {
   const dep = app.state.dep;
   const cur = dep.sky?.sounding;
   const box = h("details", { class: "card", "data-testid": "sounding", open: Boolean(cur) });
-  box.append(h("summary", { text: cur ? `Sounding in use: foF2 ${cur.fof2_mhz} MHz, h′ ${cur.virtual_height_km} km` : "Enter a sounding (an observed reading)" }));
+  box.append(h("summary", { "data-testid": "sounding-summary", text: cur ? `Sounding in use: foF2 ${cur.fof2_mhz} MHz, h′F ${cur.virtual_height_km} km${cur.hour_utc !== undefined ? ` at ${hhmm(cur.hour_utc)} UTC` : ""}` : "Enter a sounding (an observed reading)" }));
   box.append(h("p", { class: "hint", text: "A reading from an ionosonde or a near-vertical sounding overrides the sky estimate for the whole day." }));
   let fo = cur?.fof2_mhz ?? null;
   let hv = cur?.virtual_height_km ?? 300;
-  const f1 = numberField({ label: "foF2 (MHz)", value: fo ?? "", min: 0.5, max: 20, what: "a frequency in MHz", fieldPath: "sky.sounding.fof2_mhz", testid: "sounding-fof2", onValid: (v) => (fo = v) });
-  const f2 = numberField({ label: "Virtual height (km)", value: hv, min: 80, max: 800, what: "a height in km", fieldPath: "sky.sounding.virtual_height_km", testid: "sounding-height", onValid: (v) => (hv = v) });
-  box.append(h("div", { class: "grid-form" }, [f1, f2]));
+  const f1 = numberField({ label: "foF2 (MHz)", value: fo ?? "", min: 0.5, max: 20, what: "a frequency in MHz", fieldPath: "sounding.fof2_mhz", testid: "sounding-fof2", onValid: (v) => (fo = v) });
+  const f2 = numberField({ label: "Virtual height h′F (km)", value: hv, min: 150, max: 800, what: "a height in km", fieldPath: "sounding.virtual_height_km", testid: "sounding-height", onValid: (v) => (hv = v) });
+  let hr = cur?.hour_utc ?? null;
+  const f3 = field({
+    label: "Hour of the reading (UTC; empty: the whole day)", value: cur?.hour_utc ?? "", fieldPath: "sounding.hour_utc", testid: "sounding-hour", inputmode: "decimal",
+    parse: (t) => {
+      const v = String(t).trim();
+      if (!v) return null;
+      const m = v.match(/^(\d{1,2})(?::(\d{2}))?$/);
+      if (!m || Number(m[1]) > 23 || Number(m[2] ?? 0) > 59) throw new EntryError("expected an hour 0–23 or HH:MM, UTC");
+      return Number(m[1]) + Number(m[2] ?? 0) / 60;
+    },
+    onValid: (v) => (hr = v),
+  });
+  box.append(h("div", { class: "grid-form" }, [f1, f2, f3]));
   const use = h("button", { type: "button", class: "primary", "data-testid": "sounding-use", text: "Use this sounding" });
   use.addEventListener("click", () => {
-    if (!f1.check().ok || !f2.check().ok) return;
-    app.change((d) => { d.sky = d.sky ?? {}; d.sky.sounding = { fof2_mhz: fo, virtual_height_km: hv }; });
+    if (!f1.check().ok || !f2.check().ok || !f3.check().ok) return;
+    app.change((d) => {
+      d.sky = d.sky ?? {};
+      d.sky.sounding = { fof2_mhz: fo, virtual_height_km: hv };
+      if (hr !== null) d.sky.sounding.hour_utc = +hr.toFixed(2);
+    });
     app.state.sky = null;
     app.render();
   });
