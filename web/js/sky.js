@@ -225,7 +225,7 @@ function soundingForm(app) {
   const cur = dep.sky?.sounding;
   const box = h("details", { class: "card", "data-testid": "sounding", open: Boolean(cur) });
   box.append(h("summary", { "data-testid": "sounding-summary", text: cur ? `Sounding in use: foF2 ${cur.fof2_mhz} MHz, h′F ${cur.virtual_height_km} km${cur.hour_utc !== undefined ? ` at ${hhmm(cur.hour_utc)} UTC` : ""}` : "Enter a sounding (an observed reading)" }));
-  box.append(h("p", { class: "hint", text: "A reading from an ionosonde or a near-vertical sounding overrides the sky estimate for the whole day." }));
+  box.append(h("p", { class: "hint", text: "A reading from an ionosonde or a near-vertical sounding overrides the sky estimate near its hour (without an hour: for the whole day)." }));
   let fo = cur?.fof2_mhz ?? null;
   let hv = cur?.virtual_height_km ?? 300;
   const f1 = numberField({ label: "foF2 (MHz)", value: fo ?? "", min: 0.5, max: 20, what: "a frequency in MHz", fieldPath: "sounding.fof2_mhz", testid: "sounding-fof2", onValid: (v) => (fo = v) });
