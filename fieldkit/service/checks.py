@@ -96,8 +96,14 @@ def acknowledge(deployment_id: str, item_id: str):
     conn = get_db()
     with transaction(conn):
         _revision, result = deployments.safety_view(conn, deployment_id)
-        _item(checklist_state(conn, deployment_id, result)[0], item_id)
-        ack, replayed = checks.insert(conn, deployment_id=deployment_id, item_id=item_id, **fields)
+        item = _item(checklist_state(conn, deployment_id, result)[0], item_id)
+        ack, replayed = checks.insert(
+            conn,
+            deployment_id=deployment_id,
+            item_id=item_id,
+            item_text_sha256=checks.text_sha256(item.get("text", "")),
+            **fields,
+        )
     items, ready = checklist_state(conn, deployment_id, result)
     return jsonify(
         {

@@ -80,17 +80,24 @@ def checklist_state(
 ) -> tuple[list[dict], dict[str, Any]]:
     """Each checklist item with its current state, and the deployment's readiness to raise.
 
-    Items carry ``done``, ``by``, ``at`` (from the deciding acknowledgement) and ``acknowledgements``
-    (how many the history holds for the item).
+    Items carry ``done``, ``by``, ``at`` (from the deciding acknowledgement), ``acknowledgements``
+    (how many the history holds for the item) and ``stale_acknowledgements`` (how many were given for
+    an earlier wording of the item and no longer count: the plan changed what the item says).
     """
     if history is None:
         history = checks.history(conn, deployment_id)
-    state = checks.decide(history)
+    items_in = checklist(result)
+    texts = {item["id"]: item.get("text", "") for item in items_in}
+    valid = [a for a in history if a.item_id in texts and checks.counts_for(a, texts[a.item_id])]
+    state = checks.decide(valid)
     counts: dict[str, int] = {}
     for ack in history:
         counts[ack.item_id] = counts.get(ack.item_id, 0) + 1
+    counting: dict[str, int] = {}
+    for ack in valid:
+        counting[ack.item_id] = counting.get(ack.item_id, 0) + 1
     items = []
-    for item in checklist(result):
+    for item in items_in:
         held = state.get(item["id"])
         items.append(
             {
@@ -101,9 +108,10 @@ def checklist_state(
                 "by": held.by if held else None,
                 "at": held.at if held else None,
                 "acknowledgements": counts.get(item["id"], 0),
+                "stale_acknowledgements": counts.get(item["id"], 0) - counting.get(item["id"], 0),
             }
         )
-    return items, readiness(result, items, history)
+    return items, readiness(result, items, valid)
 
 
 def _checks_done(items: list[dict], history: list[checks.Acknowledgement]) -> bool:

@@ -4,10 +4,13 @@ Rule for conflicts (stated in docs/service.md): for each item the acknowledgemen
 ``at`` (the time the person ticked it, as sent by their device, compared in UTC) is the current state;
 two with the same ``at`` are ordered by arrival. The history keeps every acknowledgement. The same
 ``client_id`` sent again (a phone replaying its offline queue) is the same record: nothing changes.
+An acknowledgement counts only for the wording of the item it was given for (``item_text_sha256``):
+when a re-plan changes what an item says, it must be checked again.
 """
 
 from __future__ import annotations
 
+import hashlib
 import sqlite3
 from dataclasses import asdict, dataclass
 from datetime import UTC, datetime
@@ -30,6 +33,7 @@ class Acknowledgement:
     at: str
     at_utc: str
     received_at: str
+    item_text_sha256: str | None = None
 
     def to_json(self) -> dict[str, Any]:
         out = asdict(self)
@@ -59,6 +63,16 @@ def instant_utc(value: Any, field: str) -> str:
     return f"{utc.year:04d}-" + utc.strftime("%m-%dT%H:%M:%S.%fZ")
 
 
+def text_sha256(text: object) -> str:
+    """The fingerprint of an item's wording that an acknowledgement is tied to."""
+    return hashlib.sha256(str(text).encode("utf-8")).hexdigest()
+
+
+def counts_for(ack: Acknowledgement, item_text: object) -> bool:
+    """Whether ``ack`` was given for this wording of its item (rows from before v4 always count)."""
+    return ack.item_text_sha256 is None or ack.item_text_sha256 == text_sha256(item_text)
+
+
 def _row(row: sqlite3.Row) -> Acknowledgement:
     return Acknowledgement(
         seq=row["seq"],
@@ -70,6 +84,7 @@ def _row(row: sqlite3.Row) -> Acknowledgement:
         at=row["at"],
         at_utc=row["at_utc"],
         received_at=row["received_at"],
+        item_text_sha256=row["item_text_sha256"],
     )
 
 
@@ -83,11 +98,13 @@ def insert(
     at: str,
     client_id: str,
     received_at: str | None = None,
+    item_text_sha256: str | None = None,
 ) -> tuple[Acknowledgement, bool]:
     """Append one acknowledgement inside the caller's transaction; return it and whether it was a replay.
 
-    A replay (same ``client_id``, same content) returns the stored record unchanged. The same
-    ``client_id`` with different content is refused: a device never reuses an id for another tick.
+    A replay (same ``client_id``, same content) returns the stored record unchanged, even when the
+    item's wording changed since. The same ``client_id`` with different content is refused: a device
+    never reuses an id for another tick.
     """
     at_utc = instant_utc(at, "at")
     row = conn.execute(
@@ -112,7 +129,7 @@ def insert(
         return stored, True
     cursor = conn.execute(
         "INSERT INTO acknowledgements (client_id, deployment_id, item_id, done, by, at, at_utc,"
-        " received_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
+        " received_at, item_text_sha256) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
         (
             client_id,
             deployment_id,
@@ -122,6 +139,7 @@ def insert(
             at,
             at_utc,
             received_at or utc_now(),
+            item_text_sha256,
         ),
     )
     stored = conn.execute(

@@ -65,7 +65,12 @@ _V3 = (
     " WHERE plan_result IS NOT NULL",
 )
 
-MIGRATIONS: tuple[tuple[str, ...], ...] = (_V1, _V2, _V3)
+# Version 4: each acknowledgement remembers the wording of the item it was given for (SHA-256 of
+# the item's text). A re-plan that changes an item's text (another distance, another support) makes
+# the old tick stale: the item must be checked again. Older rows (NULL) keep counting.
+_V4 = ("ALTER TABLE acknowledgements ADD COLUMN item_text_sha256 TEXT",)
+
+MIGRATIONS: tuple[tuple[str, ...], ...] = (_V1, _V2, _V3, _V4)
 SCHEMA_VERSION = len(MIGRATIONS)
 
 

@@ -18,6 +18,7 @@ FORMAT = "fieldkit-deployment"
 FORMAT_VERSION = 1
 MAX_IMPORTED_ACKNOWLEDGEMENTS = 20_000
 _ID = re.compile(r"^[A-Za-z0-9_.:-]{1,64}$")
+_SHA256 = re.compile(r"^[0-9a-f]{64}$")
 
 
 def identifier(value: Any, field: str) -> str:
@@ -54,6 +55,7 @@ def export_deployment(conn: sqlite3.Connection, deployment_id: str) -> dict[str,
                 "by": ack.by,
                 "at": ack.at,
                 "received_at": ack.received_at,
+                "item_text_sha256": ack.item_text_sha256,
             }
             for ack in checks.history(conn, deployment_id)
         ],
@@ -98,7 +100,14 @@ def _validated(doc: Any) -> dict[str, Any]:
     for i, ack in enumerate(acks):
         field = join("acknowledgements", i)
         ack = require_mapping(ack, field)
-        check_keys(ack, field, ("client_id", "item_id", "done", "by", "at", "received_at"))
+        check_keys(
+            ack,
+            field,
+            ("client_id", "item_id", "done", "by", "at", "received_at", "item_text_sha256"),
+        )
+        sha = ack.get("item_text_sha256")
+        if sha is not None and not (isinstance(sha, str) and _SHA256.match(sha)):
+            raise InputError(join(field, "item_text_sha256"), "expected 64 hex digits or null")
         if not isinstance(ack.get("done"), bool):
             raise InputError(
                 join(field, "done"), f"expected true or false, got {ack.get('done')!r}"[:200]
@@ -110,6 +119,7 @@ def _validated(doc: Any) -> dict[str, Any]:
             "by": text(ack.get("by"), join(field, "by"), max_length=40),
             "at": ack.get("at"),
             "received_at": text(ack.get("received_at"), join(field, "received_at"), max_length=40),
+            "item_text_sha256": sha,
         }
         checks.instant_utc(item["at"], join(field, "at"))
         checks.instant_utc(item["received_at"], join(field, "received_at"))

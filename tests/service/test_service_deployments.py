@@ -95,8 +95,11 @@ def test_created_deployment_has_the_plan_layers_checklist(client, demo_input):
     for item_id, body in zip(required, sent, strict=True):
         replay = client.put(f"/api/deployments/{new_id}/checks/{item_id}", json=body)
         assert replay.json["replayed"] is True
-    after = client.get(f"/api/deployments/{new_id}/checks").json["items"]
-    assert sum(i["acknowledgements"] for i in after) == len(required)
+    after = client.get(f"/api/deployments/{new_id}/checks").json
+    assert sum(i["acknowledgements"] for i in after["items"]) == len(required)
+    # The same plan input re-planned gives the same wording: the ticks still count.
+    assert all(i["stale_acknowledgements"] == 0 for i in after["items"])
+    assert after["ready_to_raise"] is raise_ok
 
 
 @pytest.mark.parametrize(
@@ -369,3 +372,42 @@ def test_demo_loads_once_into_an_empty_database(tmp_path, demo_input):
     client.delete(f"/api/deployments/{listed[0]['id']}")
     again = create_app(config).test_client()  # a restart
     assert again.get("/api/deployments").json["deployments"] == []
+
+
+def test_a_tick_counts_only_for_the_wording_it_was_given_for(app, client, planned):
+    from fieldkit import store
+    from fieldkit.store import deployments
+
+    base = f"/api/deployments/{planned}/checks"
+    first = ack()
+    client.put(f"{base}/pre-weather", json=first)
+    client.put(f"{base}/pre-power-line-0", json=ack())
+    assert client.get(base).json["ready_to_raise"] is True
+
+    # A re-plan moves the wire: the power-line item now says something else; the weather one does not.
+    conn = store.connect(app.config["DATABASE"])
+    try:
+        found = deployments.get(conn, planned)
+        result = found.plan_result
+        result["options"][0]["safety"]["checklist"][0]["text"] = "Line 0 is 12 m away."
+        deployments.update(
+            conn, planned, name=found.name, plan_input=found.plan_input, plan_result=result
+        )
+    finally:
+        conn.close()
+    state = client.get(base).json
+    items = {i["id"]: i for i in state["items"]}
+    assert items["pre-power-line-0"]["done"] is False
+    assert items["pre-power-line-0"]["stale_acknowledgements"] == 1
+    assert (
+        items["pre-weather"]["done"] is True and items["pre-weather"]["stale_acknowledgements"] == 0
+    )
+    assert state["ready_to_raise"] is False
+    assert state["missing_checks"] == ["pre-power-line-0"]
+
+    # A late replay of the old tick is still one record and still does not count.
+    assert client.put(f"{base}/pre-weather", json=first).json["replayed"] is True
+    again = client.put(f"{base}/pre-power-line-0", json=ack(at="2026-12-01T15:00:00Z"))
+    assert again.json["ready_to_raise"] is True
+    history = client.get(f"{base}/pre-power-line-0").json["history"]
+    assert len(history) == 2 and history[0]["item_text_sha256"] != history[1]["item_text_sha256"]

@@ -77,9 +77,9 @@ def test_migrate_from_version_1_keeps_and_fills_data(tmp_path):
         conn.close()
 
 
-def test_migrate_from_previous_schema_fills_the_safety_column(tmp_path):
+def test_migrate_from_version_2_fills_the_safety_column(tmp_path):
     path = store.database_path(tmp_path)
-    previous = SCHEMA_VERSION - 1
+    previous = 2
     assert migrate(path, target=previous) == previous
     conn = store.connect(path)
     safety = {
@@ -101,6 +101,29 @@ def test_migrate_from_previous_schema_fills_the_safety_column(tmp_path):
         assert deployments.get(conn, "d2").plan_result == result
         [summary] = deployments.summaries(conn)
         assert summary["safety"] == safety and summary["revision"] == 4
+    finally:
+        conn.close()
+
+
+def test_migrate_from_previous_schema_keeps_ticks_counting(tmp_path):
+    path = store.database_path(tmp_path)
+    previous = SCHEMA_VERSION - 1
+    assert migrate(path, target=previous) == previous
+    conn = store.connect(path)
+    new_id = deployments.create(conn, name="A", plan_input=PLAN_INPUT, plan_result=None)
+    conn.execute(
+        "INSERT INTO acknowledgements (client_id, deployment_id, item_id, done, by, at, at_utc,"
+        " received_at) VALUES ('c1', ?, 'pre-x', 1, 'AB', '2026-11-30T10:05:00Z',"
+        " '2026-11-30T10:05:00.000000Z', '2026-11-30T10:05:01.000000Z')",
+        (new_id,),
+    )
+    conn.close()
+    assert migrate(path) == SCHEMA_VERSION
+    conn = store.connect(path)
+    try:
+        [ack] = checks.history(conn, new_id)
+        assert ack.item_text_sha256 is None
+        assert checks.counts_for(ack, "any wording")  # a tick from before the wording was kept
     finally:
         conn.close()
 
