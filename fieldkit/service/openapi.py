@@ -400,6 +400,10 @@ SCHEMAS: dict[str, Any] = {
             "by": {"type": ["string", "null"]},
             "at": {"type": ["string", "null"]},
             "acknowledgements": {"type": "integer"},
+            "stale_acknowledgements": {
+                "type": "integer",
+                "description": "ticks given for an earlier wording of the item; they no longer count",
+            },
         },
     },
     "Checklist": {
