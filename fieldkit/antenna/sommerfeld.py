@@ -46,10 +46,10 @@ from .materials import C0, EPS0
 # Two-level path (Aksun 1996): level 1 on u0 = k0 (T2 + t), 0 ≤ t ≤ T1; level 2 on
 # u0 = k0 (t + j (1 − t/T2)), 0 ≤ t ≤ T2. Values chosen by the fit-error study in docs/engine.md.
 T1 = 400.0
-T2 = 6.0
+T2 = 20.0
 N_SAMPLES_1 = 120
-N_SAMPLES_2 = 160
-GPOF_TOLERANCE = 1e-7  # relative singular-value cut-off
+N_SAMPLES_2 = 400
+GPOF_TOLERANCE = 1e-9  # relative singular-value cut-off
 N_REFLECTED = 2  # Gauss points per segment for the reflected field in the matrix
 
 

@@ -33,7 +33,12 @@ def compare(case, ground, *, near=True, conductivity=None):
     lam = 299.792458 / case.frequency_mhz
     pts = None
     if near:
-        z_probe = 1.8 if ground.kind != "free-space" else case.height_wl * lam - 3.0
+        lowest = min(float(w.points_m[:, 2].min()) for w in case.antenna.wires)
+        # probes at a person's head height, but never closer than 0.03 λ below the wire (the
+        # field right at the wire depends on each code's feed model, not on the ground)
+        z_probe = 1.8 if lowest - 1.8 >= 0.03 * lam else lowest / 3
+        if ground.kind == "free-space":
+            z_probe = lowest - 0.05 * lam
         pts = np.array([[0, 0, z_probe], [0.2 * lam, 0.05 * lam, z_probe], [0.3 * lam, 0, z_probe]])
     ref = nec_solve(
         case.pieces,
@@ -55,10 +60,39 @@ def compare(case, ground, *, near=True, conductivity=None):
     assert worst <= 0.5, (str(case), worst)
     if near:
         e, h = sol.near_field(pts)
-        for ours, theirs in ((e, ref.e_v_per_m), (h, ref.h_a_per_m)):
+        # NEC-2's NH card uses the reflection-coefficient image even with GN 2 (see
+        # test_nec_lossy.test_nec_near_h_is_the_reflection_coefficient_image), so over lossy ground
+        # H is checked against Faraday's law on fieldkit's own E, which NEC does confirm.
+        pairs = [(e, ref.e_v_per_m)]
+        if ground.kind == "lossy":
+            pairs.append((h, h_from_curl_e(sol, pts)))
+        else:
+            pairs.append((h, ref.h_a_per_m))
+        for ours, theirs in pairs:
             a, b = np.linalg.norm(ours, axis=1), np.linalg.norm(theirs, axis=1)
-            assert np.all(np.abs(a - b) <= 0.10 * b), (str(case), a, b)
+            # 10 % of the local field; where direct and reflected fields nearly cancel (under the
+            # feed, near the ground) a floor of 5 % of the strongest probed field (docs/engine.md)
+            assert np.all(np.abs(a - b) <= np.maximum(0.10 * b, 0.05 * b.max())), (str(case), a, b)
     return sol, ref
+
+
+def h_from_curl_e(sol, pts, step_m=0.01):
+    """H = −∇×E/(jωμ0) by central differences of the solution's near E (Faraday's law)."""
+    omega = 2 * np.pi * sol.frequency_hz
+    grad = np.empty((len(pts), 3, 3), dtype=complex)  # grad[:, i, k] = ∂E_k/∂x_i
+    for i in range(3):
+        d = np.zeros(3)
+        d[i] = step_m
+        grad[:, i, :] = (sol.near_field(pts + d)[0] - sol.near_field(pts - d)[0]) / (2 * step_m)
+    curl = np.stack(
+        [
+            grad[:, 1, 2] - grad[:, 2, 1],
+            grad[:, 2, 0] - grad[:, 0, 2],
+            grad[:, 0, 1] - grad[:, 1, 0],
+        ],
+        axis=1,
+    )
+    return -curl / (1j * omega * 4e-7 * np.pi)
 
 
 @pytest.mark.parametrize(("form", "f_mhz", "h_wl", "gname"), IDEAL_CASES)
