@@ -41,12 +41,21 @@ def _safety(
             None,
             "safety checks are not available in this build: do not raise without a manual check",
         )
+    # the resonance search already solved this hung wire at the channel: reuse it for the near field
+    res = option.get("_resonance")
+    solution = getattr(res, "solution", None)
+    if (
+        solution is not None
+        and abs(solution.frequency_hz / (option["frequency_mhz"] * 1e6) - 1) > 1e-6
+    ):
+        solution = None
     block = safety_block(
         option={k: v for k, v in option.items() if not k.startswith("_")},
         site=spec["site"],
         radio=spec["radio"],
         ground=inp.kit.ground,
         limit_set=inp.limit_set,
+        solution=solution,
     )
     return block, None
 
