@@ -87,7 +87,8 @@ def _calculate(command: str, path: str) -> int:
     spec = jsonio.read(path)  # input errors are reported even where a layer is missing
     fn = _load(module, name)
     result = fn(spec)
-    sys.stdout.write(jsonio.dumps(result) + "\n")
+    # indented for a person at a terminal; compact (and fast) when piped to a script
+    sys.stdout.write(jsonio.dumps(result, pretty=sys.stdout.isatty()) + "\n")
     return 0
 
 

@@ -53,6 +53,11 @@ def read(path: str) -> Any:
     return loads(text, source)
 
 
-def dumps(obj: Any) -> str:
-    """JSON out; NaN/Infinity are refused (they are not JSON) so a bug cannot leak them silently."""
-    return json.dumps(obj, allow_nan=False, indent=2)
+def dumps(obj: Any, *, pretty: bool = True) -> str:
+    """JSON out; NaN/Infinity are refused (they are not JSON) so a bug cannot leak them silently.
+
+    Compact output (``pretty=False``) uses the C encoder: several times faster for a long sweep.
+    """
+    if pretty:
+        return json.dumps(obj, allow_nan=False, indent=2)
+    return json.dumps(obj, allow_nan=False, separators=(",", ":"))
