@@ -90,3 +90,60 @@ def test_lossy_ground_loss_accounting():
     p = sol.power_w
     assert p["radiated"] + p["ground_loss"] + p["conductor_loss"] == pytest.approx(100, rel=1e-9)
     assert 0.2 < sol.radiation_efficiency < 0.6  # low dipole over average ground loses most of it
+
+
+def _hed_ex_reflected(rho, zeta, k0, eps, phi):
+    """4π jωε0 · E_x reflected from a unit x-directed element, from the Sommerfeld integrals.
+
+    E_x = k0² S[R_H] + ∂x² W, W = ∫ (R_H/u0 − u0 C) J0 e^{−u0ζ} λ dλ, with ∂x² written through J0 and
+    J2 (Sommerfeld 1949 §31–33 potentials), integrated by scipy quad on a lifted contour.
+    """
+    a, d = 3.0 * k0, 0.3 * k0
+    c2 = math.cos(2 * phi)
+
+    def spec(lam):
+        u0 = np.sqrt(lam * lam - k0 * k0)
+        u2 = np.sqrt(lam * lam - eps * k0 * k0)
+        r_h = (u0 - u2) / (u0 + u2)
+        c = 2 * (eps - 1) / ((u0 + u2) * (eps * u0 + u2))
+        gw = r_h / u0 - u0 * c
+        x = lam * rho
+        j0, j2 = special.jv(0, x), special.jv(2, x)
+        return (k0 * k0 * r_h * j0 * lam / u0 - 0.5 * gw * lam**3 * (j0 - c2 * j2)) * np.exp(
+            -u0 * zeta
+        )
+
+    def integrand(t):
+        if t < a:
+            lam = t + 1j * d * math.sin(math.pi * t / a)
+            return spec(lam) * (1 + 1j * d * math.pi / a * math.cos(math.pi * t / a))
+        return spec(complex(t))
+
+    edges = np.concatenate([np.linspace(0, a, 60), np.linspace(a, a + 40 / zeta, 400)[1:]])
+    total = 0j
+    for lo, hi in zip(edges[:-1], edges[1:], strict=True):
+        total += integrate.quad(lambda t: integrand(t).real, lo, hi, limit=100)[0]
+        total += 1j * integrate.quad(lambda t: integrand(t).imag, lo, hi, limit=100)[0]
+    return total
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize(("phi", "tolerance"), [(0.0, 0.02), (math.pi / 2, 0.04)])
+def test_sommerfeld_formulation_tends_to_fresnel_image_far_away(phi, tolerance):
+    # Balanis, Advanced EM ch. 5: far from the source the reflected field is the image weighted by
+    # the plane-wave coefficient at the specular angle (Γv in the plane of incidence, Γh across it);
+    # the residual is O(1/kR) ≈ 2 % at 8 λ. Checks R_H and C (the HED's Π_z) independently of NEC.
+    f, eps_r, sigma = 3.6e6, 13.0, 0.005
+    k0 = 2 * math.pi * f / 299_792_458.0
+    lam = 2 * math.pi / k0
+    eps = complex(eps_r, -sigma / (2 * math.pi * f * EPS0))
+    r2, psi = 8 * lam, math.radians(60)
+    s = math.sin(psi)
+    root = np.sqrt(eps - (1 - s * s))
+    g = np.exp(-1j * k0 * r2) / r2
+    if phi == 0.0:  # observer in the plane of incidence holding the dipole: TM
+        expected = -(eps * s - root) / (eps * s + root) * k0 * k0 * g * s * s
+    else:  # observer broadside: the dipole is ⟂ to the plane of incidence: TE
+        expected = (s - root) / (s + root) * k0 * k0 * g
+    got = _hed_ex_reflected(r2 * math.cos(psi), r2 * s, k0, eps, phi)
+    assert abs(got - expected) <= tolerance * abs(expected)
