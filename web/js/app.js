@@ -199,6 +199,14 @@ async function openDeployment(id) {
   } catch {
     /* ignore */
   }
+  if (id.startsWith("draft-")) {
+    const saved = await kvGet(`dep:${id}`);
+    if (saved) {
+      Object.assign(st, { dep: saved.dep, revision: null, draft: true, dirty: true });
+      render();
+      return;
+    }
+  }
   try {
     const data = await call(() => api.getDeployment(id));
     const d = readDeployment(data);
@@ -499,6 +507,7 @@ async function start() {
   });
   document.getElementById("deployment-select").addEventListener("change", async (ev) => {
     const v = ev.target.value;
+    if (v === app.state.id) return;
     if (v === "__new") {
       app.state.dep = null;
       app.state.id = null;
