@@ -101,6 +101,8 @@ BAD = [
     (("near_field", "points_m"), [[0, 0, -2]], "near_field.points_m[0]"),
     (("extra",), 1, "extra"),
     (("wires",), KeyError, "wires"),
+    (("wires", 0, "points_m"), [[-20, 0, 8], [20, 0, 8], [20.001, 0, 8]], "wires[0].points_m[2]"),
+    (("frequency_mhz",), 60.0, "wires"),  # 40 m at 60 MHz needs more than MAX_SEGMENTS
 ]
 
 
