@@ -19,7 +19,8 @@ from tests.antenna.test_nec_ideal import compare
 # higher over lossy grounds and up to 11 Ω over low-loss ones (εr 13, σ 0.0002 at 10 MHz), at
 # 0.04 λ zenith gain up to 0.6 dB lower; from 0.1 λ up they agree within 1 Ω and 0.01 dB. PyNEC's
 # own Sommerfeld table jumps by 50–60 Ω near 0.035 λ. fieldkit's coupling there matches direct
-# numerical Sommerfeld integration (test_sommerfeld.py) and its formulation the Fresnel far-zone,
+# numerical Sommerfeld integration and the Novotny & Hecht dipole-power formula (test_sommerfeld.py),
+# and its formulation the Fresnel far-zone,
 # perfect-conductor and quasi-static limits, so NEC-2 is not taken as the judge below 0.08 λ
 # (docs/engine.md, "Limits"). The REFERENCES.md table (0.05 and 0.08 λ, average ground) still holds.
 LOWEST_LOSSY_WL = 0.08
