@@ -66,6 +66,34 @@ def wait_plan(page) -> None:
     assert outcome == "ok", outcome
 
 
+FITS_JS = """() => {
+  const out = [];
+  const doc = document.documentElement;
+  if (doc.scrollWidth > window.innerWidth + 1) out.push(`page is ${doc.scrollWidth}px wide in a ${window.innerWidth}px window`);
+  for (const svg of document.querySelectorAll('main section:not([hidden]) svg.plot')) {
+    const vb = svg.viewBox.baseVal;
+    const toSvg = svg.getScreenCTM().inverse();
+    for (const t of svg.querySelectorAll('text')) {
+      const b = t.getBBox();
+      if (!b.width) continue;
+      const m = toSvg.multiply(t.getScreenCTM());  // includes the label's own rotation
+      const pts = [[b.x, b.y], [b.x + b.width, b.y], [b.x, b.y + b.height], [b.x + b.width, b.y + b.height]]
+        .map(([x, y]) => new DOMPoint(x, y).matrixTransform(m));
+      const xs = pts.map((p) => p.x), ys = pts.map((p) => p.y);
+      if (Math.min(...xs) < -1 || Math.max(...xs) > vb.width + 1 || Math.min(...ys) < -1 || Math.max(...ys) > vb.height + 1)
+        out.push(`"${t.textContent}" leaves its drawing (${svg.dataset.testid || svg.getAttribute('aria-label')})`);
+    }
+  }
+  return out;
+}"""
+
+
+def assert_fits(page) -> None:
+    """Nothing wider than the screen, and every label of every drawing inside its drawing."""
+    problems = page.evaluate(FITS_JS)
+    assert not problems, problems
+
+
 def walk_sections(page, kind: str, *, touch: bool) -> None:
     """See the plan in every section, read the cut list, tick every pre-raise check, print the card."""
     go(page, "sky", touch=touch)
@@ -75,6 +103,7 @@ def walk_sections(page, kind: str, *, touch: bool) -> None:
     assert page.get_by_test_id("recommended-channel").inner_text().endswith("MHz")
     assert "sunrise" in page.get_by_test_id("sun-times").inner_text()
     shot(page, f"{kind}-sky")
+    assert_fits(page)
 
     go(page, "wire", touch=touch)
     cut = page.get_by_test_id("cut-list")
@@ -95,6 +124,7 @@ def walk_sections(page, kind: str, *, touch: bool) -> None:
     leg = legs[0]
     assert 0.3 * 0.02 * leg < metres(advice) < 3 * 0.02 * leg, (advice, leg)
     shot(page, f"{kind}-wire")
+    assert_fits(page)
 
     go(page, "mast", touch=touch)
     page.get_by_test_id("side-view").wait_for()
@@ -103,6 +133,7 @@ def walk_sections(page, kind: str, *, touch: bool) -> None:
     page.get_by_test_id("pattern-plot").wait_for(timeout=120_000)
     page.get_by_test_id("reach-plot").wait_for(timeout=120_000)
     shot(page, f"{kind}-mast")
+    assert_fits(page)
 
     go(page, "checks", touch=touch)
     ready = page.get_by_test_id("ready-state")
@@ -125,6 +156,7 @@ def walk_sections(page, kind: str, *, touch: bool) -> None:
     page.wait_for_selector("[data-testid=ready-state][data-ready='true']")
     assert "Ready to raise" in page.get_by_test_id("ready-state").inner_text()
     shot(page, f"{kind}-checks")
+    assert_fits(page)
 
     go(page, "card", touch=touch)
     card = page.get_by_test_id("field-card")
@@ -132,6 +164,7 @@ def walk_sections(page, kind: str, *, touch: bool) -> None:
     assert "Ready to raise" in card.inner_text()
     assert page.get_by_test_id("card-qr").is_visible()
     shot(page, f"{kind}-card")
+    assert_fits(page)
 
 
 def print_card(page, kind: str, fmt: str) -> bytes:
@@ -212,6 +245,7 @@ def test_phone_newcomer_walk(open_app, service):
     assert "T3" not in status.split("rope heights")[0], "the unsafe snag must not be used"
     assert page.get_by_test_id("site-sketch").locator("[data-testid=sketch-wire]").count() == 1
     shot(page, "phone-site")
+    assert_fits(page)
     WALK["id"] = page.evaluate("localStorage.getItem('fieldkit.last')")
 
     walk_sections(page, "phone", touch=True)
@@ -351,6 +385,7 @@ def test_laptop_walk(open_app, service):
         go(page, section, touch=False)
         page.wait_for_timeout(300)
         shot(page, f"laptop-night-{section}")
+        assert_fits(page)
     page.get_by_test_id("night-toggle").click()
 
 
@@ -396,8 +431,11 @@ def test_unit_switch_is_everywhere_and_stored(open_app, service):
     go(page, "site", touch=True)
     assert page.get_by_test_id("height-T1").input_value().endswith(" ft")
     shot(page, "phone-site-imperial")
+    assert_fits(page)
+    go(page, "wire", touch=True)
+    assert_fits(page)
     page.get_by_test_id("units-toggle").tap()
-    assert page.get_by_test_id("height-T1").input_value().endswith(" m")
+    assert page.get_by_test_id("leg-0").inner_text().endswith(" m")
 
 
 @pytest.mark.parametrize(

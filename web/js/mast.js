@@ -75,7 +75,7 @@ export function sideView(dep, o, units) {
   const sMax = personS + 2;
   const zMax = Math.max(...placed.map((p) => p.top ?? 0), ...wire.map((p) => p[2]), PERSON_M) * 1.12 + 1;
   const W = drawingWidth();
-  const m = { l: 34, r: 8, t: 10, b: 34 };
+  const m = { l: 38, r: 8, t: 10, b: 34 };
   const scale = (W - m.l - m.r) / (sMax - sMin);
   const H = m.t + m.b + zMax * scale;
   const X = (v) => m.l + (v - sMin) * scale;
@@ -87,7 +87,7 @@ export function sideView(dep, o, units) {
     svg.append(s("line", { x1: m.l, x2: W - m.r, y1: Z(zm), y2: Z(zm), class: "grid" }));
     svg.append(s("text", { x: m.l - 4, y: Z(zm) + 4, class: "tick", "text-anchor": "end", text: fmtTick(t) }));
   }
-  svg.append(s("text", { x: 10, y: m.t + (H - m.t - m.b) / 2, class: "axis-label", "text-anchor": "middle", transform: `rotate(-90 10 ${m.t + (H - m.t - m.b) / 2})`, text: `height (${lengthUnit(units)})` }));
+  svg.append(s("text", { x: 13, y: m.t + (H - m.t - m.b) / 2, class: "axis-label", "text-anchor": "middle", transform: `rotate(-90 13 ${m.t + (H - m.t - m.b) / 2})`, text: `height (${lengthUnit(units)})` }));
   svg.append(s("text", { x: m.l + (W - m.l - m.r) / 2, y: H - 4, class: "axis-label", "text-anchor": "middle", text: `along the span (${lengthUnit(units)}); grid lines are heights` }));
   for (const t of ticks(toDisplayLength(sMin, units), toDisplayLength(sMax, units), 5)) {
     const sm = t / toDisplayLength(1, units);
