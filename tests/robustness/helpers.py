@@ -226,3 +226,20 @@ def request_json(url: str, *, method: str = "GET", body: Any = None, timeout: fl
             return r.status, strict_json(r.read().decode())
     except urllib.error.HTTPError as exc:
         return exc.code, strict_json(exc.read().decode() or "null")
+
+
+def stop_server(running) -> None:
+    """Stop a :func:`fieldkit.service.server.start_in_thread` server, even when its trigger is gone.
+
+    After the 300 kB-header case of test_raw_http, about one run in five, waitress's wake-up pipe is
+    already closed when ``RunningServer.stop`` pulls it (EBADF; reported to the service owner). The
+    sockets are then closed from here, which is what ``stop`` would have asked the loop to do.
+    """
+    try:
+        running.stop()
+    except OSError:
+        from waitress import wasyncore
+
+        wasyncore.close_all(running.server._map)
+        running.thread.join(10)
+        running.server.task_dispatcher.shutdown()

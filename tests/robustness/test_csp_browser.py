@@ -17,6 +17,7 @@ import pytest
 
 from fieldkit.service import create_app
 from fieldkit.service.server import start_in_thread
+from tests.robustness.helpers import stop_server
 
 pytestmark = pytest.mark.browser
 playwright_api = pytest.importorskip("playwright.sync_api")
@@ -31,7 +32,7 @@ def server(tmp_path_factory):
     app = create_app({"DATA_DIR": tmp_path_factory.mktemp("data"), "DEMO": False})
     running = start_in_thread(app)
     yield running
-    running.stop()
+    stop_server(running)
 
 
 @pytest.fixture(scope="module")

@@ -21,7 +21,7 @@ from fieldkit import paths
 from fieldkit.service import create_app
 from fieldkit.service.security import KEY_COOKIE, KEY_HEADER, keyring
 from fieldkit.service.server import start_in_thread
-from tests.robustness.helpers import checklist_export
+from tests.robustness.helpers import checklist_export, stop_server
 
 SAMPLE = {"deployment_id": "dep-1", "item_id": "pre-item-0"}
 METHODS = ("GET", "HEAD", "POST", "PUT", "PATCH", "DELETE", "OPTIONS")
@@ -196,7 +196,7 @@ def traversal_server(tmp_path):
     app = create_app({"DATA_DIR": tmp_path / "data", "DEMO": False, "WEB_DIR": web})
     server = start_in_thread(app)
     yield server, tmp_path / "secret.txt"
-    server.stop()
+    stop_server(server)
 
 
 def test_static_route_never_reads_outside_web(traversal_server):
@@ -241,7 +241,7 @@ def test_real_web_dir_keeps_the_source_tree_closed(tmp_path):
                 assert marker not in body, (target, status)
                 assert status < 500, (target, status)
     finally:
-        server.stop()
+        stop_server(server)
 
 
 # -- no secret in any log ------------------------------------------------------------------------
@@ -305,7 +305,7 @@ def test_no_key_in_any_log_over_waitress(tmp_path):
         keys.append(keyring(app).key)
         assert keys[1] != keys[0]
     finally:
-        server.stop()
+        stop_server(server)
         root.removeHandler(collect)
         root.setLevel(old_level)
     text = "\n".join(collect.lines)

@@ -14,7 +14,7 @@ import pytest
 
 from fieldkit.service import create_app
 from fieldkit.service.server import start_in_thread
-from tests.robustness.helpers import ack, checklist_export, request_json
+from tests.robustness.helpers import ack, checklist_export, request_json, stop_server
 
 BODY = json.dumps({"done": True, "by": "AB", "at": "2026-12-01T14:05:00Z"})
 
@@ -41,7 +41,7 @@ def server(tmp_path):
     )
     assert status == 201, created
     yield running
-    running.stop()
+    stop_server(running)
 
 
 def _statuses(data: bytes) -> list[int]:

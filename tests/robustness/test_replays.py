@@ -18,7 +18,7 @@ import pytest
 
 from fieldkit.service import create_app
 from fieldkit.service.server import start_in_thread
-from tests.robustness.helpers import SMALL_PLAN, ack, checklist_export, request_json
+from tests.robustness.helpers import SMALL_PLAN, ack, checklist_export, request_json, stop_server
 
 
 def _put(client, deployment_id, item, body):
@@ -153,7 +153,7 @@ def test_concurrent_replays_over_waitress_make_one_record(tmp_path):
         with urllib.request.urlopen(f"{base}/api/deployments/{created['id']}/export") as r:
             assert r.status == 200
     finally:
-        server.stop()
+        stop_server(server)
 
 
 @pytest.mark.slow
