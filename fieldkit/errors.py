@@ -52,7 +52,7 @@ def check_keys(obj: Mapping[str, Any], field: str, allowed: Iterable[str]) -> No
     for key in obj:
         if key not in allowed:
             raise InputError(
-                join(field, key),
+                join(field, key) if key else join(field, '""'),
                 f"unknown field; expected one of: {', '.join(sorted(allowed))}",
                 value=key,
             )

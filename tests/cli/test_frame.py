@@ -124,6 +124,12 @@ def test_unknown_field_refused_by_name():
     assert "unknown field" in err.value.detail
 
 
+def test_empty_key_still_names_a_field():
+    with pytest.raises(InputError) as err:
+        check_keys({"": 1}, "", ["height_m"])
+    assert err.value.field == '""'
+
+
 def test_demo_files_are_json():
     for f in (ROOT / "assets" / "demo").glob("*.json"):
         json.loads(f.read_text())
