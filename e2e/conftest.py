@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import json
 import os
+import time
 import urllib.request
 from pathlib import Path
 from urllib.parse import urlsplit
@@ -85,6 +86,18 @@ def service(tmp_path_factory):
         os.environ.pop("FIELDKIT_HOME", None)
     else:
         os.environ["FIELDKIT_HOME"] = old
+
+
+@pytest.fixture(scope="module")
+def demo_planned(service):
+    """The demo deployment, once the service has planned it (it does so in the background at start)."""
+    deadline = time.monotonic() + PLAN_TIMEOUT_MS / 1000
+    while True:
+        demo = service.get("/api/deployments")["deployments"][0]
+        if demo["has_result"]:
+            return demo
+        assert time.monotonic() < deadline, "the service did not plan the demo in time"
+        time.sleep(1)
 
 
 @pytest.fixture(scope="session")

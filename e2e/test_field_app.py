@@ -367,11 +367,10 @@ def test_lan_phone_over_plain_http_keeps_ticks_in_local_storage(open_app, servic
         lan.stop()
 
 
-def test_laptop_walk(open_app, service):
+def test_laptop_walk(open_app, service, demo_planned):
     """The team lead on the laptop goes through the demo deployment the service loaded."""
     page = open_app("laptop")
-    demo = service.get("/api/deployments")["deployments"][0]
-    page.get_by_test_id("deployment-select").select_option(demo["id"])
+    page.get_by_test_id("deployment-select").select_option(demo_planned["id"])
     page.get_by_test_id("support-T4").wait_for()
     assert page.get_by_test_id("unsafe-T3").is_checked()
     wait_plan(page)
@@ -389,7 +388,7 @@ def test_laptop_walk(open_app, service):
     page.get_by_test_id("night-toggle").click()
 
 
-def test_offline_reload_on_the_laptop(open_app, service):
+def test_offline_reload_on_the_laptop(open_app, service, demo_planned):
     """With the service stopped, the laptop reopens the app and the deployment from the service worker."""
     page = open_app("laptop")
     page.wait_for_function("() => navigator.serviceWorker.controller !== null", timeout=30_000)
@@ -416,7 +415,7 @@ def test_offline_reload_on_the_laptop(open_app, service):
         service.start()
 
 
-def test_unit_switch_is_everywhere_and_stored(open_app, service):
+def test_unit_switch_is_everywhere_and_stored(open_app, service, demo_planned):
     page = open_app("phone", "#wire")
     leg_m = metres(page.get_by_test_id("leg-0").inner_text())
     assert page.get_by_test_id("leg-0").inner_text().endswith(" m")
@@ -472,7 +471,7 @@ def test_bad_entry_shows_the_error_at_the_field(open_app, service, testid, typed
     error.wait_for(state="hidden")
 
 
-def test_service_refusal_shows_at_the_field(open_app, service):
+def test_service_refusal_shows_at_the_field(open_app, service, demo_planned):
     """A rule only the service knows (a name of at most 200 characters) comes back at its field."""
     page = open_app("phone", "#site")
     page.get_by_test_id("place").locator("summary").tap()
@@ -526,7 +525,7 @@ def test_kit_entered_in_the_app_becomes_the_operators_kit(open_app, service):
     shot(page, "laptop-kit")
 
 
-def test_sounding_overrides_the_estimate(open_app, service):
+def test_sounding_overrides_the_estimate(open_app, service, demo_planned):
     """An observed foF2 typed into Sky replaces the modelled one and the channel day follows it."""
     page = open_app("phone", "#sky")
     page.get_by_test_id("channel-day").wait_for(timeout=120_000)

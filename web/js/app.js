@@ -215,6 +215,9 @@ async function openDeployment(id) {
     if (d.plan) {
       st.plan = d.plan;
       st.planFor = JSON.stringify(planInput(d.dep));
+    } else if (d.planning) {
+      st.planError = "The service is still planning this deployment: the plan appears here when it is done.";
+      waitForPlan(id);
     } else if (d.planError) st.planError = d.planError.detail ?? String(d.planError.error);
     await kvSet(`dep:${id}`, { dep: st.dep, revision: st.revision });
   } catch (e) {
@@ -250,6 +253,34 @@ async function openDeployment(id) {
   render();
 }
 app.openDeployment = openDeployment;
+
+const PLAN_POLL_MS = 3000;
+/** A deployment the service is planning in the background (the demo on first start): look again. */
+function waitForPlan(id) {
+  setTimeout(async () => {
+    const st = app.state;
+    if (st.id !== id || st.plan) return;
+    try {
+      const d = readDeployment(await call(() => api.getDeployment(id)));
+      if (st.id !== id) return;
+      if (d.plan) {
+        Object.assign(st, { plan: d.plan, planFor: JSON.stringify(planInput(d.dep)), planError: null, revision: d.revision, extra: {} });
+        await saveView();
+        await loadChecks();
+        render();
+        return;
+      }
+      if (!d.planning) {
+        st.planError = d.planError?.detail ?? "The service has no plan for this deployment: press Save and plan in Site.";
+        render();
+        return;
+      }
+    } catch {
+      /* unreachable for now: keep looking */
+    }
+    waitForPlan(id);
+  }, PLAN_POLL_MS);
+}
 
 async function createDeployment(name, kitFrom = "__service") {
   let kit = {};

@@ -28,6 +28,7 @@ export function readDeployment(data) {
     dep,
     plan: result && Array.isArray(result.options) ? result : null,
     planError: inner.plan_error ?? null,
+    planning: inner.planning === true,
     revision: inner.revision ?? null,
   };
 }
