@@ -53,7 +53,7 @@ format: $(VENV)/.test
 
 # The whole suite: lint, unit, reference checks, API, desktop window (under Xvfb), e2e in chromium.
 test: system-test-deps $(VENV)/.test lint
-	QT_API=pyside6 QTWEBENGINE_CHROMIUM_FLAGS=--no-sandbox \
+	FIELDKIT_NO_SKIPS=1 QT_API=pyside6 QTWEBENGINE_CHROMIUM_FLAGS=--no-sandbox \
 	  xvfb-run -a -s "-screen 0 1280x800x24" $(PY) -m pytest $(PYTEST_ARGS)
 
 # The quick loop: everything but the slow, browser and desktop tests.
