@@ -180,6 +180,17 @@ def page_count(pdf: bytes) -> int:
     return len(re.findall(rb"/Type\s*/Page(?!s)", pdf))
 
 
+def test_first_start_shows_the_demo_plan_when_it_arrives(open_app, service):
+    """On first start the service plans the demo in the background; the app, opened at once, shows
+    the cut list when the plan is stored, without a reload."""
+    page = open_app("laptop", "#wire")
+    planning = not service.get("/api/deployments")["deployments"][0]["has_result"]
+    page.get_by_test_id("leg-0").wait_for(timeout=PLAN_TIMEOUT_MS)
+    assert metres(page.get_by_test_id("leg-0").inner_text()) > 5
+    if planning:
+        shot(page, "laptop-wire-after-background-plan")
+
+
 def test_phone_newcomer_walk(open_app, service):
     """A newcomer on a phone enters the Larch Basin clearing from SCENARIO.md and gets to "ready"."""
     page = open_app("phone")
