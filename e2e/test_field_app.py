@@ -318,6 +318,11 @@ def test_pending_ticks_survive_a_service_restart(open_app, service):
     }
     assert all(again[i] == after[i]["acknowledgements"] for i in ids)
     page.get_by_test_id("pending-count").wait_for(state="detached")
+    # The history lists each replayed tick once, as recorded by the service.
+    page.get_by_test_id("history").locator("summary").tap()
+    page.get_by_test_id("history").locator("table").wait_for()
+    rows = page.get_by_test_id("history").locator("tbody tr").all_inner_texts()
+    assert sum("EF" in r and "recorded" in r for r in rows) == len(ids), rows
 
 
 UUID4 = re.compile(r"^[0-9a-f]{8}-[0-9a-f]{4}-4[0-9a-f]{3}-[89ab][0-9a-f]{3}-[0-9a-f]{12}$")
