@@ -111,6 +111,28 @@ class Mesh:
     half_sign: np.ndarray  # (2M,)
     feed_basis: int
     feed_point: np.ndarray = field(repr=False)
+    _memo: dict = field(default_factory=dict, repr=False, compare=False)
+
+    def shape_key(self) -> bytes:
+        """Key equal for meshes that differ only by a translation (a rope-height sweep).
+
+        Built from the segment end points relative to the first segment's start, the radii and the
+        basis layout; the cached free-space and ground-pair layouts of the solve use it.
+        """
+        if "shape_key" not in self._memo:
+            origin = self.start[0]
+            self._memo["shape_key"] = b"|".join(
+                np.ascontiguousarray(a).tobytes()
+                for a in (
+                    self.start - origin,
+                    self.end - origin,
+                    self.radius,
+                    self.half_seg,
+                    self.half_shape,
+                    self.half_sign,
+                )
+            )
+        return self._memo["shape_key"]
 
     @property
     def n_segments(self) -> int:

@@ -209,19 +209,7 @@ _FREE_SPACE_CACHE_SIZE = 32
 
 def _free_space_matrix_cached(mesh: Mesh, k: float, omega: float) -> np.ndarray:
     """Free-space matrix, reused for translated copies of the same wires (a rope-height sweep)."""
-    origin = mesh.start[0]
-    key = b"|".join(
-        np.ascontiguousarray(a).tobytes()
-        for a in (
-            np.array([k]),
-            mesh.start - origin,
-            mesh.end - origin,
-            mesh.radius,
-            mesh.half_seg,
-            mesh.half_shape,
-            mesh.half_sign,
-        )
-    )
+    key = np.float64(k).tobytes() + mesh.shape_key()
     z = _FREE_SPACE_CACHE.get(key)
     if z is None:
         z = free_space_matrix(mesh, k, omega)

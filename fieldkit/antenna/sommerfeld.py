@@ -33,6 +33,7 @@ References
 from __future__ import annotations
 
 import math
+from collections import OrderedDict
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -214,63 +215,196 @@ def coupling_pairs(obs, t_obs, src, t_src, im: ComplexImages) -> np.ndarray:
     return out
 
 
+def _field_sums(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) -> np.ndarray:
+    """The image sums (12, n) of the reflected E and H at paired (ρ², ζ) points.
+
+    Rows: Σa_h·kg, Σa_v·kg, Σa_d·G1, Σa_c·G1, Σ(a_h − a_d)·G2, Σ(a_h − a_d)·G2·z, Σa_v·G2·z,
+    Σa_v·G2·z², Σa_h·G1·z, Σa_h·G1, Σa_v·G1, Σa_c·G2 with kg = k²G + G1 and z = ζ + β.
+    """
+    z = zeta[None, :] + beta[:, None]  # (I, n)
+    r2 = z * z
+    r2 += rho2[None, :]
+    r = np.sqrt(r2)
+    inv2 = np.reciprocal(r2, out=r2)  # 1/R², in place (fewer temporaries)
+    jkr = r * (-1j * k)  # −jkR for the exponential, negated below
+    g = np.exp(jkr)
+    g /= r  # G = e^{−jkR}/R
+    jkr *= -1
+    g1 = jkr + 1
+    g1 *= g
+    g1 *= inv2
+    g1 *= -1  # G1 = −(1 + jkR) G/R²
+    g2 = jkr + 3
+    g2 *= jkr
+    g2 += 3
+    g2 *= g
+    g2 *= inv2
+    g2 *= inv2  # G2 = (3 + 3jkR + (jkR)²) G/R⁴
+    kg = g
+    kg *= k * k
+    kg += g1
+    g2z = g2 * z
+    g1z = g1 * z
+    a_hd = a_h - a_d
+    return np.concatenate(
+        [
+            np.stack([a_h, a_v]) @ kg,
+            np.stack([a_d, a_c, a_h, a_v]) @ g1,
+            np.stack([a_hd, a_c]) @ g2,
+            np.stack([a_hd, a_v]) @ g2z,
+            (a_v @ (g2z * z))[None],
+            (a_h @ g1z)[None],
+        ]
+    )
+
+
+FIELD_PAIRS_PER_BLOCK = 1024  # observation-source pairs per block of image sums (memory)
+
+
 def reflected_fields(obs, src, moment, im: ComplexImages) -> tuple[np.ndarray, np.ndarray]:
     """Reflected Ê and Ĥ vectors at obs (n, 3) from current elements at src with complex moments (m, 3).
 
     Returns 4π jωε0·E and 4π·H summed over the sources (multiply by 1/(4πjωε0) and 1/(4π)).
+    With x = (dx, dy, ζ + β) per image, horizontal moment p_h and vertical p_z (Sommerfeld's
+    potentials, see the module docstring), the image sums of :func:`_field_sums` give
+
+        Ê = S_H^kg p_h − S_D^G1 p_h + S_V^kg p_z ẑ + (p_h·x)(S_HD^G2 (dx, dy) + S_HD^G2z ẑ)
+            + p_z (S_V^G2z (dx, dy) + S_V^G2zz ẑ) + k² S_C^G1 (p_h·x) ẑ,
+        Ĥ = S_H^G1z (ẑ × p_h) + S_H^G1 (x_h × p_h) + (p_z S_V^G1 + (p_h·x) S_C^G2)(x_h × ẑ)
+            + S_C^G1 (p_h × ẑ),
+
+    where p_h·x and x_h = (dx, dy, 0) do not depend on the image. All images and pairs are
+    evaluated at once by matrix products over the image axis.
     """
     k = im.k0
     beta, a_h, a_v, a_d, a_c = _all_images(im)
-    d = np.empty((len(obs), len(src), 3))
-    d[..., 0] = obs[:, None, 0] - src[None, :, 0]
-    d[..., 1] = obs[:, None, 1] - src[None, :, 1]
-    zeta = obs[:, None, 2] + src[None, :, 2]
-    ph = moment.copy()
-    ph[:, 2] = 0
-    pz = moment[None, :, 2]
-    ez = np.array([0.0, 0.0, 1.0])
-    e_out = np.zeros((len(obs), 3), dtype=complex)
-    h_out = np.zeros((len(obs), 3), dtype=complex)
-    for i in range(len(beta)):
-        x = d.astype(complex)
-        x[..., 2] = zeta + beta[i]
-        r = np.sqrt(np.einsum("osi,osi->os", x, x))
-        g, g1, g2 = _kernels(k, r)
-        ph_x = np.einsum("si,osi->os", ph, x)
-        z = x[..., 2]
-        kg = k * k * g + g1
-        e = (a_h[i] * kg - a_d[i] * g1)[..., None] * ph[None]
-        e += (a_v[i] * kg * pz)[..., None] * ez
-        e += (g2 * ((a_h[i] - a_d[i]) * ph_x + a_v[i] * pz * z))[..., None] * x
-        e += (k * k * a_c[i] * g1 * ph_x)[..., None] * ez
-        e_out += e.sum(axis=1)
-        # H: ∇×(p_h S_H) + ∇×(ẑ p_z S_V) + ∇×(ẑ (p_h·∇) S_C)
-        grad_g = g1[..., None] * x
-        h = a_h[i] * np.cross(grad_g, ph[None])
-        h += a_v[i] * np.cross(grad_g * pz[..., None], ez)
-        h += a_c[i] * np.cross((g2 * ph_x)[..., None] * x + g1[..., None] * ph[None], ez)
-        h_out += h.sum(axis=1)
+    obs = np.asarray(obs, dtype=float)
+    src = np.asarray(src, dtype=float)
+    n_obs, n_src = len(obs), len(src)
+    px, py, pz = moment[:, 0], moment[:, 1], moment[:, 2]
+    e_out = np.zeros((n_obs, 3), dtype=complex)
+    h_out = np.zeros((n_obs, 3), dtype=complex)
+    step = max(1, FIELD_PAIRS_PER_BLOCK // max(n_src, 1))
+    for lo in range(0, n_obs, step):
+        o = obs[lo : lo + step]
+        dx = o[:, None, 0] - src[None, :, 0]  # (P, S)
+        dy = o[:, None, 1] - src[None, :, 1]
+        zeta = o[:, None, 2] + src[None, :, 2]
+        rho2 = dx * dx + dy * dy
+        shape = dx.shape
+        s = _field_sums(k, rho2.ravel(), zeta.ravel(), beta, a_h, a_v, a_d, a_c).reshape(
+            (12,) + shape
+        )
+        kgh, kgv, g1d, g1c, g1h, g1v, g2hd, g2c, g2z_hd, g2z_v, g2zz_v, g1z_h = s
+        ph_x = px * dx + py * dy  # (P, S), moments broadcast over the source axis
+        a = kgh - g1d
+        b = g2hd * ph_x + g2z_v * pz
+        e_out[lo : lo + step, 0] = (a * px + b * dx).sum(axis=1)
+        e_out[lo : lo + step, 1] = (a * py + b * dy).sum(axis=1)
+        e_out[lo : lo + step, 2] = (
+            kgv * pz + g2z_hd * ph_x + g2zz_v * pz + (k * k) * g1c * ph_x
+        ).sum(axis=1)
+        c = g1v * pz + g2c * ph_x  # coefficient of x_h × ẑ = (dy, −dx, 0)
+        h_out[lo : lo + step, 0] = (-g1z_h * py + c * dy + g1c * py).sum(axis=1)
+        h_out[lo : lo + step, 1] = (g1z_h * px - c * dx - g1c * px).sum(axis=1)
+        h_out[lo : lo + step, 2] = (g1h * (dx * py - dy * px)).sum(axis=1)
     return e_out, h_out
+
+
+@dataclass(frozen=True)
+class _PairLayout:
+    """What the reflected coupling of a mesh needs besides the images, for translated copies.
+
+    The coupling of two Gauss points depends on their horizontal separation, the sum of their
+    heights ζ and the tangents. A translated mesh (a rope-height sweep) keeps all of these except ζ,
+    which shifts by twice the height change: the distinct (ρ², ζ) pairs and the geometric factor of
+    each image sum are kept here with ζ relative to the first segment's start.
+    """
+
+    iu: np.ndarray  # upper-triangle pair indices (reciprocity)
+    ju: np.ndarray
+    rho2: np.ndarray  # distinct ρ² [m²]
+    zeta_rel: np.ndarray  # and ζ − 2 z_origin [m]
+    inverse: np.ndarray  # pair → distinct index
+    rows: np.ndarray  # indices of the image sums with a nonzero factor
+    factors: np.ndarray  # (len(rows), n_pairs) geometric factor of each image sum
+    k2_row: np.ndarray  # True where the factor is multiplied by k² (the C u0 term)
+    weights: np.ndarray  # basis_weights (N·Q, M)
+    n_points: int
+
+
+_LAYOUT_CACHE: OrderedDict[bytes, _PairLayout] = OrderedDict()
+_LAYOUT_CACHE_SIZE = 16
+
+
+def _pair_layout(mesh: Mesh) -> _PairLayout:
+    key = mesh.shape_key()
+    lay = _LAYOUT_CACHE.get(key)
+    if lay is not None:
+        _LAYOUT_CACHE.move_to_end(key)
+        return lay
+    u, w = gauss01(N_REFLECTED)
+    q = len(u)
+    origin = mesh.start[0]
+    pts = (
+        (mesh.start - origin)[:, None, :]
+        + u[None, :, None] * (mesh.length[:, None, None] * mesh.tangent[:, None, :])
+    ).reshape(-1, 3)
+    tan = np.repeat(mesh.tangent, q, axis=0)
+    iu, ju = np.triu_indices(len(pts))
+    obs, t_obs, src, t_src = pts[iu], tan[iu], pts[ju], tan[ju]
+    dx = obs[:, 0] - src[:, 0]
+    dy = obs[:, 1] - src[:, 1]
+    zeta = obs[:, 2] + src[:, 2]
+    px, py, pz = t_src.T
+    tx, ty, tz = t_obs.T
+    tp_h = tx * px + ty * py
+    ph_x = px * dx + py * dy
+    t_xy = tx * dx + ty * dy
+    rho2 = dx * dx + dy * dy
+    # the image sums depend on (ρ², ζ) only: evaluate them once per distinct pair (a straight or
+    # symmetric wire repeats the same separations many times)
+    key2 = np.round(rho2, 9) + 1j * np.round(zeta, 9)
+    uniq, inverse = np.unique(key2, return_inverse=True)
+    # factors of the sums of _image_sums, in its row order (see coupling_pairs)
+    factors = np.stack(
+        [tp_h, pz * tz, -tp_h, ph_x * tz, t_xy * ph_x, tz * ph_x, t_xy * pz, tz * pz]
+    )
+    rows = np.nonzero(np.any(factors != 0, axis=1))[0]
+    lay = _PairLayout(
+        iu=iu,
+        ju=ju,
+        rho2=uniq.real.copy(),
+        zeta_rel=uniq.imag.copy(),
+        inverse=inverse.ravel(),
+        rows=rows,
+        factors=factors[rows],
+        k2_row=rows == 3,
+        weights=basis_weights(mesh, u, w),
+        n_points=len(pts),
+    )
+    _LAYOUT_CACHE[key] = lay
+    if len(_LAYOUT_CACHE) > _LAYOUT_CACHE_SIZE:
+        _LAYOUT_CACHE.popitem(last=False)
+    return lay
 
 
 def lossy_ground_matrix(mesh: Mesh, ground: Ground, frequency_hz: float) -> np.ndarray:
     """Contribution of the lossy half-space to the moment-method matrix (M, M) [ohm]."""
     im = _images_for(ground, frequency_hz)
     omega = 2 * math.pi * frequency_hz
-    u, w = gauss01(N_REFLECTED)
-    q = len(u)
-    pts = (
-        mesh.start[:, None, :]
-        + u[None, :, None] * (mesh.length[:, None, None] * mesh.tangent[:, None, :])
-    ).reshape(-1, 3)
-    tan = np.repeat(mesh.tangent, q, axis=0)
+    k = im.k0
+    lay = _pair_layout(mesh)
+    beta, a_h, a_v, a_d, a_c = _all_images(im)
+    zeta = lay.zeta_rel + 2 * mesh.start[0, 2]
+    sums = _image_sums(k, lay.rho2, zeta, beta, a_h, a_v, a_d, a_c)[lay.rows]
+    coef = np.where(lay.k2_row, k * k, 1.0)[:, None] * lay.factors
+    vals = np.einsum("rp,rp->p", coef, sums[:, lay.inverse])
     # reciprocity: the coupling matrix is symmetric, so only the upper triangle is computed
-    iu, ju = np.triu_indices(len(pts))
-    t = np.empty((len(pts), len(pts)), dtype=complex)
-    vals = coupling_pairs(pts[iu], tan[iu], pts[ju], tan[ju], im)
-    t[iu, ju] = vals
-    t[ju, iu] = vals
-    c = basis_weights(mesh, u, w)
+    t = np.empty((lay.n_points, lay.n_points), dtype=complex)
+    t[lay.iu, lay.ju] = vals
+    t[lay.ju, lay.iu] = vals
+    c = lay.weights
     # Z_mn = −∫ f_m · E[f_n] with E = Ê / (4π jωε0)
     return -(c.T @ t @ c) / (4 * math.pi * 1j * omega * EPS0)
 
