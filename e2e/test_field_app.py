@@ -427,6 +427,10 @@ def test_offline_reload_on_the_laptop(open_app, service, demo_planned):
         go(page, "site", touch=False)
         page.get_by_test_id("support-T1").wait_for()
         shot(page, "laptop-offline-site")
+        # the in-app help says what happens to ticks made now
+        page.get_by_test_id("help-toggle").click()
+        help_text = page.get_by_test_id("help").inner_text()
+        assert "pending" in help_text and "local storage" in help_text
     finally:
         service.start()
 
