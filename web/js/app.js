@@ -468,7 +468,13 @@ app.loadChecks = loadChecks;
 /** Tick (or untick) an item: queue it on the device first, then try to send it. */
 app.tick = async (item, done, by) => {
   const st = app.state;
-  await queue.add({ deployment_id: st.id, item_id: item.id, done, by, at: new Date().toISOString() });
+  try {
+    await queue.add({ deployment_id: st.id, item_id: item.id, done, by, at: new Date().toISOString() });
+  } catch (e) {
+    showBanner(`This device could not keep the tick (${e.message}); nothing was sent. Free some browser storage and tick again.`);
+    app.refresh();
+    return;
+  }
   st.pending = await queue.list();
   overlayPending();
   await saveView();
