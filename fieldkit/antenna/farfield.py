@@ -34,24 +34,63 @@ def directions(elevation_deg: np.ndarray, azimuth_deg: np.ndarray) -> np.ndarray
     )
 
 
+RUN_TOLERANCE_M = (
+    1e-9  # centre spacings equal to this are one arithmetic run (phase error < 1e-6 rad)
+)
+
+
+def _runs(mesh: Mesh) -> list[tuple[int, int]] | None:
+    """Maximal runs [i, j) of equally spaced segment centres, or None if they are too fragmented.
+
+    Cached on the mesh. A straight wire cut into equal segments is one run; an inverted V two.
+    """
+    memo = mesh._memo
+    if "runs" not in memo:
+        c = mesh.centre
+        n = len(c)
+        d = np.diff(c, axis=0)
+        same = (np.abs(np.diff(d, axis=0)) <= RUN_TOLERANCE_M).all(axis=1).tolist()
+        runs, i = [], 0
+        while i < n:
+            end = min(i + 2, n)
+            while end < n and same[end - 2]:
+                end += 1
+            runs.append((i, end))
+            i = end
+        memo["runs"] = runs if len(runs) <= max(2, n // 8) else None
+    return memo["runs"]
+
+
+def _phases(mesh: Mesh, rhat: np.ndarray, k: float, z_sign: float) -> np.ndarray:
+    """e^{jk r̂·c'} for every direction and segment centre c' = (x, y, z_sign·z), (D, S).
+
+    Along an arithmetic run of centres the factor is a geometric sequence: its start and ratio are
+    exponentials and the rest complex products (relative rounding ~ S·1e-16).
+    """
+    c = mesh.centre * np.array([1.0, 1.0, z_sign])
+    runs = _runs(mesh)
+    if runs is None:
+        return np.exp(1j * k * (rhat @ c.T))
+    out = np.empty((len(rhat), len(c)), dtype=complex)
+    for i, j in runs:
+        out[:, i] = np.exp(1j * k * (rhat @ c[i]))
+        if j - i > 1:
+            out[:, i + 1 : j] = np.exp(1j * k * (rhat @ (c[i + 1] - c[i])))[:, None]
+            np.cumprod(out[:, i:j], axis=1, out=out[:, i:j])
+    return out
+
+
 def _radiation_vectors(mesh: Mesh, i_start, i_end, rhat, k, with_image: bool):
     """N(r̂) = Σ ∫ I(l) t e^{jk r̂·r(l)} dl for the wires and for their mirror image [A·m].
 
     Each segment (≤ λ/80 long) is integrated by its midpoint with the mean of its end currents;
-    the relative error is (kΔ)²/24 < 3e-4. The horizontal phase is shared by wire and image.
+    the relative error is (kΔ)²/24 < 3e-4.
     """
-    c = mesh.centre
     moment = (0.5 * (i_start + i_end) * mesh.length)[:, None] * mesh.tangent  # (S, 3)
-    horiz = np.exp(1j * k * (rhat[:, :2] @ c[:, :2].T))  # (D, S)
-    if len(rhat) > 64:  # a grid repeats its elevations: one vertical phase per elevation
-        rz, inverse = np.unique(rhat[:, 2], return_inverse=True)
-        vert = np.exp(1j * k * np.outer(rz, c[:, 2]))[inverse.ravel()]
-    else:
-        vert = np.exp(1j * k * np.outer(rhat[:, 2], c[:, 2]))
-    direct = (horiz * vert) @ moment
+    direct = _phases(mesh, rhat, k, 1.0) @ moment
     if not with_image:
         return direct, None
-    image = (horiz * vert.conj()) @ (moment * np.array([1.0, 1.0, -1.0]))
+    image = _phases(mesh, rhat, k, -1.0) @ (moment * np.array([1.0, 1.0, -1.0]))
     return direct, image
 
 

@@ -87,13 +87,13 @@ class Solution:
                 g = self.gain_dbi(el, az)
             else:  # the power-integration grid of solve() already covers the sky
                 el, az, g = coarse["elevation_deg"], coarse["azimuth_deg"], coarse["intensity_w_sr"]
-            ia, ie = np.unravel_index(np.argmax(g), g.shape)
+            ia, ie = _first_max(g)
             best_el, best_az = el[ie], az[ia]
             for step in (2.0, 0.4):  # local refinements around the best direction
                 el2 = np.clip(best_el + step * np.arange(-3, 4), lo, 90)
                 az2 = best_az + 1.5 * step * np.arange(-3, 4)
                 g2 = self.gain_dbi(el2, az2)
-                ja, je = np.unravel_index(np.argmax(g2), g2.shape)
+                ja, je = _first_max(g2)
                 best_el, best_az = el2[je], az2[ja]
             self._cache["max"] = (float(g2[ja, je]), float(best_el), float(best_az % 360))
         return self._cache["max"]
@@ -141,6 +141,16 @@ class Solution:
         return near_field(self, np.asarray(points_m, dtype=float).reshape(-1, 3))
 
 
+MAX_TIE_DB = 1e-9  # gains this close are a tie (symmetric directions), resolved by the first
+
+
+def _first_max(g: np.ndarray) -> tuple[int, int]:
+    """Index of the first entry within MAX_TIE_DB of the maximum (ties not left to rounding)."""
+    flat = np.ravel(g)
+    i = int(np.argmax(flat >= flat.max() - MAX_TIE_DB))
+    return tuple(int(x) for x in np.unravel_index(i, np.shape(g)))
+
+
 def _cut_beamwidths(sol: Solution, azimuths_deg: list[float]) -> list[float]:
     """−3 dB width of the lobe holding the maximum of vertical cuts through zenith [deg].
 
@@ -166,7 +176,7 @@ def _cut_beamwidths(sol: Solution, azimuths_deg: list[float]) -> list[float]:
     n = len(theta)
     rows = np.repeat(np.arange(n_cut), n)
     cut = gain(rows, np.tile(theta, n_cut)).reshape(n_cut, n)
-    peak = np.argmax(cut, axis=1)
+    peak = np.argmax(cut >= cut.max(axis=1, keepdims=True) - MAX_TIE_DB, axis=1)  # first of ties
     offsets = np.arange(-step, step + 0.01, 0.25)
     fine = np.clip(theta[peak][:, None] + offsets[None, :], lo, hi)
     level = (
@@ -218,6 +228,23 @@ def _free_space_matrix_cached(mesh: Mesh, k: float, omega: float) -> np.ndarray:
             _FREE_SPACE_CACHE.popitem(last=False)
     else:
         _FREE_SPACE_CACHE.move_to_end(key)
+    return z
+
+
+_LOADING_CACHE: OrderedDict[bytes, np.ndarray] = OrderedDict()
+
+
+def _loading_matrix_cached(mesh: Mesh, z_load: np.ndarray) -> np.ndarray:
+    """Series-loading matrix, reused for translated copies with the same loading (a sweep)."""
+    key = np.ascontiguousarray(z_load).tobytes() + mesh.shape_key()
+    z = _LOADING_CACHE.get(key)
+    if z is None:
+        z = loading_matrix(mesh, z_load)
+        _LOADING_CACHE[key] = z
+        if len(_LOADING_CACHE) > _FREE_SPACE_CACHE_SIZE:
+            _LOADING_CACHE.popitem(last=False)
+    else:
+        _LOADING_CACHE.move_to_end(key)
     return z
 
 
@@ -308,7 +335,7 @@ def _solve_one(
     zmat = _free_space_matrix_cached(mesh, k, omega) + _ground_matrix(mesh, ground, f, k, omega)
     z_load = _series_loading(antenna, mesh, f)
     if np.any(z_load != 0):
-        zmat = zmat + loading_matrix(mesh, z_load)
+        zmat = zmat + _loading_matrix_cached(mesh, z_load)
     rhs = np.zeros(mesh.n_basis, dtype=complex)
     rhs[mesh.feed_basis] = 1.0
     coeff = np.linalg.solve(zmat, rhs)

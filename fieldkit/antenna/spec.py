@@ -131,6 +131,12 @@ def _wire(value: Any, field: str) -> Wire:
 
 def _angles(value: Any, field: str, lo: float, hi: float) -> np.ndarray:
     items = array(value, field, min_items=1, max_items=3601)
+    # fast path: plain finite numbers within bounds (the usual case); anything else goes through
+    # `number` item by item so that the error names the item
+    if all(type(v) is float or type(v) is int for v in items):
+        arr = np.array(items, dtype=float)
+        if np.all(np.isfinite(arr)) and arr.min() >= lo and arr.max() <= hi:
+            return arr
     return np.array(
         [number(v, join(field, i), unit="deg", minimum=lo, maximum=hi) for i, v in enumerate(items)]
     )
