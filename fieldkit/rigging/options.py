@@ -42,6 +42,10 @@ from fieldkit.rigging.wire import KitWire
 
 # The insulated wire resonates a few percent shorter than bare wire; start the search there.
 FIRST_GUESS_FRACTION = 0.95
+# The screening leg only has to be near resonance: the NVIS pattern of a dipole half a percent off
+# resonance is the same to hundredths of a dB (the feed reactance changes, the current shape hardly),
+# and the exact cut is found again at the chosen heights.
+SCREEN_TOLERANCE = 5e-3
 
 
 class Refusal(Exception):
@@ -100,6 +104,7 @@ def _resonate_at(
     engine,
     warm: Warm,
     leg_guess_m: float | None = None,
+    screening: bool = False,
 ) -> Resonance:
     leg, sens = warm.guess(f)
     if leg_guess_m is not None:
@@ -113,9 +118,12 @@ def _resonate_at(
             frequency_hz=f,
             leg_guess_m=leg,
             sensitivity_guess_hz_per_m=sens,
+            **({"tolerance": SCREEN_TOLERANCE, "exact_slope": False} if screening else {}),
         )
     except (HangError, ResonanceError) as e:
         raise Refusal(str(e)) from None
+    if screening and f in warm.by_frequency:  # keep an exact resonance over a screening one
+        return res
     warm.by_frequency[f] = (res.leg_m, res.dfres_dleg_hz_per_m)
     warm.reactance_slope[f] = res.dx_df_ohm_per_hz
     return res
@@ -178,7 +186,9 @@ def screen(
         last = "cannot hang"
         for i in reversed(range(len(settings))):
             try:
-                seeded[i] = _resonate_at(layout, settings[i], f, kit, engine, warm).solution
+                seeded[i] = _resonate_at(
+                    layout, settings[i], f, kit, engine, warm, screening=True
+                ).solution
                 break
             except Refusal as e:
                 last = str(e)
