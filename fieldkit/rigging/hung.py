@@ -10,7 +10,7 @@ droops outward and down toward a stake (``DROOP_ANGLE_DEG``).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -25,7 +25,9 @@ from fieldkit.rigging.catenary import (
 # A drooping end runs outward and down at 45° to its stake: far enough from the trunk to keep the
 # wire off the bark, steep enough to keep the stake close (common practice, no single source).
 DROOP_ANGLE_DEG = 45.0
-SAMPLES_PER_LEG = 6  # polyline points per leg: sag of a tensioned leg is smooth (checked in tests)
+# A bend of more than this between two chords is a corner of the hang (the feedpoint load, a droop
+# at a support, an inverted-V apex) and stays a vertex when the polyline is re-cut.
+CORNER_DEG = 5.0
 
 
 @dataclass(frozen=True)
@@ -313,4 +315,40 @@ def truncate_about_feed(hung: HungDipole, leg_m: float) -> HungDipole:
         top_load_n=hung.top_load_n,
         stake_distance_m=hung.stake_distance_m,
         notes=hung.notes,
+    )
+
+
+def recut(hung: HungDipole, *, max_chord_m: float) -> HungDipole:
+    """The same hung wire with its polyline re-cut into equal chords no longer than ``max_chord_m``.
+
+    Between corners (the feedpoint, a droop at a support, see ``CORNER_DEG``) the new vertices are
+    spaced evenly along the old polyline, which already follows the catenary to within a centimetre.
+    The engine cuts every straight piece into at least one segment; pieces just under its segment
+    length make one segment each, so the wire gets about as many segments as its length needs
+    instead of several short ones per catenary sample.
+    """
+    pts = np.asarray(hung.points_m, dtype=float)
+    d = np.diff(pts, axis=0)
+    lengths = np.linalg.norm(d, axis=1)
+    cum = np.concatenate([[0.0], np.cumsum(lengths)])
+    keep = {0, len(pts) - 1, int(np.argmin(np.abs(cum - hung.feed_distance_m)))}
+    unit = d / np.maximum(lengths, 1e-12)[:, None]
+    cos = np.einsum("ij,ij->i", unit[:-1], unit[1:])
+    keep |= {i + 1 for i in np.flatnonzero(cos < math.cos(math.radians(CORNER_DEG)))}
+    corners = sorted(keep)
+    out = [pts[:1]]
+    for i, j in zip(corners[:-1], corners[1:], strict=True):
+        n = max(1, math.ceil((cum[j] - cum[i]) / max_chord_m - 1e-9))
+        s = np.linspace(cum[i], cum[j], n + 1)[1:]
+        out.append(np.stack([np.interp(s, cum[i : j + 1], pts[i : j + 1, k]) for k in range(3)], 1))
+    new = np.vstack(out)
+    feed = corners.index(int(np.argmin(np.abs(cum - hung.feed_distance_m))))
+    feed_at = sum(
+        max(1, math.ceil((cum[j] - cum[i]) / max_chord_m - 1e-9))
+        for i, j in zip(corners[:feed], corners[1 : feed + 1], strict=True)
+    )
+    return replace(
+        hung,
+        points_m=new,
+        feed_distance_m=float(np.linalg.norm(np.diff(new[: feed_at + 1], axis=0), axis=1).sum()),
     )

@@ -16,6 +16,8 @@ import numpy as np
 
 from fieldkit.rigging.catenary import STANDARD_GRAVITY_M_S2, HangError
 from fieldkit.rigging.cut import (
+    CURVE_OFFSETS,
+    SPEED_OF_LIGHT_M_S,
     EngineCounter,
     Resonance,
     ResonanceError,
@@ -34,7 +36,7 @@ from fieldkit.rigging.heights import (
     recommend,
     sweep_json,
 )
-from fieldkit.rigging.hung import HungDipole
+from fieldkit.rigging.hung import HungDipole, recut
 from fieldkit.rigging.layouts import Layout, Mechanics
 from fieldkit.rigging.mast import mast_json
 from fieldkit.rigging.supports import halyard_rope_m
@@ -92,6 +94,24 @@ class Warm:
         return FIRST_GUESS_FRACTION * rule_of_thumb_leg_m(f), None
 
 
+def max_chord_m(frequency_hz: float) -> float | None:
+    """Longest polyline piece that the engine cuts into one segment at the highest frequency solved
+    for a channel (the top of the SWR curve) [m]; None when the engine does not say its segment rule."""
+    try:
+        from fieldkit.antenna.geometry import SEGMENTS_PER_WAVELENGTH
+    except ImportError:
+        return None
+    f_top = frequency_hz * (1 + max(CURVE_OFFSETS))
+    return SPEED_OF_LIGHT_M_S / f_top / SEGMENTS_PER_WAVELENGTH * (1 - 1e-3)
+
+
+def _build(layout: Layout, setting: dict[str, float], leg_m: float, f: float) -> HungDipole:
+    """The layout hung at this leg, its polyline cut to the engine's segment length at channel f."""
+    hung = layout.build(setting, leg_m)
+    chord = max_chord_m(f)
+    return hung if chord is None else recut(hung, max_chord_m=chord)
+
+
 def _points(hung: HungDipole) -> list[list[float]]:
     return [[round(float(v), 3) for v in p] for p in hung.points_m]
 
@@ -111,7 +131,7 @@ def _resonate_at(
         leg = leg_guess_m
     try:
         res = resonate(
-            lambda L: layout.build(setting, L),
+            lambda L: _build(layout, setting, L, f),
             engine=engine,
             wire=kit.wire,
             ground=kit.ground,
@@ -210,7 +230,7 @@ def screen(
         ):
             break
         try:
-            hung = layout.build(s, leg)
+            hung = _build(layout, s, leg, f)
         except HangError as e:
             last = str(e)
             continue
