@@ -7,13 +7,19 @@ NEC-2: one Python process running PyNEC, 41 segments, Sommerfeld ground (GN 2), 
 Both are timed as whole processes (start-up included) in the same run. Target: fieldkit ≤ 1/5 of
 NEC-2's wall time, peak memory < 300 MB.
 
+Before timing, fieldkit's bytecode is compiled (as a pip install does; with PYTHONDONTWRITEBYTECODE
+set, every run would otherwise recompile each edited module) and each side runs once untimed, so
+both start from warm caches. The load average is printed beside the figures.
+
 Run: ``.venv/bin/python benchmarks/bench_height_sweep.py [--repeat N]``
 """
 
 from __future__ import annotations
 
 import argparse
+import importlib.util
 import json
+import os
 import resource
 import shutil
 import subprocess
@@ -103,13 +109,16 @@ def main() -> None:
     args = ap.parse_args()
     payload = json.dumps(specs())
     cmd = fieldkit_command()
+    package = Path(importlib.util.find_spec("fieldkit").origin).parent
+    subprocess.run([sys.executable, "-m", "compileall", "-q", str(package)], check=True)
+    run(cmd, payload)  # warm-up, untimed
+    # RUSAGE_CHILDREN maxrss is that of the largest child so far: read it before NEC-2 runs
+    fk_rss_mb = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss / 1024
+    run([sys.executable, "-c", NEC_SCRIPT])
     fk_runs, nec_runs = [], []
-    fk_rss_mb = 0.0
     for _ in range(args.repeat):  # alternate the two so that machine load hits both alike
         wall, cpu, out = run(cmd, payload)
         fk_runs.append((wall, cpu))
-        if len(fk_runs) == 1:  # RUSAGE_CHILDREN maxrss: the largest child so far
-            fk_rss_mb = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss / 1024
         wall, cpu, nec_out = run([sys.executable, "-c", NEC_SCRIPT])
         nec_runs.append((wall, cpu))
     results = json.loads(out)
@@ -128,6 +137,7 @@ def main() -> None:
         f"ratio fieldkit/NEC-2: wall {fk_wall / nec_wall:.3f}, CPU {fk_cpu / nec_cpu:.3f} (target ≤ 0.2)"
     )
     print(f"fieldkit peak memory {fk_rss_mb:.0f} MB (target < 300 MB)")
+    print("load average (1, 5, 15 min): " + ", ".join(f"{x:.2f}" for x in os.getloadavg()))
 
 
 if __name__ == "__main__":
