@@ -16,6 +16,7 @@ References
 from __future__ import annotations
 
 import math
+from collections import OrderedDict
 
 import numpy as np
 
@@ -108,6 +109,39 @@ def fresnel(
     return gv, gh
 
 
+_DIRECTION_CACHE: OrderedDict[bytes, tuple] = OrderedDict()
+_DIRECTION_CACHE_SIZE = 64
+
+
+def _direction_terms(r: np.ndarray, ground: Ground, frequency_hz: float, with_image: bool):
+    """rz, sinθ, cosφ, sinφ, the Fresnel Γv, Γh and the below-horizon mask (or None) of directions.
+
+    Cached on the directions and the ground's permittivity: a sweep asks for the same directions
+    (pattern, zenith, power-integration grid) of every spec.
+    """
+    eps = ground.complex_permittivity(frequency_hz) if ground.kind == "lossy" else 0j
+    key = r.tobytes() + np.array([with_image, ground.kind == "perfect", eps]).tobytes()
+    terms = _DIRECTION_CACHE.get(key)
+    if terms is not None:
+        _DIRECTION_CACHE.move_to_end(key)
+        return terms
+    rx, ry, rz = r[:, 0].copy(), r[:, 1], r[:, 2].copy()
+    sin_t = np.sqrt(np.maximum(0.0, 1 - rz * rz))
+    phi = np.arctan2(ry, rx)
+    cos_p, sin_p = np.cos(phi), np.sin(phi)
+    gv = gh = below = None
+    if with_image:
+        gv, gh = fresnel(ground, frequency_hz, rz)
+        below = rz < 0
+        if not below.any():
+            below = None
+    terms = (rz, sin_t, cos_p, sin_p, gv, gh, below)
+    _DIRECTION_CACHE[key] = terms
+    if len(_DIRECTION_CACHE) > _DIRECTION_CACHE_SIZE:
+        _DIRECTION_CACHE.popitem(last=False)
+    return terms
+
+
 def far_field(
     mesh: Mesh, i_start, i_end, ground: Ground, frequency_hz: float, rhat: np.ndarray
 ) -> tuple[np.ndarray, np.ndarray]:
@@ -115,11 +149,9 @@ def far_field(
     k = 2 * math.pi * frequency_hz / 299_792_458.0
     shape = rhat.shape[:-1]
     r = rhat.reshape(-1, 3)
-    rx, ry, rz = r[:, 0], r[:, 1], r[:, 2]
-    sin_t = np.sqrt(np.maximum(0.0, 1 - rz * rz))
-    phi = np.arctan2(ry, rx)
-    cos_p, sin_p = np.cos(phi), np.sin(phi)
-    n_dir, n_img = _radiation_vectors(mesh, i_start, i_end, r, k, ground.kind != "free-space")
+    with_image = ground.kind != "free-space"
+    rz, sin_t, cos_p, sin_p, gv, gh, below = _direction_terms(r, ground, frequency_hz, with_image)
+    n_dir, n_img = _radiation_vectors(mesh, i_start, i_end, r, k, with_image)
 
     def theta_phi(n):  # components along θ̂ = (cosθ cosφ, cosθ sinφ, −sinθ) and φ̂ = (−sinφ, cosφ, 0)
         horiz = n[:, 0] * cos_p + n[:, 1] * sin_p
@@ -128,10 +160,11 @@ def far_field(
     n_th, n_ph = theta_phi(n_dir)
     if n_img is not None:
         i_th, i_ph = theta_phi(n_img)
-        gv, gh = fresnel(ground, frequency_hz, rz)
-        above = rz >= 0
-        n_th = np.where(above, n_th - gv * i_th, 0)
-        n_ph = np.where(above, n_ph + gh * i_ph, 0)
+        n_th = n_th - gv * i_th
+        n_ph = n_ph + gh * i_ph
+        if below is not None:  # over ground, no field below the horizon
+            n_th = np.where(below, 0, n_th)
+            n_ph = np.where(below, 0, n_ph)
     factor = -1j * 2 * math.pi * frequency_hz * MU0 / (4 * math.pi)
     return (factor * n_th).reshape(shape), (factor * n_ph).reshape(shape)
 
