@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import copy
 import json
+import os
 import sys
 import time
 from pathlib import Path
@@ -69,10 +70,13 @@ def main() -> None:
     no_sky.pop("sky")
     t_nosky, _ = timed_plan(no_sky)
     e = out["engine"]
+    load = ", ".join(f"{v:.2f}" for v in os.getloadavg())
+    print(f"load average {load} (the figures move with it: the machine is shared)")
     print(f"NEC-2 47-height sweep (PyNEC, GN 2, 41 segments): {t_nec:.2f} s")
     print(
         f"demo plan, whole (sky + rigging + safety): first call {t_cold:.2f} s, warm {t_warm:.2f} s — "
-        f"{e['solve_calls']} engine calls, {e['frequencies_solved']} frequency solves, "
+        f"{e['solve_calls']} engine calls, {e['frequencies_solved']} frequency solves "
+        f"({e.get('solutions_reused', 0)} reused), "
         f"{len(out['options'])} options in full, {len(out['more'])} more listed, {len(out['refused'])} refused"
     )
     print("  phases (warm): " + ", ".join(f"{k} {v:.2f}" for k, v in e.items() if k.endswith("_s")))

@@ -223,6 +223,7 @@ def plan(spec: dict) -> dict:
         "engine": {
             "solve_calls": engine.calls,
             "frequencies_solved": engine.frequencies,
+            "solutions_reused": engine.reused,
             **{k: round(v, 3) for k, v in times.items()},
             "total_seconds": round(time.perf_counter() - t0, 3),
         },
