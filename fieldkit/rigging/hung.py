@@ -335,18 +335,17 @@ def recut(hung: HungDipole, *, max_chord_m: float) -> HungDipole:
     unit = d / np.maximum(lengths, 1e-12)[:, None]
     cos = np.einsum("ij,ij->i", unit[:-1], unit[1:])
     keep |= {i + 1 for i in np.flatnonzero(cos < math.cos(math.radians(CORNER_DEG)))}
+    feed_vertex = pts[int(np.argmin(np.abs(cum - hung.feed_distance_m)))]
     corners = sorted(keep)
     out = [pts[:1]]
     for i, j in zip(corners[:-1], corners[1:], strict=True):
+        if cum[j] - cum[i] < 1e-9:  # a corner repeated (zero-length piece): nothing to cut
+            continue
         n = max(1, math.ceil((cum[j] - cum[i]) / max_chord_m - 1e-9))
         s = np.linspace(cum[i], cum[j], n + 1)[1:]
         out.append(np.stack([np.interp(s, cum[i : j + 1], pts[i : j + 1, k]) for k in range(3)], 1))
     new = np.vstack(out)
-    feed = corners.index(int(np.argmin(np.abs(cum - hung.feed_distance_m))))
-    feed_at = sum(
-        max(1, math.ceil((cum[j] - cum[i]) / max_chord_m - 1e-9))
-        for i, j in zip(corners[:feed], corners[1 : feed + 1], strict=True)
-    )
+    feed_at = int(np.argmin(np.linalg.norm(new - feed_vertex, axis=1)))
     return replace(
         hung,
         points_m=new,
