@@ -63,12 +63,15 @@ def _runs(mesh: Mesh) -> list[tuple[int, int]] | None:
 
 
 def _phases(mesh: Mesh, rhat: np.ndarray, k: float, z_sign: float) -> np.ndarray:
-    """e^{jk r̂·c'} for every direction and segment centre c' = (x, y, z_sign·z), (D, S).
+    """e^{jk r̂·c'} for every direction and segment centre c' = (x, y, z_sign·z) − o', (D, S).
 
-    Along an arithmetic run of centres the factor is a geometric sequence: its start and ratio are
+    Centres are taken relative to the mesh origin o (its first segment's start, mirrored with c),
+    so that translated copies of the wires share them (see :func:`_radiation_vectors`). Along an
+    arithmetic run of centres the factor is a geometric sequence: its start and ratio are
     exponentials and the rest complex products (relative rounding ~ S·1e-16).
     """
-    c = mesh.centre * np.array([1.0, 1.0, z_sign])
+    sign = np.array([1.0, 1.0, z_sign])
+    c = (mesh.centre - mesh.start[0]) * sign
     runs = _runs(mesh)
     if runs is None:
         return np.exp(1j * k * (rhat @ c.T))
@@ -81,17 +84,47 @@ def _phases(mesh: Mesh, rhat: np.ndarray, k: float, z_sign: float) -> np.ndarray
     return out
 
 
+_PHASE_CACHE: OrderedDict[bytes, tuple] = OrderedDict()
+_PHASE_CACHE_SIZE = 16
+_PHASE_CACHE_MAX_ELEMENTS = 200_000  # directions × segments of one cached entry (≤ 6 MB)
+
+
+def _relative_phases(mesh: Mesh, rhat: np.ndarray, k: float, with_image: bool) -> tuple:
+    """:func:`_phases` of the wires and of their image, reused for a repeated set of directions."""
+    cacheable = len(rhat) * mesh.n_segments <= _PHASE_CACHE_MAX_ELEMENTS
+    if cacheable:
+        key = mesh.shape_key() + np.array([k, float(with_image)]).tobytes() + rhat.tobytes()
+        hit = _PHASE_CACHE.get(key)
+        if hit is not None:
+            _PHASE_CACHE.move_to_end(key)
+            return hit
+    value = (
+        _phases(mesh, rhat, k, 1.0),
+        _phases(mesh, rhat, k, -1.0) if with_image else None,
+    )
+    if cacheable:
+        _PHASE_CACHE[key] = value
+        if len(_PHASE_CACHE) > _PHASE_CACHE_SIZE:
+            _PHASE_CACHE.popitem(last=False)
+    return value
+
+
 def _radiation_vectors(mesh: Mesh, i_start, i_end, rhat, k, with_image: bool):
     """N(r̂) = Σ ∫ I(l) t e^{jk r̂·r(l)} dl for the wires and for their mirror image [A·m].
 
     Each segment (≤ λ/80 long) is integrated by its midpoint with the mean of its end currents;
-    the relative error is (kΔ)²/24 < 3e-4.
+    the relative error is (kΔ)²/24 < 3e-4. The phases are relative to the mesh origin o and the
+    factor e^{jk r̂·o} is applied to the sums, so a translated copy of the wires (a rope-height
+    sweep) reuses them.
     """
     moment = (0.5 * (i_start + i_end) * mesh.length)[:, None] * mesh.tangent  # (S, 3)
-    direct = _phases(mesh, rhat, k, 1.0) @ moment
+    rel_direct, rel_image = _relative_phases(mesh, rhat, k, with_image)
+    origin = mesh.start[0]
+    direct = (rel_direct @ moment) * np.exp(1j * k * (rhat @ origin))[:, None]
     if not with_image:
         return direct, None
-    image = _phases(mesh, rhat, k, -1.0) @ (moment * np.array([1.0, 1.0, -1.0]))
+    mirror = np.array([1.0, 1.0, -1.0])
+    image = (rel_image @ (moment * mirror)) * np.exp(1j * k * (rhat @ (origin * mirror)))[:, None]
     return direct, image
 
 
