@@ -272,7 +272,58 @@ def _check_overlaps(antenna: Antenna) -> None:
 def checked_mesh(antenna: Antenna, ground: Ground, max_frequency_hz: float) -> Mesh:
     """:func:`check_antenna` then :func:`build_mesh`, cached (a spec is checked, then solved)."""
     check_antenna(antenna, ground)
-    return build_mesh(antenna, max_frequency_hz=max_frequency_hz)
+    return _translated_mesh(antenna, max_frequency_hz)
+
+
+_RELATIVE_MESHES: dict[bytes, Mesh] = {}
+_RELATIVE_MESHES_SIZE = 32
+
+
+def _translated_mesh(antenna: Antenna, max_frequency_hz: float) -> Mesh:
+    """:func:`build_mesh`, reusing the mesh of a translated copy of the same wires (a sweep).
+
+    Segmentation depends only on the wires relative to each other, so the mesh is built once with
+    the first point of wire 0 at the origin and then shifted.
+    """
+    origin = antenna.wires[0].points_m[0]
+    key = b"|".join(
+        [np.array([max_frequency_hz, antenna.feed.wire, antenna.feed.distance_m]).tobytes()]
+        + [
+            np.ascontiguousarray(w.points_m - origin).tobytes() + np.float64(w.radius_m).tobytes()
+            for w in antenna.wires
+        ]
+    )
+    rel = _RELATIVE_MESHES.get(key)
+    if rel is None:
+        shifted = Antenna(
+            wires=tuple(
+                Wire(
+                    points_m=w.points_m - origin,
+                    radius_m=w.radius_m,
+                    conductor=w.conductor,
+                    insulation=w.insulation,
+                )
+                for w in antenna.wires
+            ),
+            feed=antenna.feed,
+        )
+        rel = build_mesh(shifted, max_frequency_hz=max_frequency_hz)
+        if len(_RELATIVE_MESHES) >= _RELATIVE_MESHES_SIZE:
+            _RELATIVE_MESHES.pop(next(iter(_RELATIVE_MESHES)))
+        _RELATIVE_MESHES[key] = rel
+    return Mesh(
+        start=rel.start + origin,
+        end=rel.end + origin,
+        length=rel.length,
+        tangent=rel.tangent,
+        radius=rel.radius,
+        wire=rel.wire,
+        half_seg=rel.half_seg,
+        half_shape=rel.half_shape,
+        half_sign=rel.half_sign,
+        feed_basis=rel.feed_basis,
+        feed_point=rel.feed_point + origin,
+    )
 
 
 def build_mesh(antenna: Antenna, *, max_frequency_hz: float) -> Mesh:
