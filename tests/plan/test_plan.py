@@ -154,12 +154,34 @@ def _bad(path, value):
         (("kit", "masts"), [{"id": "M1", "height_m": 9}], "kit.masts[0].top_load_kg"),
         (("retrim",), {"frequency_mhz": 7.1}, "retrim.dip_mhz"),
         (("retrim",), {"frequency_mhz": 5.0, "dip_mhz": 5.1}, "retrim.frequency_mhz"),
+        (("schedule",), {"start_utc": "-1:00", "end_utc": "20:00"}, "schedule.start_utc"),
+        (("schedule",), {"start_utc": "16:00", "end_utc": "24:30"}, "schedule.end_utc"),
+        (("schedule",), {"start_utc": 16, "end_utc": "20:00"}, "schedule.start_utc"),
     ],
 )
 def test_bad_input_names_the_field(path, value, field):
     with pytest.raises(InputError) as e:
         plan(_bad(path, value))
     assert e.value.field == field
+
+
+def test_too_many_usable_supports_is_refused_before_any_work():
+    # the bound that keeps one plan within about 30 s (20 supports measured 70 s)
+    s = _bad(("form",), "flat")
+    s["site"]["supports"] = [
+        {"id": f"S{i}", "kind": "tree", "height_m": 10.0, "x_m": 5.0 * i, "y_m": 0.0}
+        for i in range(11)
+    ]
+    with pytest.raises(InputError) as e:
+        plan(s)
+    assert e.value.field == "site.supports"
+    assert "at most 10" in e.value.detail and "mark them unsafe" in e.value.detail
+    s["site"]["supports"][0]["unsafe"] = (
+        True  # ten usable: accepted (the unsafe one is not counted)
+    )
+    from fieldkit.planning.inputs import parse_plan
+
+    assert len([x for x in parse_plan(s).supports if not x.unsafe]) == 10
 
 
 def test_ignored_context_fields_are_accepted():
