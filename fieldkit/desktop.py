@@ -111,8 +111,10 @@ def run(
     reason = gui_unavailable()
     if reason is None:
         from fieldkit.service import create_app
+        from fieldkit.service.layers import warm_up
 
         app = create_app({"DATA_DIR": data_dir, "LAN_SWITCH": True})
+        warm_up()
         return open_window(app, on_loaded=on_loaded, out=out)
     print(f"No desktop window: {reason}.", file=out)
     print("Serving instead; open the address below in a browser on this computer.", file=out)

@@ -56,3 +56,24 @@ def call_layer(module: str, name: str, *args: Any) -> Any:
         if _own_module(exc):
             raise LayerUnavailable(module, name, exc.name) from None
         raise
+
+
+def warm_up() -> None:
+    """Load the calculators in a background thread, so the first plan after a start is not slow.
+
+    Importing the plan chain and PyIRI's coefficient reader costs 1-2 s of CPU; done at start, the
+    first request from the window or a phone does not pay it. Failures are left for the request
+    itself to report.
+    """
+
+    def load() -> None:
+        try:
+            importlib.import_module("fieldkit.plan")
+            iri = importlib.import_module("fieldkit.sky.iri")
+            iri._library()
+        except Exception:  # noqa: BLE001 - the request that needs the layer reports it properly
+            pass
+
+    import threading
+
+    threading.Thread(target=load, name="fieldkit-warm-up", daemon=True).start()

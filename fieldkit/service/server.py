@@ -23,6 +23,7 @@ from waitress.server import create_server
 from fieldkit.errors import InputError
 from fieldkit.service.app import create_app
 from fieldkit.service.lan import access_url, lan_address, qr_terminal
+from fieldkit.service.layers import warm_up
 from fieldkit.store.db import checkpoint_and_close
 
 log = logging.getLogger("fieldkit.service")
@@ -58,7 +59,8 @@ class RunningServer:
     def stop(self, timeout_s: float = 10.0) -> None:
         server = self.server
         # Close every socket from inside the server's own loop: the loop ends when its map is empty.
-        server.trigger.pull_trigger(lambda: wasyncore.close_all(server._map))
+        # ignore_all: a socket a client already broke (a refused oversized header) must not stop the stop
+        server.trigger.pull_trigger(lambda: wasyncore.close_all(server._map, ignore_all=True))
         self.thread.join(timeout_s)
         server.task_dispatcher.shutdown()
 
@@ -146,6 +148,7 @@ def serve(
         print(f"{host} is not a loopback address: LAN mode with an access key is on.", file=out)
     _check_port(host, port)  # before the app exists: a busy port starts nothing
     app = create_app({"DATA_DIR": data_dir, "LAN": lan})
+    warm_up()
     try:
         server = create_server(app, host=host, port=port, **WAITRESS_OPTIONS)
     except OSError as exc:
