@@ -37,9 +37,33 @@ N_SOURCE = 4  # Gauss points for the smooth part on the source segment
 
 @lru_cache(maxsize=16)
 def gauss01(n: int) -> tuple[np.ndarray, np.ndarray]:
-    """Gauss–Legendre nodes and weights on [0, 1] (cached; treat as read-only)."""
-    x, w = np.polynomial.legendre.leggauss(n)
+    """Gauss–Legendre nodes and weights on [0, 1] (cached; treat as read-only).
+
+    Roots of the Legendre polynomial P_n by Newton's method from Tricomi's first guess
+    cos(π(i − 1/4)/(n + 1/2)), P_n and P_n′ by the three-term recurrence, weights
+    2/((1 − x²) P_n′(x)²) (Abramowitz & Stegun 25.4.29; Press et al., *Numerical Recipes* 3rd ed.
+    §4.6). Written out here so that the engine does not import ``numpy.polynomial`` (a few ms of
+    every command's start-up); it matches ``numpy.polynomial.legendre.leggauss`` to 1e-15.
+    """
+    x = np.cos(math.pi * (np.arange(1, n + 1) - 0.25) / (n + 0.5))
+    for _ in range(100):
+        p, dp = _legendre(n, x)
+        step = p / dp
+        x = x - step
+        if np.max(np.abs(step)) < 1e-15:
+            break
+    _, dp = _legendre(n, x)
+    w = 2 / ((1 - x * x) * dp * dp)
+    x, w = x[::-1], w[::-1]  # ascending
     return 0.5 * (x + 1), 0.5 * w
+
+
+def _legendre(n: int, x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """P_n(x) and P_n′(x) by the recurrence j P_j = (2j − 1) x P_{j−1} − (j − 1) P_{j−2}."""
+    p0, p1 = np.ones_like(x), x
+    for j in range(2, n + 1):
+        p0, p1 = p1, ((2 * j - 1) * x * p1 - (j - 1) * p0) / j
+    return p1, n * (x * p1 - p0) / (x * x - 1)
 
 
 def basis_weights(mesh: Mesh, u: np.ndarray, w: np.ndarray) -> np.ndarray:

@@ -401,7 +401,10 @@ def lossy_ground_matrix(mesh: Mesh, ground: Ground, frequency_hz: float) -> np.n
     coef = lay.factors
     if lay.k2_row.any():
         coef = np.where(lay.k2_row, k * k, 1.0)[:, None] * coef
-    vals = np.einsum("rp,rp->p", coef, sums[:, lay.inverse])
+    per_pair = np.take(sums, lay.inverse, axis=1)
+    vals = coef[0] * per_pair[0]
+    for r in range(1, len(coef)):
+        vals += coef[r] * per_pair[r]
     # reciprocity: the coupling matrix is symmetric, so only the upper triangle is computed
     t = np.empty((lay.n_points, lay.n_points), dtype=complex)
     t[lay.iu, lay.ju] = vals
