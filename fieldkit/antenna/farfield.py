@@ -30,9 +30,12 @@ def directions(elevation_deg: np.ndarray, azimuth_deg: np.ndarray) -> np.ndarray
     """Unit vectors r̂ for a grid [n_az, n_el, 3]."""
     el = np.radians(np.asarray(elevation_deg, dtype=float))[None, :]
     az = np.radians(np.asarray(azimuth_deg, dtype=float))[:, None]
-    return np.stack(
-        np.broadcast_arrays(np.cos(el) * np.cos(az), np.cos(el) * np.sin(az), np.sin(el)), axis=-1
-    )
+    cos_el = np.cos(el)
+    out = np.empty((az.shape[0], el.shape[1], 3))
+    out[..., 0] = cos_el * np.cos(az)
+    out[..., 1] = cos_el * np.sin(az)
+    out[..., 2] = np.sin(el)
+    return out
 
 
 RUN_TOLERANCE_M = (
@@ -120,11 +123,12 @@ def _radiation_vectors(mesh: Mesh, i_start, i_end, rhat, k, with_image: bool):
     moment = (0.5 * (i_start + i_end) * mesh.length)[:, None] * mesh.tangent  # (S, 3)
     rel_direct, rel_image = _relative_phases(mesh, rhat, k, with_image)
     origin = mesh.start[0]
-    direct = (rel_direct @ moment) * np.exp(1j * k * (rhat @ origin))[:, None]
     if not with_image:
-        return direct, None
+        return (rel_direct @ moment) * np.exp(1j * k * (rhat @ origin))[:, None], None
     mirror = np.array([1.0, 1.0, -1.0])
-    image = (rel_image @ (moment * mirror)) * np.exp(1j * k * (rhat @ (origin * mirror)))[:, None]
+    shift = np.exp(1j * k * (rhat @ np.stack([origin, origin * mirror], axis=1)))  # (D, 2)
+    direct = (rel_direct @ moment) * shift[:, :1]
+    image = (rel_image @ (moment * mirror)) * shift[:, 1:]
     return direct, image
 
 
