@@ -185,11 +185,13 @@ def _cut_beamwidths(sol: Solution, azimuths_deg: list[float]) -> list[float]:
     )
     # each crossing: (cut, index inside the lobe, index outside it or None at the end of the cut)
     crossings = []
+    cut_rows, levels = cut.tolist(), level.tolist()  # Python floats: the walks below are scalar
     for c in range(n_cut):
         i = j = int(peak[c])
-        while i > 0 and cut[c, i - 1] >= level[c]:
+        row, lv = cut_rows[c], levels[c]
+        while i > 0 and row[i - 1] >= lv:
             i -= 1
-        while j < n - 1 and cut[c, j + 1] >= level[c]:
+        while j < n - 1 and row[j + 1] >= lv:
             j += 1
         crossings += [(c, i, i - 1 if i > 0 else None), (c, j, j + 1 if j < n - 1 else None)]
     inner = [x for x in crossings if x[2] is not None]
