@@ -41,16 +41,27 @@ def _direct(obs, start, tangent, length, radius, i_start, i_end, omega, sign=1.0
     a2 = np.repeat(radius, N_POINTS) ** 2
     e_out = np.zeros((len(obs), 3), dtype=complex)
     h_out = np.zeros((len(obs), 3), dtype=complex)
+    tx, ty, tz = tan[:, 0], tan[:, 1], tan[:, 2]
+    cur_tan = cur[:, None] * tan  # (S, 3)
     for lo in range(0, len(obs), CHUNK):
-        d = obs[lo : lo + CHUNK, None, :] - src[None]  # (P, S, 3)
-        r = np.sqrt(np.einsum("psi,psi->ps", d, d) + a2[None])
-        g = np.exp(-1j * k * r) / (4 * math.pi * r)
-        dg = -(1 + 1j * k * r) * g / r**2  # ∇G = dg · d
-        a_vec = MU0 * np.einsum("ps,s,si->pi", g, cur, tan)
-        grad_phi = np.einsum("ps,s,psi->pi", dg, q, d) / EPS0
+        o = obs[lo : lo + CHUNK]
+        dx = o[:, None, 0] - src[None, :, 0]  # (P, S), one array per component
+        dy = o[:, None, 1] - src[None, :, 1]
+        dz = o[:, None, 2] - src[None, :, 2]
+        r = np.sqrt(dx * dx + dy * dy + dz * dz + a2[None])
+        jkr = (1j * k) * r
+        g = np.exp(-jkr) / (4 * math.pi * r)
+        dg = -(1 + jkr) * g / (r * r)  # ∇G = dg · d
+        a_vec = MU0 * (g @ cur_tan)
+        wq = dg * q[None]  # ∇φ = Σ q dg d / ε0
+        grad_phi = np.stack([(wq * dx).sum(1), (wq * dy).sum(1), (wq * dz).sum(1)], axis=1) / EPS0
         e_out[lo : lo + CHUNK] = -1j * omega * a_vec - grad_phi
-        # H = ∫ I ∇G × t dl
-        h_out[lo : lo + CHUNK] = np.cross(np.einsum("ps,s,psi->psi", dg, cur, d), tan[None]).sum(1)
+        # H = ∫ I ∇G × t dl = Σ I dg (d × t)
+        wc = dg * cur[None]
+        wx, wy, wz = wc * dx, wc * dy, wc * dz
+        h_out[lo : lo + CHUNK, 0] = wy @ tz - wz @ ty
+        h_out[lo : lo + CHUNK, 1] = wz @ tx - wx @ tz
+        h_out[lo : lo + CHUNK, 2] = wx @ ty - wy @ tx
     return sign * e_out, sign * h_out
 
 
