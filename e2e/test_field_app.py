@@ -466,7 +466,7 @@ def test_unit_switch_is_everywhere_and_stored(open_app, service, demo_planned):
         ("new-height", "tall", "is not a length"),
         ("height-T1", "abc", "is not a length"),
         ("new-bearing", "400", "at most 360"),
-        ("channels", "3.79, 45", "between 1.5 and 30"),
+        ("channels", "3.79, 45", "between 1.8 and 30"),
         ("new-x", "12 m east", "is not a length"),
     ],
 )

@@ -14,6 +14,7 @@ from fieldkit.rigging.mast import Mast, parse_masts
 from fieldkit.rigging.options import Kit
 from fieldkit.rigging.supports import Support, parse_supports
 from fieldkit.rigging.wire import parse_wire
+from fieldkit.sky.inputs import MAX_CHANNEL_MHZ, MIN_CHANNEL_MHZ  # one HF range for plan and sky
 
 FORMS = ("flat", "inverted-v", "sloping", "linked", "auto")
 # Laid rope of polyester/nylon: about 0.8 × the fibre density over the rope's circle, 4 mm ≈ 10 g/m
@@ -105,7 +106,9 @@ def parse_plan(spec: Any) -> PlanInput:
     chans = array(obj["channels_mhz"], "channels_mhz", min_items=1, max_items=12)
     channels = []
     for i, c in enumerate(chans):
-        f = number(c, join("channels_mhz", i), unit="MHz", minimum=1.5, maximum=30)
+        f = number(
+            c, join("channels_mhz", i), unit="MHz", minimum=MIN_CHANNEL_MHZ, maximum=MAX_CHANNEL_MHZ
+        )
         channels.append(f * 1e6)
     if len(set(channels)) != len(channels):
         raise InputError("channels_mhz", "each channel once, please")
@@ -260,7 +263,13 @@ def _parse_retrim(value: Any, channels: list[float]) -> dict[str, Any] | None:
     if "frequency_mhz" not in obj:
         raise InputError(join(f, "frequency_mhz"), "required: the channel to re-trim for")
     target = (
-        number(obj["frequency_mhz"], join(f, "frequency_mhz"), unit="MHz", minimum=1.5, maximum=30)
+        number(
+            obj["frequency_mhz"],
+            join(f, "frequency_mhz"),
+            unit="MHz",
+            minimum=MIN_CHANNEL_MHZ,
+            maximum=MAX_CHANNEL_MHZ,
+        )
         * 1e6
     )
     if all(abs(target - c) > 1.0 for c in channels):

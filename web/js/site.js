@@ -293,7 +293,7 @@ function placeForm(app) {
       if (!parts.length) throw new EntryError("enter at least one channel, e.g. 3.605, 5.3715");
       return parts.map((p) => {
         const v = Number(p.replace(",", "."));
-        if (!/^\d*\.?\d+$/.test(p) || !(v >= 1.5 && v <= 30)) throw new EntryError(`channel "${p}": expected a frequency in MHz between 1.5 and 30`);
+        if (!/^\d*\.?\d+$/.test(p) || !(v >= 1.8 && v <= 30)) throw new EntryError(`channel "${p}": expected a frequency in MHz between 1.8 and 30`);
         return v;
       });
     },
