@@ -300,21 +300,11 @@ def truncate_about_feed(hung: HungDipole, leg_m: float) -> HungDipole:
     left = _cut_polyline(pts[: k + 1][::-1], leg_m)[::-1]
     right = _cut_polyline(pts[k:], leg_m)
     new = np.vstack([left, right[1:]])
-    return HungDipole(
+    return replace(
+        hung,
         points_m=new,
         feed_distance_m=_polyline_length(left),
-        feedpoint_height_m=hung.feedpoint_height_m,
         end_heights_m=(float(new[0, 2]), float(new[-1, 2])),
-        sag_m=hung.sag_m,
-        span_rope_m=hung.span_rope_m,
-        tail_m=hung.tail_m,
-        horizontal_tension_n=hung.horizontal_tension_n,
-        end_tension_n=hung.end_tension_n,
-        support_vertical_n=hung.support_vertical_n,
-        apex_angle_deg=hung.apex_angle_deg,
-        top_load_n=hung.top_load_n,
-        stake_distance_m=hung.stake_distance_m,
-        notes=hung.notes,
     )
 
 
