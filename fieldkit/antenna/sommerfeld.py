@@ -180,10 +180,13 @@ def _image_sums(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) -> np.ndarray:
     )
 
 
-def coupling_pairs(obs, t_obs, src, t_src, im: ComplexImages) -> np.ndarray:
-    """As :func:`reflected_coupling`, for paired rows of obs/src (n, 3) → (n,)."""
-    k = im.k0
-    beta, a_h, a_v, a_d, a_c = _all_images(im)
+def _pair_terms(obs, t_obs, src, t_src):
+    """Geometry of paired observation/source rows (n, 3) for the image sums.
+
+    Returns the eight factors that multiply the sums of :func:`_image_sums`, in its row order (row 3
+    also carries k²), the distinct (ρ², ζ) pairs, and the index of every row's pair: the sums depend
+    on (ρ², ζ) only, and a straight or symmetric wire repeats the same separations many times.
+    """
     dx = obs[:, 0] - src[:, 0]
     dy = obs[:, 1] - src[:, 1]
     zeta = obs[:, 2] + src[:, 2]
@@ -192,17 +195,22 @@ def coupling_pairs(obs, t_obs, src, t_src, im: ComplexImages) -> np.ndarray:
     tp_h = tx * px + ty * py
     ph_x = px * dx + py * dy
     t_xy = tx * dx + ty * dy
-    rho2 = dx * dx + dy * dy
-    # the image sums depend on (ρ², ζ) only: evaluate them once per distinct pair (a straight or
-    # symmetric wire repeats the same separations many times)
-    key = np.round(rho2, 9) + 1j * np.round(zeta, 9)
+    key = np.round(dx * dx + dy * dy, 9) + 1j * np.round(zeta, 9)
     uniq, inverse = np.unique(key, return_inverse=True)
-    sums = _image_sums(k, uniq.real, uniq.imag, beta, a_h, a_v, a_d, a_c)[:, inverse.ravel()]
-    s_kgh, s_kgv, s_g1d, s_g1c, s_g2hd, s_g2z_hd, s_g2z_v, s_g2zz_v = sums
-    out = (s_kgh - s_g1d) * tp_h + s_kgv * pz * tz
-    out += t_xy * (s_g2hd * ph_x + s_g2z_v * pz) + tz * (s_g2z_hd * ph_x + s_g2zz_v * pz)
-    out += (k * k) * s_g1c * ph_x * tz
-    return out
+    factors = np.stack(
+        [tp_h, pz * tz, -tp_h, ph_x * tz, t_xy * ph_x, tz * ph_x, t_xy * pz, tz * pz]
+    )
+    return factors, uniq, inverse.ravel()
+
+
+def coupling_pairs(obs, t_obs, src, t_src, im: ComplexImages) -> np.ndarray:
+    """As :func:`reflected_coupling`, for paired rows of obs/src (n, 3) → (n,)."""
+    k = im.k0
+    beta, a_h, a_v, a_d, a_c = _all_images(im)
+    factors, uniq, inverse = _pair_terms(obs, t_obs, src, t_src)
+    sums = _image_sums(k, uniq.real, uniq.imag, beta, a_h, a_v, a_d, a_c)[:, inverse]
+    factors[3] *= k * k
+    return np.einsum("rn,rn->n", factors, sums)
 
 
 def _image_kernels(k, rho2, zeta, beta):
@@ -353,30 +361,14 @@ def _pair_layout(mesh: Mesh) -> _PairLayout:
     tan = np.repeat(mesh.tangent, q, axis=0)
     iu, ju = np.triu_indices(len(pts))
     obs, t_obs, src, t_src = pts[iu], tan[iu], pts[ju], tan[ju]
-    dx = obs[:, 0] - src[:, 0]
-    dy = obs[:, 1] - src[:, 1]
-    zeta = obs[:, 2] + src[:, 2]
-    px, py, pz = t_src.T
-    tx, ty, tz = t_obs.T
-    tp_h = tx * px + ty * py
-    ph_x = px * dx + py * dy
-    t_xy = tx * dx + ty * dy
-    rho2 = dx * dx + dy * dy
-    # the image sums depend on (ρ², ζ) only: evaluate them once per distinct pair (a straight or
-    # symmetric wire repeats the same separations many times)
-    key2 = np.round(rho2, 9) + 1j * np.round(zeta, 9)
-    uniq, inverse = np.unique(key2, return_inverse=True)
-    # factors of the sums of _image_sums, in its row order (see coupling_pairs)
-    factors = np.stack(
-        [tp_h, pz * tz, -tp_h, ph_x * tz, t_xy * ph_x, tz * ph_x, t_xy * pz, tz * pz]
-    )
+    factors, uniq, inverse = _pair_terms(obs, t_obs, src, t_src)
     rows = np.nonzero(np.any(factors != 0, axis=1))[0]
     lay = _PairLayout(
         iu=iu,
         ju=ju,
         rho2=uniq.real.copy(),
         zeta_rel=uniq.imag.copy(),
-        inverse=inverse.ravel(),
+        inverse=inverse,
         rows=rows,
         factors=factors[rows],
         k2_row=rows == 3,
