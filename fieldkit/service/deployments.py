@@ -34,14 +34,7 @@ def split_body(body: dict[str, Any]) -> tuple[str, str | None, dict[str, Any]]:
 def describe(conn, found: deployments.Deployment) -> dict[str, Any]:
     _items, ready = checklist_state(conn, found.id, found.plan_result)
     return {
-        "id": found.id,
-        "name": found.name,
-        "input": found.plan_input,
-        "result": found.plan_result,
-        "plan_error": found.plan_error,
-        "created_at": found.created_at,
-        "updated_at": found.updated_at,
-        "revision": found.revision,
+        **deployments.as_json(found),
         "planning": found.id in current_app.extensions["fieldkit_planning"],
         **ready,
     }

@@ -35,6 +35,20 @@ class Deployment:
     revision: int
 
 
+def as_json(found: Deployment) -> dict[str, Any]:
+    """The stored deployment as JSON: what the API shows and what an export carries."""
+    return {
+        "id": found.id,
+        "name": found.name,
+        "input": found.plan_input,
+        "result": found.plan_result,
+        "plan_error": found.plan_error,
+        "created_at": found.created_at,
+        "updated_at": found.updated_at,
+        "revision": found.revision,
+    }
+
+
 def _row(row: sqlite3.Row) -> Deployment:
     return Deployment(
         id=row["id"],

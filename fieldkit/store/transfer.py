@@ -37,16 +37,7 @@ def export_deployment(conn: sqlite3.Connection, deployment_id: str) -> dict[str,
     return {
         "format": FORMAT,
         "format_version": FORMAT_VERSION,
-        "deployment": {
-            "id": found.id,
-            "name": found.name,
-            "input": found.plan_input,
-            "result": found.plan_result,
-            "plan_error": found.plan_error,
-            "created_at": found.created_at,
-            "updated_at": found.updated_at,
-            "revision": found.revision,
-        },
+        "deployment": deployments.as_json(found),
         "acknowledgements": [
             {
                 "client_id": ack.client_id,
