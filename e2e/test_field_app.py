@@ -17,7 +17,7 @@ import pytest
 import segno
 
 from e2e.conftest import ARTIFACTS, PLAN_TIMEOUT_MS, Service, shot
-from fieldkit.service.lan import lan_address
+from fieldkit.service.lan_api import lan_address
 
 pytestmark = [pytest.mark.browser, pytest.mark.slow]
 

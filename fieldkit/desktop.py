@@ -18,7 +18,7 @@ from pathlib import Path
 from typing import Any, TextIO
 
 from fieldkit.service.server import LOOPBACK, PortUnavailable, serve, start_in_thread
-from fieldkit.store.db import checkpoint_and_close
+from fieldkit.store.sqlite import checkpoint_and_close
 
 FALLBACK_PORT = 8765
 WINDOW_TITLE = "fieldkit"
@@ -79,7 +79,7 @@ def open_window(
         print(f"fieldkit window on {running.url}", file=out, flush=True)
         webview.start(gui="qt")
     finally:
-        from fieldkit.service.lan import stop_share
+        from fieldkit.service.lan_api import stop_share
 
         stop_share(app)  # phones lose access when the window closes
         running.stop()

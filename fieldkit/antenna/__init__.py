@@ -10,9 +10,9 @@ import os
 # effect when this package is what first imports numpy (the `fieldkit model` command).
 os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
-from .geometry import Antenna, Feed, Wire
 from .grounds import GROUND_PRESETS, Ground, parse_ground
 from .materials import Insulation
+from .mesh import Antenna, Feed, Wire
 from .solver import Solution, solve
 from .spec import model_json
 

@@ -20,10 +20,11 @@ from collections import OrderedDict
 
 import numpy as np
 
-from .geometry import Mesh
+from fieldkit.constants import ETA0, MU0, SPEED_OF_LIGHT_M_S
+
 from .grounds import Ground
 from .kernel import gauss01
-from .materials import ETA0, MU0
+from .mesh import Mesh
 
 
 def directions(elevation_deg: np.ndarray, azimuth_deg: np.ndarray) -> np.ndarray:
@@ -183,7 +184,7 @@ def far_field(
     mesh: Mesh, i_start, i_end, ground: Ground, frequency_hz: float, rhat: np.ndarray
 ) -> tuple[np.ndarray, np.ndarray]:
     """θ and φ components of r·e^{jkr}·E at unit distance [V], for RMS currents, shape rhat[..., 0]."""
-    k = 2 * math.pi * frequency_hz / 299_792_458.0
+    k = 2 * math.pi * frequency_hz / SPEED_OF_LIGHT_M_S
     shape = rhat.shape[:-1]
     r = rhat.reshape(-1, 3)
     with_image = ground.kind != "free-space"
@@ -231,7 +232,7 @@ def radiated_power(
     When ``grid`` is given it receives the directions and intensities [W/sr] used.
     """
     if n_el is None or n_az is None:
-        k = 2 * math.pi * frequency_hz / 299_792_458.0
+        k = 2 * math.pi * frequency_hz / SPEED_OF_LIGHT_M_S
         c = mesh.centre
         size = float(np.max(np.linalg.norm(c - np.r_[c[:, :2].mean(axis=0), 0.0], axis=1)))
         n = max(12, math.ceil(2 * k * size) + 6)

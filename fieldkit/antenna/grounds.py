@@ -15,9 +15,8 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import Any, Literal
 
+from fieldkit.constants import EPS0
 from fieldkit.errors import InputError, check_keys, join, number
-
-from .materials import EPS0
 
 GroundKind = Literal["free-space", "perfect", "lossy"]
 

@@ -28,8 +28,9 @@ from functools import lru_cache
 
 import numpy as np
 
-from .geometry import Mesh
-from .materials import EPS0, MU0
+from fieldkit.constants import EPS0, MU0
+
+from .mesh import Mesh
 
 N_TEST = 5  # Gauss points on the testing segment
 N_SOURCE = 4  # Gauss points for the smooth part on the source segment

@@ -20,10 +20,7 @@ from typing import Literal
 
 import numpy as np
 
-MU0 = 4e-7 * math.pi  # vacuum permeability [H/m] (classical SI value; CODATA 2018 differs by 5e-10)
-EPS0 = 8.8541878128e-12  # vacuum permittivity [F/m] (CODATA 2018)
-C0 = 299_792_458.0  # speed of light [m/s] (SI definition)
-ETA0 = MU0 * C0  # free-space wave impedance [ohm]
+from fieldkit.constants import MU0
 
 Conductor = Literal["perfect", "copper", "aluminium", "copper-clad-steel", "steel"]
 CONDUCTORS: tuple[str, ...] = ("perfect", "copper", "aluminium", "copper-clad-steel", "steel")

@@ -17,8 +17,9 @@ import math
 
 import numpy as np
 
+from fieldkit.constants import EPS0, MU0, SPEED_OF_LIGHT_M_S
+
 from .kernel import gauss01, mirror
-from .materials import C0, EPS0, MU0
 
 N_POINTS = 12  # Gauss points per segment
 CHUNK = 512  # observation points per block (memory)
@@ -26,7 +27,7 @@ CHUNK = 512  # observation points per block (memory)
 
 def _direct(obs, start, tangent, length, radius, i_start, i_end, omega, sign=1.0):
     """E and H of segments with linear current (and constant line charge) at obs (P, 3)."""
-    k = omega / C0
+    k = omega / SPEED_OF_LIGHT_M_S
     u, w = gauss01(N_POINTS)
     src = start[:, None, :] + u[None, :, None] * (length[:, None, None] * tangent[:, None, :])
     cur = (i_start[:, None] * (1 - u[None, :]) + i_end[:, None] * u[None, :]) * (

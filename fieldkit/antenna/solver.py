@@ -20,14 +20,15 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from fieldkit.constants import SPEED_OF_LIGHT_M_S
 from fieldkit.errors import InputError
 
 from . import farfield
 from .blas import single_threaded
-from .geometry import Antenna, Mesh, checked_mesh
 from .grounds import Ground
 from .kernel import free_space_matrix, loading_matrix, perfect_image_matrix, segment_end_currents
-from .materials import C0, conductor_impedance_per_m, insulation_impedance_per_m
+from .materials import conductor_impedance_per_m, insulation_impedance_per_m
+from .mesh import Antenna, Mesh, checked_mesh
 
 MIN_FREQUENCY_HZ = 0.1e6
 MAX_FREQUENCY_HZ = 60e6
@@ -333,7 +334,7 @@ def _solve_one(
 ) -> Solution:
     """Solve at one frequency (see :func:`solve`)."""
     omega = 2 * math.pi * f
-    k = omega / C0
+    k = omega / SPEED_OF_LIGHT_M_S
     zmat = _free_space_matrix_cached(mesh, k, omega) + _ground_matrix(mesh, ground, f, k, omega)
     z_load = _series_loading(antenna, mesh, f)
     if np.any(z_load != 0):

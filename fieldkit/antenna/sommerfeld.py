@@ -39,10 +39,11 @@ from functools import lru_cache
 
 import numpy as np
 
-from .geometry import Mesh
+from fieldkit.constants import EPS0, SPEED_OF_LIGHT_M_S
+
 from .grounds import Ground
 from .kernel import basis_weights, gauss01
-from .materials import C0, EPS0
+from .mesh import Mesh
 
 # Two-level path (Aksun 1996): level 1 on u0 = k0 (T2 + t), 0 ≤ t ≤ T1; level 2 on
 # u0 = k0 (t + j (1 − t/T2)), 0 ≤ t ≤ T2. Values chosen by the fit-error study in docs/engine.md.
@@ -106,7 +107,7 @@ def complex_images(
     frequency_hz: float, relative_permittivity: float, conductivity_s_m: float
 ) -> ComplexImages:
     """Fit the complex images of a ground at one frequency (cached on (f, εr, σ))."""
-    k0 = 2 * math.pi * frequency_hz / C0
+    k0 = 2 * math.pi * frequency_hz / SPEED_OF_LIGHT_M_S
     eps = complex(relative_permittivity, -conductivity_s_m / (2 * math.pi * frequency_hz * EPS0))
     # level 1: the large-λ (near-zone) behaviour
     t1 = np.linspace(0.0, T1, N_SAMPLES_1)

@@ -11,12 +11,13 @@ from typing import Any
 
 import numpy as np
 
+from fieldkit.constants import SPEED_OF_LIGHT_M_S
 from fieldkit.errors import InputError, array, check_keys, choice, join, number, require_mapping
 
 from .blas import single_threaded
-from .geometry import Antenna, Feed, Wire, checked_mesh
 from .grounds import parse_ground
 from .materials import CONDUCTORS, Insulation
+from .mesh import Antenna, Feed, Wire, checked_mesh
 from .solver import MAX_FREQUENCY_HZ, MIN_FREQUENCY_HZ, solve
 
 SPEC_KEYS = (
@@ -291,7 +292,7 @@ def _far_from_wires(sol, points: np.ndarray) -> list[int]:
     """
     if sol.ground.kind != "lossy":
         return []
-    lam = 299_792_458.0 / sol.frequency_hz
+    lam = SPEED_OF_LIGHT_M_S / sol.frequency_hz
     c = sol.mesh.centre
     d = np.hypot(points[:, None, 0] - c[None, :, 0], points[:, None, 1] - c[None, :, 1]).min(axis=1)
     return np.nonzero(d > NEAR_FIELD_RANGE_WL * lam)[0].tolist()

@@ -5,8 +5,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
+from fieldkit.constants import STANDARD_GRAVITY_M_S2
 from fieldkit.errors import InputError, array, check_keys, choice, join, number, require_mapping
-from fieldkit.rigging.catenary import STANDARD_GRAVITY_M_S2
 from fieldkit.rigging.cut import WRAP_ALLOWANCE_M
 from fieldkit.rigging.feedline import parse_coax
 from fieldkit.rigging.layouts import Mechanics

@@ -20,8 +20,6 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.optimize import brentq, root
 
-STANDARD_GRAVITY_M_S2 = 9.80665  # CGPM 1901, standard acceleration of gravity
-
 
 @dataclass(frozen=True)
 class Piece:

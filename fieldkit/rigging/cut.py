@@ -23,7 +23,6 @@ import numpy as np
 from fieldkit.rigging.hung import HungDipole
 from fieldkit.rigging.wire import KitWire
 
-SPEED_OF_LIGHT_M_S = 299_792_458.0  # exact, SI definition of the metre
 RULE_OF_THUMB_M_MHZ = 143.0  # half-wave ≈ 143/f m (468/f ft): common practice, not a physical law
 # Wrap allowance: wire folded back and twisted at each end insulator and at the feedpoint, per end of
 # each leg; 15 cm (about 6 in) is the usual figure (common practice, no single source).
@@ -420,15 +419,3 @@ def retrim(
     if change > 0:
         out["advice"] += "; unfold spare wire at the end insulators, or splice in wire and re-check"
     return out
-
-
-def leg_fits_spool(total_wire_m: float, spool_m: float | None) -> str | None:
-    """A warning when the spool cannot give the wire, else None."""
-    if spool_m is not None and total_wire_m > spool_m:
-        return f"the dipole needs {total_wire_m:.1f} m of wire but the spool holds {spool_m:g} m"
-    return None
-
-
-def wavelength_m(frequency_hz: float) -> float:
-    """Free-space wavelength [m]."""
-    return SPEED_OF_LIGHT_M_S / frequency_hz

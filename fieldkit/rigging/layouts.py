@@ -13,7 +13,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from fieldkit.rigging.catenary import STANDARD_GRAVITY_M_S2, HangError
+from fieldkit.constants import STANDARD_GRAVITY_M_S2
+from fieldkit.rigging.catenary import HangError
 from fieldkit.rigging.heights import MIN_END_HEIGHT_M
 from fieldkit.rigging.hung import HungDipole, hang_inverted_v, hang_span
 from fieldkit.rigging.mast import Mast

@@ -11,8 +11,8 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
+from fieldkit.constants import STANDARD_GRAVITY_M_S2
 from fieldkit.errors import InputError, array, check_keys, join, number, require_mapping, text
-from fieldkit.rigging.catenary import STANDARD_GRAVITY_M_S2
 
 # Guy anchors at about 0.7 × the guy attachment height from the mast foot (guys near 55° to the
 # ground) — common practice for light telescopic masts, no single source.

@@ -14,10 +14,10 @@ from typing import Any
 
 import numpy as np
 
-from fieldkit.rigging.catenary import STANDARD_GRAVITY_M_S2, HangError
+from fieldkit.constants import SPEED_OF_LIGHT_M_S, STANDARD_GRAVITY_M_S2
+from fieldkit.rigging.catenary import HangError
 from fieldkit.rigging.cut import (
     CURVE_OFFSETS,
-    SPEED_OF_LIGHT_M_S,
     EngineCounter,
     Resonance,
     ResonanceError,
@@ -98,7 +98,7 @@ def max_chord_m(frequency_hz: float) -> float | None:
     """Longest polyline piece that the engine cuts into one segment at the highest frequency solved
     for a channel (the top of the SWR curve) [m]; None when the engine does not say its segment rule."""
     try:
-        from fieldkit.antenna.geometry import SEGMENTS_PER_WAVELENGTH
+        from fieldkit.antenna.mesh import SEGMENTS_PER_WAVELENGTH
     except ImportError:
         return None
     f_top = frequency_hz * (1 + max(CURVE_OFFSETS))
@@ -390,7 +390,7 @@ def finish(sc: Screened, *, kit: Kit, engine: EngineCounter, warm: Warm) -> dict
         warnings.append(
             "SWR stays above 2 near the channel: use a tuner or matching at the feedpoint"
         )
-    lam = 299_792_458.0 / f
+    lam = SPEED_OF_LIGHT_M_S / f
     option = {
         "form": layout.form,
         "frequency_mhz": round(f / 1e6, 6),

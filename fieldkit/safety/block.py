@@ -12,11 +12,11 @@ from fieldkit.errors import InputError, array, choice, join, number, require_map
 from fieldkit.safety.checklists import slug
 from fieldkit.safety.duty import Radio, parse_radio
 from fieldkit.safety.exposure import Landmark, keep_out
-from fieldkit.safety.geometry import compass_word, polyline_length
 from fieldkit.safety.hazards import PowerLine, Support, parse_hazards, parse_supports
 from fieldkit.safety.items import OptionFindings, option_items
 from fieldkit.safety.limits import exposure_limit, parse_limit_set
 from fieldkit.safety.oet65 import oet65_estimate
+from fieldkit.safety.plan_view import compass_word, polyline_length
 from fieldkit.safety.powerlines import Rig, RiggedSupport, line_clearances
 
 #: Shown wherever safety results appear (fieldkit's own wording).

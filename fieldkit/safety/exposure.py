@@ -36,7 +36,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from fieldkit.safety.geometry import distance_to_polyline
+from fieldkit.safety.plan_view import distance_to_polyline
 
 FieldFn = Callable[[np.ndarray], tuple[np.ndarray, np.ndarray]]
 

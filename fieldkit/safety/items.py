@@ -15,9 +15,9 @@ import numpy as np
 from fieldkit.safety.checklists import ChecklistItem, item_id, order_items, template_items
 from fieldkit.safety.duty import Radio
 from fieldkit.safety.exposure import PERSON_HEIGHT_M, KeepOut
-from fieldkit.safety.geometry import densify
 from fieldkit.safety.hazards import Path, PowerLine, Support
 from fieldkit.safety.limits import ExposureLimit
+from fieldkit.safety.plan_view import densify
 from fieldkit.safety.powerlines import Clearance, Rig, line_summary
 from fieldkit.safety.weather import mast_wind_limits
 

@@ -29,8 +29,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from fieldkit.safety.geometry import compass_word, densify, distance_to_polyline
 from fieldkit.safety.hazards import ASSUMED_LINE_VOLTAGE_KV, PowerLine
+from fieldkit.safety.plan_view import compass_word, densify, distance_to_polyline
 
 FOOT_M = 0.3048  # international foot, exact
 INCH_M = 0.0254  # exact

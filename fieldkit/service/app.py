@@ -13,11 +13,11 @@ from flask import Flask
 
 from fieldkit import paths, store
 from fieldkit.errors import InputError
-from fieldkit.service import db, http, security, web
+from fieldkit.service import http, request_db, security, static_files
 from fieldkit.service.plancache import DEFAULT_ENTRIES, PlanCache
-from fieldkit.service.planning import run_plan
+from fieldkit.service.readiness import run_plan
 from fieldkit.store import deployments
-from fieldkit.store.db import get_meta, set_meta
+from fieldkit.store.sqlite import get_meta, set_meta
 
 log = logging.getLogger("fieldkit.service")
 
@@ -69,15 +69,30 @@ def create_app(config: Mapping[str, Any] | None = None) -> Flask:
     store.migrate(app.config["DATABASE"])
     http.register_errors(app)
     security.install(app)
-    db.install(app)
-    web.install(app)
+    request_db.install(app)
+    static_files.install(app)
 
-    from fieldkit.service import calc, checks, health, kit, lan, openapi
-    from fieldkit.service import deployments as deployments_bp
+    from fieldkit.service import (
+        calc_api,
+        checks_api,
+        deployments_api,
+        health_api,
+        kit_api,
+        lan_api,
+        openapi,
+    )
 
-    for blueprint in (health.bp, calc.bp, deployments_bp.bp, checks.bp, kit.bp, lan.bp, openapi.bp):
+    for blueprint in (
+        health_api.bp,
+        calc_api.bp,
+        deployments_api.bp,
+        checks_api.bp,
+        kit_api.bp,
+        lan_api.bp,
+        openapi.bp,
+    ):
         app.register_blueprint(blueprint)
-    app.register_blueprint(web.bp)
+    app.register_blueprint(static_files.bp)
 
     app.extensions["fieldkit_plan_cache"] = app.config.get("PLAN_CACHE") or PlanCache(
         entries=app.config["PLAN_CACHE_ENTRIES"]

@@ -10,6 +10,6 @@ elevation_deg(*, ground_range_km, virtual_height_km), ground_range_km(*, elevati
 """
 
 from fieldkit.sky.day import sky_json
-from fieldkit.sky.geometry import elevation_deg, ground_range_km
+from fieldkit.sky.path_geometry import elevation_deg, ground_range_km
 
 __all__ = ["elevation_deg", "ground_range_km", "sky_json"]

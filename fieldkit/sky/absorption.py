@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from fieldkit.sky.geometry import ABSORPTION_HEIGHT_KM, incidence_deg
+from fieldkit.sky.path_geometry import ABSORPTION_HEIGHT_KM, incidence_deg
 
 GB_NUMERATOR_DB = 677.2  # dB MHz^1.98; George & Bradley (1974)
 GB_FREQUENCY_EXPONENT = 1.98  # George & Bradley (1974)

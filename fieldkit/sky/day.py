@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from fieldkit.sky import geometry
+from fieldkit.sky import path_geometry
 from fieldkit.sky.gain import elevation_gains
 from fieldkit.sky.inputs import SkySpec, parse_sky_spec
 from fieldkit.sky.iri import sky_estimate
@@ -172,7 +172,7 @@ def channel_day(spec: SkySpec) -> dict[str, Any]:
         "hmf2_km": _round(sky.hmf2_km, 1),
         "reflection_height_km": _round(sky.reflection_height_km, 1),
         "muf3000_mhz": _round(sky.muf3000_mhz),
-        "fot_mhz": _round(geometry.fot_mhz(muf_mhz=sky.fof2_mhz)),
+        "fot_mhz": _round(path_geometry.fot_mhz(muf_mhz=sky.fof2_mhz)),
         "sky_source": list(sky.source),
         "solar_zenith_deg": _round(zenith, 1),
         "gyro_frequency_mhz": round(sky.gyro_frequency_mhz, 3),

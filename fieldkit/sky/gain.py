@@ -12,8 +12,8 @@ import json
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.constants import c as SPEED_OF_LIGHT_M_S  # SI definition of the metre
 
+from fieldkit.constants import SPEED_OF_LIGHT_M_S
 from fieldkit.errors import InputError, join
 
 DEFAULT_HEIGHT_WAVELENGTHS = 0.15  # default NVIS dipole height, 0.15 lambda (issue 4)

@@ -23,7 +23,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from fieldkit.sky.geometry import reflection_height_km
+from fieldkit.sky.path_geometry import reflection_height_km
 
 CCIR = 0  # PyIRI switch: CCIR (0) or URSI (1) foF2 maps; CCIR is the IRI default over land
 GYRO_HZ_PER_TESLA = 2.7992e10  # e / (2 pi m_e); CODATA 2018

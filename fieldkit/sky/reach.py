@@ -1,7 +1,7 @@
 """Reach of one channel: signal-to-noise against distance, skip zone, maximum range and a verdict.
 
 For each hour and ground range the one-hop F2 path is traced with the mirror geometry of
-:mod:`fieldkit.sky.geometry`; the received power is
+:mod:`fieldkit.sky.path_geometry`; the received power is
 
     P_r = P_t + G(Delta) + G(Delta) - L_bf - L_a - L_z   [dBW]
 
@@ -24,14 +24,14 @@ import numpy as np
 
 from fieldkit.sky.absorption import absorption_db
 from fieldkit.sky.gain import ElevationGain
-from fieldkit.sky.geometry import (
+from fieldkit.sky.noise import noise_power_dbw, total_fa_db
+from fieldkit.sky.path_geometry import (
     elevation_deg,
     fot_mhz,
     muf_mhz,
     skip_distance_km,
     slant_path_km,
 )
-from fieldkit.sky.noise import noise_power_dbw, total_fa_db
 
 FREE_SPACE_CONSTANT_DB = 32.45  # 20 log10(4 pi / c) in MHz and km; ITU-R P.525
 EXCESS_LOSS_DB = 8.72  # L_z, "losses not otherwise included"; ITU-R P.533-14 §6 (from memory)

@@ -2,13 +2,13 @@
 
 Standard-library ``sqlite3`` only. :func:`migrate` brings the database to the current schema at start;
 each request then opens its own connection with :func:`connect` and writes inside
-:func:`transaction`. Modules: ``deployments``, ``checks`` (append-only acknowledgements), ``kit``,
+:func:`transaction`. Modules: ``deployments``, ``acknowledgements`` (append-only), ``kit``,
 ``transfer`` (JSON export/import, checklist CSV).
 """
 
-from fieldkit.store.db import connect, database_path, transaction
-from fieldkit.store.errors import Conflict, NotFound
 from fieldkit.store.schema import SCHEMA_VERSION, SchemaTooNew, migrate
+from fieldkit.store.sqlite import connect, database_path, transaction
+from fieldkit.store.store_errors import Conflict, NotFound
 
 __all__ = [
     "SCHEMA_VERSION",

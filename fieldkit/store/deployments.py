@@ -9,8 +9,8 @@ from dataclasses import dataclass
 from datetime import UTC, datetime
 from typing import Any
 
-from fieldkit.store.db import transaction
-from fieldkit.store.errors import NotFound
+from fieldkit.store.sqlite import transaction
+from fieldkit.store.store_errors import NotFound
 
 
 def utc_now() -> str:

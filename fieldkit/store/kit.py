@@ -6,8 +6,8 @@ import json
 import sqlite3
 from typing import Any
 
-from fieldkit.store.db import transaction
 from fieldkit.store.deployments import dumps, utc_now
+from fieldkit.store.sqlite import transaction
 
 
 def get(conn: sqlite3.Connection) -> tuple[dict[str, Any] | None, str | None]:

@@ -10,7 +10,7 @@ from __future__ import annotations
 import sqlite3
 from pathlib import Path
 
-from fieldkit.store.db import connect, transaction
+from fieldkit.store.sqlite import connect, transaction
 
 # Version 1: deployments (name, plan input, last result), the kit inventory, and the append-only
 # acknowledgements of checklist items (client_id unique: a replayed acknowledgement is one record).

@@ -10,9 +10,9 @@ from collections.abc import Iterable, Mapping
 from typing import Any
 
 from fieldkit.errors import InputError, array, check_keys, join, number, require_mapping, text
-from fieldkit.store import checks, deployments
-from fieldkit.store.db import transaction
-from fieldkit.store.errors import Conflict
+from fieldkit.store import acknowledgements, deployments
+from fieldkit.store.sqlite import transaction
+from fieldkit.store.store_errors import Conflict
 
 FORMAT = "fieldkit-deployment"
 FORMAT_VERSION = 1
@@ -48,7 +48,7 @@ def export_deployment(conn: sqlite3.Connection, deployment_id: str) -> dict[str,
                 "received_at": ack.received_at,
                 "item_text_sha256": ack.item_text_sha256,
             }
-            for ack in checks.history(conn, deployment_id)
+            for ack in acknowledgements.history(conn, deployment_id)
         ],
     }
 
@@ -82,8 +82,8 @@ def _validated(doc: Any) -> dict[str, Any]:
         "updated_at": text(dep["updated_at"], "deployment.updated_at", max_length=40),
         "revision": number(dep["revision"], "deployment.revision", minimum=1, integer=True),
     }
-    checks.instant_utc(clean["created_at"], "deployment.created_at")
-    checks.instant_utc(clean["updated_at"], "deployment.updated_at")
+    acknowledgements.instant_utc(clean["created_at"], "deployment.created_at")
+    acknowledgements.instant_utc(clean["updated_at"], "deployment.updated_at")
     acks = array(
         doc.get("acknowledgements", []), "acknowledgements", max_items=MAX_IMPORTED_ACKNOWLEDGEMENTS
     )
@@ -112,8 +112,8 @@ def _validated(doc: Any) -> dict[str, Any]:
             "received_at": text(ack.get("received_at"), join(field, "received_at"), max_length=40),
             "item_text_sha256": sha,
         }
-        checks.instant_utc(item["at"], join(field, "at"))
-        checks.instant_utc(item["received_at"], join(field, "received_at"))
+        acknowledgements.instant_utc(item["at"], join(field, "at"))
+        acknowledgements.instant_utc(item["received_at"], join(field, "received_at"))
         clean_acks.append(item)
     return {"deployment": clean, "acknowledgements": clean_acks}
 
@@ -154,7 +154,7 @@ def import_deployment(conn: sqlite3.Connection, doc: Any) -> tuple[str, bool]:
             revision=dep["revision"],
         )
         for i, ack in enumerate(clean["acknowledgements"]):
-            _, replayed = checks.insert(conn, deployment_id=dep["id"], **ack)
+            _, replayed = acknowledgements.insert(conn, deployment_id=dep["id"], **ack)
             if replayed:
                 raise Conflict(
                     join(join("acknowledgements", i), "client_id"),

@@ -9,8 +9,8 @@ import pytest
 from scipy import integrate, special
 
 from fieldkit.antenna import Ground, solve
-from fieldkit.antenna.materials import EPS0
 from fieldkit.antenna.sommerfeld import complex_images, spectral_functions
+from fieldkit.constants import EPS0
 from tests.antenna.cases import dipole
 
 
@@ -194,8 +194,8 @@ def test_dipole_power_over_ground_matches_textbook_formula(eps_r, sigma, h_wl, o
     h = h_wl * lam
     t = np.array([[1.0, 0, 0]]) if orientation == "horizontal" else np.array([[0, 0, 1.0]])
     p = np.array([[0.0, 0.0, h]])
-    from fieldkit.antenna.materials import ETA0
     from fieldkit.antenna.sommerfeld import coupling_pairs
+    from fieldkit.constants import ETA0
 
     e = coupling_pairs(p, t, p, t, im)[0] / (4 * math.pi * 1j * 2 * math.pi * f * EPS0)
     mine = 1 + (-0.5 * e.real) / (ETA0 * k0**2 / (12 * math.pi))

@@ -11,7 +11,7 @@ import math
 
 import numpy as np
 
-from fieldkit.antenna.materials import EPS0
+from fieldkit.constants import EPS0
 
 
 def dipole_fields(obs, src, moment, k, omega):

@@ -13,7 +13,7 @@ import numpy as np
 import pytest
 
 from fieldkit.antenna import Antenna, Feed, Wire
-from fieldkit.antenna.geometry import SEGMENTS_PER_WAVELENGTH, build_mesh
+from fieldkit.antenna.mesh import SEGMENTS_PER_WAVELENGTH, build_mesh
 from fieldkit.rigging.hung import hang_inverted_v, hang_span, recut
 from fieldkit.rigging.options import max_chord_m
 

@@ -1,6 +1,6 @@
 """Replays from phones that were offline: twice, out of order, concurrently, after an edit.
 
-The rule under test is the service's own (fieldkit/store/checks.py and the ``rule`` field of
+The rule under test is the service's own (fieldkit/store/acknowledgements.py and the ``rule`` field of
 ``GET /api/deployments/<id>/checks``): per item, the acknowledgement with the latest ``at`` (UTC)
 is the current state; equal times go to the later arrival; the history keeps every
 acknowledgement; a repeated ``client_id`` is one record, and the same ``client_id`` with different

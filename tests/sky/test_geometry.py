@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 
 from fieldkit.sky import elevation_deg, ground_range_km
-from fieldkit.sky.geometry import (
+from fieldkit.sky.path_geometry import (
     fot_mhz,
     incidence_deg,
     muf_mhz,

@@ -11,8 +11,8 @@ import numpy as np
 import pytest
 
 from fieldkit.sky.gain import ELEVATIONS_DEG, ElevationGain
-from fieldkit.sky.geometry import elevation_deg, slant_path_km
 from fieldkit.sky.noise import man_made_fa_db
+from fieldkit.sky.path_geometry import elevation_deg, slant_path_km
 from fieldkit.sky.reach import EXCESS_LOSS_DB, Radio, channel_reach
 
 SSB = Radio(power_w=100.0, bandwidth_hz=2700.0, required_snr_db=10.0, mode="ssb")

@@ -10,7 +10,7 @@ import pytest
 
 from fieldkit import store
 from fieldkit.errors import InputError
-from fieldkit.store import checks, deployments, kit, transfer
+from fieldkit.store import acknowledgements, deployments, kit, transfer
 from fieldkit.store.schema import MIGRATIONS, SCHEMA_VERSION, SchemaTooNew, migrate, schema_version
 
 PLAN_INPUT = {
@@ -70,7 +70,7 @@ def test_migrate_from_version_1_keeps_and_fills_data(tmp_path):
         assert json.loads(row["site"]) == PLAN_INPUT["site"]
         assert json.loads(row["kit"]) == PLAN_INPUT["kit"]
         assert json.loads(row["channels"]) == PLAN_INPUT["channels_mhz"]
-        assert [a.client_id for a in checks.history(conn, "d1")] == ["c1"]
+        assert [a.client_id for a in acknowledgements.history(conn, "d1")] == ["c1"]
         with pytest.raises(sqlite3.IntegrityError, match="append-only"):
             conn.execute("UPDATE acknowledgements SET done = 0")
     finally:
@@ -121,9 +121,11 @@ def test_migrate_from_previous_schema_keeps_ticks_counting(tmp_path):
     assert migrate(path) == SCHEMA_VERSION
     conn = store.connect(path)
     try:
-        [ack] = checks.history(conn, new_id)
+        [ack] = acknowledgements.history(conn, new_id)
         assert ack.item_text_sha256 is None
-        assert checks.counts_for(ack, "any wording")  # a tick from before the wording was kept
+        assert acknowledgements.counts_for(
+            ack, "any wording"
+        )  # a tick from before the wording was kept
     finally:
         conn.close()
 
@@ -193,7 +195,7 @@ def test_deployment_crud(db):
 
 def test_deleting_a_deployment_removes_its_history(db):
     new_id = deployments.create(db, name="A", plan_input=PLAN_INPUT, plan_result=None)
-    checks.acknowledge(
+    acknowledgements.acknowledge(
         db,
         deployment_id=new_id,
         item_id="pre-x",
@@ -217,7 +219,7 @@ def test_deleting_a_deployment_removes_its_history(db):
 )
 def test_instant_utc(value, utc):
     # ISO 8601 / RFC 3339 date-times with offsets, normalised to UTC.
-    assert checks.instant_utc(value, "at") == utc
+    assert acknowledgements.instant_utc(value, "at") == utc
 
 
 @pytest.mark.parametrize(
@@ -225,7 +227,7 @@ def test_instant_utc(value, utc):
 )
 def test_instant_utc_refuses(value):
     with pytest.raises(InputError) as caught:
-        checks.instant_utc(value, "at")
+        acknowledgements.instant_utc(value, "at")
     assert caught.value.field == "at"
 
 
@@ -233,7 +235,7 @@ def test_current_state_later_at_wins_and_history_keeps_all(db):
     new_id = deployments.create(db, name="A", plan_input=PLAN_INPUT, plan_result=None)
 
     def tick(client_id, done, at):
-        return checks.acknowledge(
+        return acknowledgements.acknowledge(
             db,
             deployment_id=new_id,
             item_id="pre-x",
@@ -245,19 +247,19 @@ def test_current_state_later_at_wins_and_history_keeps_all(db):
 
     tick("c1", True, "2026-12-01T14:00:00Z")
     tick("c2", False, "2026-12-01T13:59:00Z")  # arrives later, happened earlier
-    assert checks.current_state(db, new_id)["pre-x"].client_id == "c1"
+    assert acknowledgements.current_state(db, new_id)["pre-x"].client_id == "c1"
     tick("c3", False, "2026-12-01T15:00:00+01:00")  # same instant as c1: the later arrival wins
-    assert checks.current_state(db, new_id)["pre-x"].client_id == "c3"
+    assert acknowledgements.current_state(db, new_id)["pre-x"].client_id == "c3"
     _, replayed = tick("c1", True, "2026-12-01T14:00:00Z")
     assert replayed
-    assert [a.client_id for a in checks.history(db, new_id)] == ["c1", "c2", "c3"]
+    assert [a.client_id for a in acknowledgements.history(db, new_id)] == ["c1", "c2", "c3"]
     with pytest.raises(store.Conflict):
         tick("c1", False, "2026-12-01T14:00:00Z")
 
 
 def test_acknowledging_a_missing_deployment_is_not_found(db):
     with pytest.raises(store.NotFound):
-        checks.acknowledge(
+        acknowledgements.acknowledge(
             db,
             deployment_id="nope",
             item_id="x",
@@ -281,7 +283,7 @@ def test_parallel_writers_on_separate_connections(tmp_path):
         conn = store.connect(path)
         try:
             for i in range(25):
-                checks.acknowledge(
+                acknowledgements.acknowledge(
                     conn,
                     deployment_id=new_id,
                     item_id="pre-x",
@@ -303,7 +305,7 @@ def test_parallel_writers_on_separate_connections(tmp_path):
     assert errors == []
     conn = store.connect(path)
     try:
-        assert len(checks.history(conn, new_id)) == 150
+        assert len(acknowledgements.history(conn, new_id)) == 150
     finally:
         conn.close()
 
@@ -321,7 +323,7 @@ def test_export_import_round_trip(db, tmp_path):
         db, name="Ünïcode ☂", plan_input=PLAN_INPUT, plan_result={"options": [{"x": 1.5}]}
     )
     for i, done in enumerate((True, False, True)):
-        checks.acknowledge(
+        acknowledgements.acknowledge(
             db,
             deployment_id=new_id,
             item_id=f"pre-{i % 2}",
@@ -340,7 +342,9 @@ def test_export_import_round_trip(db, tmp_path):
     try:
         assert transfer.import_deployment(other, json.loads(text)) == (new_id, True)
         assert transfer.export_deployment(other, new_id) == doc
-        assert checks.current_state(other, new_id) == checks.current_state(db, new_id)
+        assert acknowledgements.current_state(other, new_id) == acknowledgements.current_state(
+            db, new_id
+        )
         assert transfer.import_deployment(other, json.loads(text)) == (new_id, False)
     finally:
         other.close()

@@ -10,7 +10,7 @@ from flask import current_app
 
 from fieldkit.service.layers import LayerUnavailable, call_layer, layer_function
 from fieldkit.service.plancache import PlanCache
-from fieldkit.store import checks
+from fieldkit.store import acknowledgements
 
 PRE_RAISE = "pre-raise"
 CONFLICT_RULE = (
@@ -76,7 +76,7 @@ def checklist_state(
     conn: sqlite3.Connection,
     deployment_id: str,
     result: Any,
-    history: list[checks.Acknowledgement] | None = None,
+    history: list[acknowledgements.Acknowledgement] | None = None,
 ) -> tuple[list[dict], dict[str, Any]]:
     """Each checklist item with its current state, and the deployment's readiness to raise.
 
@@ -85,11 +85,15 @@ def checklist_state(
     an earlier wording of the item and no longer count: the plan changed what the item says).
     """
     if history is None:
-        history = checks.history(conn, deployment_id)
+        history = acknowledgements.history(conn, deployment_id)
     items_in = checklist(result)
     texts = {item["id"]: item.get("text", "") for item in items_in}
-    valid = [a for a in history if a.item_id in texts and checks.counts_for(a, texts[a.item_id])]
-    state = checks.decide(valid)
+    valid = [
+        a
+        for a in history
+        if a.item_id in texts and acknowledgements.counts_for(a, texts[a.item_id])
+    ]
+    state = acknowledgements.decide(valid)
     counts: dict[str, int] = {}
     for ack in history:
         counts[ack.item_id] = counts.get(ack.item_id, 0) + 1
@@ -114,7 +118,7 @@ def checklist_state(
     return items, readiness(result, items, valid)
 
 
-def _checks_done(items: list[dict], history: list[checks.Acknowledgement]) -> bool:
+def _checks_done(items: list[dict], history: list[acknowledgements.Acknowledgement]) -> bool:
     """The safety layer's rule when it is in this build, else the same rule computed here."""
     try:
         rule = layer_function("fieldkit.safety", "ready_to_raise")
@@ -131,7 +135,9 @@ def _missing(items: list[dict]) -> list[str]:
     ]
 
 
-def readiness(result: Any, items: list[dict], history: list[checks.Acknowledgement]) -> dict:
+def readiness(
+    result: Any, items: list[dict], history: list[acknowledgements.Acknowledgement]
+) -> dict:
     """Ready to raise: a plan exists, its safety block does not forbid raising (``raise_ok`` is not
     false), and every required pre-raise item is acknowledged done. Without a plan nothing is ready."""
     ok = raise_ok(result)

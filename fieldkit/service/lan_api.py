@@ -12,7 +12,7 @@ from flask import Blueprint, current_app, jsonify, request
 from fieldkit.errors import InputError, check_keys
 from fieldkit.service.http import json_body
 from fieldkit.service.security import KEY_QUERY, keyring, set_key_cookie
-from fieldkit.store.errors import Conflict
+from fieldkit.store.store_errors import Conflict
 
 bp = Blueprint("lan", __name__, url_prefix="/api")
 

@@ -7,7 +7,7 @@ import math
 import numpy as np
 import pytest
 
-from fieldkit.antenna import Antenna, Feed, Ground, Insulation, Wire, geometry, solve
+from fieldkit.antenna import Antenna, Feed, Ground, Insulation, Wire, mesh, solve
 from fieldkit.antenna.materials import (
     CONDUCTIVITY_S_M,
     MU0,
@@ -74,7 +74,7 @@ def test_segmentation_converged_to_half_a_percent(monkeypatch):
     # issue 3: automatic segmentation fine enough for ~0.5 % resonance accuracy
     pts = np.array([[-20.0, 0, 10], [20.0, 0, 10]])
     default = _resonance_mhz(Wire(pts, 1e-3, "perfect"))
-    monkeypatch.setattr(geometry, "SEGMENTS_PER_WAVELENGTH", 4 * geometry.SEGMENTS_PER_WAVELENGTH)
+    monkeypatch.setattr(mesh, "SEGMENTS_PER_WAVELENGTH", 4 * mesh.SEGMENTS_PER_WAVELENGTH)
     fine = _resonance_mhz(Wire(pts, 1e-3, "perfect"))
     assert abs(default - fine) / fine < 0.005
 

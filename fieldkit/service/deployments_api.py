@@ -7,11 +7,11 @@ from typing import Any
 from flask import Blueprint, current_app, jsonify
 
 from fieldkit.errors import InputError, text
-from fieldkit.service.db import get_db
 from fieldkit.service.http import json_body
-from fieldkit.service.planning import checklist_state, plan_cache, run_plan
-from fieldkit.store import checks, deployments, transaction, transfer
-from fieldkit.store.errors import Conflict
+from fieldkit.service.readiness import checklist_state, plan_cache, run_plan
+from fieldkit.service.request_db import get_db
+from fieldkit.store import acknowledgements, deployments, transaction, transfer
+from fieldkit.store.store_errors import Conflict
 
 bp = Blueprint("deployments", __name__, url_prefix="/api/deployments")
 
@@ -73,7 +73,7 @@ def list_deployments():
     conn = get_db()
     out = []
     planning = current_app.extensions["fieldkit_planning"]
-    histories = checks.histories(conn)
+    histories = acknowledgements.histories(conn)
     for summary in deployments.summaries(conn):
         safety = summary.pop("safety")
         # Readiness needs only the chosen option's safety block: a result holding just that.

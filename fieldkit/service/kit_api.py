@@ -7,8 +7,8 @@ from typing import Any
 from flask import Blueprint, jsonify
 
 from fieldkit.errors import InputError, array, check_keys, join, number, require_mapping, text
-from fieldkit.service.db import get_db
 from fieldkit.service.http import json_body
+from fieldkit.service.request_db import get_db
 from fieldkit.store import kit
 
 bp = Blueprint("kit", __name__, url_prefix="/api")

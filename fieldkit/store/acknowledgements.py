@@ -17,9 +17,9 @@ from datetime import UTC, datetime
 from typing import Any
 
 from fieldkit.errors import InputError
-from fieldkit.store.db import transaction
 from fieldkit.store.deployments import utc_now
-from fieldkit.store.errors import Conflict, NotFound
+from fieldkit.store.sqlite import transaction
+from fieldkit.store.store_errors import Conflict, NotFound
 
 
 @dataclass(frozen=True)

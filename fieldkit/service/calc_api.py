@@ -6,7 +6,7 @@ from flask import Blueprint, jsonify
 
 from fieldkit.service.http import json_body
 from fieldkit.service.layers import call_layer
-from fieldkit.service.planning import compute_plan, plan_cache
+from fieldkit.service.readiness import compute_plan, plan_cache
 
 bp = Blueprint("calc", __name__, url_prefix="/api")
 

@@ -22,10 +22,11 @@ from functools import lru_cache
 
 import numpy as np
 
+from fieldkit.constants import SPEED_OF_LIGHT_M_S
 from fieldkit.errors import InputError
 
 from .grounds import Ground
-from .materials import C0, CONDUCTORS, Insulation
+from .materials import CONDUCTORS, Insulation
 
 # λ/80 segments: resonance within 0.04 % of a mesh 4× finer (λ/40: 0.1 %, but X moves ~1 Ω);
 # measured, docs/engine.md
@@ -336,7 +337,7 @@ def build_mesh(antenna: Antenna, *, max_frequency_hz: float) -> Mesh:
     max_frequency_hz : float
         Highest frequency to be solved [Hz]; sets the segment length.
     """
-    target = C0 / max_frequency_hz / SEGMENTS_PER_WAVELENGTH
+    target = SPEED_OF_LIGHT_M_S / max_frequency_hz / SEGMENTS_PER_WAVELENGTH
     node_xyz: list[np.ndarray] = []
     seg_nodes: list[tuple[int, int]] = []
     seg_wire: list[int] = []

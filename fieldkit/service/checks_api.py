@@ -8,11 +8,11 @@ from typing import Any
 from flask import Blueprint, Response, jsonify
 
 from fieldkit.errors import InputError, check_keys, text
-from fieldkit.service.db import get_db
 from fieldkit.service.http import json_body
-from fieldkit.service.planning import CONFLICT_RULE, checklist_state
-from fieldkit.store import checks, deployments, transaction, transfer
-from fieldkit.store.errors import NotFound
+from fieldkit.service.readiness import CONFLICT_RULE, checklist_state
+from fieldkit.service.request_db import get_db
+from fieldkit.store import acknowledgements, deployments, transaction, transfer
+from fieldkit.store.store_errors import NotFound
 
 bp = Blueprint("checks", __name__, url_prefix="/api/deployments/<deployment_id>")
 
@@ -36,7 +36,7 @@ def acknowledgement_body(body: dict[str, Any]) -> dict[str, Any]:
     if not isinstance(body["done"], bool):
         raise InputError("done", f"expected true or false, got {body['done']!r}"[:200])
     by = text(body["by"], "by", max_length=MAX_BY_LENGTH).strip()
-    checks.instant_utc(body["at"], "at")
+    acknowledgements.instant_utc(body["at"], "at")
     return {
         "done": body["done"],
         "by": by,
@@ -86,7 +86,7 @@ def read_check(deployment_id: str, item_id: str):
     conn = get_db()
     _revision, items, _ready = _state(conn, deployment_id)
     item = _item(items, item_id)
-    history = [ack.to_json() for ack in checks.history(conn, deployment_id, item_id)]
+    history = [ack.to_json() for ack in acknowledgements.history(conn, deployment_id, item_id)]
     return jsonify({"item": item, "history": history, "rule": CONFLICT_RULE})
 
 
@@ -97,11 +97,11 @@ def acknowledge(deployment_id: str, item_id: str):
     with transaction(conn):
         _revision, result = deployments.safety_view(conn, deployment_id)
         item = _item(checklist_state(conn, deployment_id, result)[0], item_id)
-        ack, replayed = checks.insert(
+        ack, replayed = acknowledgements.insert(
             conn,
             deployment_id=deployment_id,
             item_id=item_id,
-            item_text_sha256=checks.text_sha256(item.get("text", "")),
+            item_text_sha256=acknowledgements.text_sha256(item.get("text", "")),
             **fields,
         )
     items, ready = checklist_state(conn, deployment_id, result)
