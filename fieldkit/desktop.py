@@ -111,7 +111,7 @@ def run(
     reason = gui_unavailable()
     if reason is None:
         from fieldkit.service import create_app
-        from fieldkit.service.layers import warm_up
+        from fieldkit.service.calc_api import warm_up
 
         app = create_app({"DATA_DIR": data_dir, "LAN_SWITCH": True})
         warm_up()

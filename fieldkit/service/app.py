@@ -15,7 +15,7 @@ from fieldkit import paths, store
 from fieldkit.errors import InputError
 from fieldkit.service import http, request_db, security, static_files
 from fieldkit.service.plancache import DEFAULT_ENTRIES, PlanCache
-from fieldkit.service.readiness import run_plan
+from fieldkit.service.readiness import compute_plan
 from fieldkit.store import deployments
 from fieldkit.store.sqlite import get_meta, set_meta
 
@@ -141,7 +141,7 @@ def _plan_in_background(
 ) -> None:
     try:
         try:
-            result, plan_error = run_plan(doc, cache)
+            result, plan_error = compute_plan(doc, cache), None
         except InputError as exc:  # the demo must never keep the service from working
             log.warning("demo plan refused by the plan layer: %s", exc)
             result, plan_error = None, exc.to_json()

@@ -2,10 +2,11 @@
 
 from __future__ import annotations
 
+import threading
+
 from flask import Blueprint, jsonify
 
 from fieldkit.service.http import json_body
-from fieldkit.service.layers import call_layer
 from fieldkit.service.readiness import compute_plan, plan_cache
 
 bp = Blueprint("calc", __name__, url_prefix="/api")
@@ -14,16 +15,40 @@ bp = Blueprint("calc", __name__, url_prefix="/api")
 @bp.post("/model")
 def model():
     spec = json_body(allow_array=True)
-    return jsonify(call_layer("fieldkit.antenna", "model_json", spec))
+    from fieldkit.antenna import model_json  # the engine's import cost is paid by its first use
+
+    return jsonify(model_json(spec))
 
 
 @bp.post("/sky")
 def sky():
     spec = json_body()
-    return jsonify(call_layer("fieldkit.sky", "sky_json", spec))
+    from fieldkit.sky import sky_json
+
+    return jsonify(sky_json(spec))
 
 
 @bp.post("/plan")
 def plan():
     spec = json_body()
     return jsonify(compute_plan(spec, plan_cache()))
+
+
+def warm_up() -> None:
+    """Load the calculators in a background thread, so the first request after a start is not slow.
+
+    Importing the plan chain and PyIRI's coefficient reader costs 1-2 s of CPU; done at start, the
+    first request from the window or a phone does not pay it. Failures are left for the request
+    itself to report.
+    """
+
+    def load() -> None:
+        try:
+            import fieldkit.plan  # noqa: F401
+            from fieldkit.sky import iri
+
+            iri._library()
+        except Exception:  # noqa: BLE001 - the request that needs the layer reports it properly
+            pass
+
+    threading.Thread(target=load, name="fieldkit-warm-up", daemon=True).start()

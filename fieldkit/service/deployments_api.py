@@ -8,7 +8,7 @@ from flask import Blueprint, current_app, jsonify
 
 from fieldkit.errors import InputError, text
 from fieldkit.service.http import json_body
-from fieldkit.service.readiness import checklist_state, plan_cache, run_plan
+from fieldkit.service.readiness import checklist_state, compute_plan, plan_cache
 from fieldkit.service.request_db import get_db
 from fieldkit.store import acknowledgements, deployments, transaction, transfer
 from fieldkit.store.store_errors import Conflict
@@ -50,7 +50,7 @@ def create():
             if (held.name, held.plan_input) == (name, plan_input):
                 return jsonify({"id": held.id, "replayed": True}), 200
             raise Conflict("client_id", f"a different deployment with id {client_id!r} exists")
-    result, plan_error = run_plan(plan_input, plan_cache())
+    result = compute_plan(plan_input, plan_cache())
     with transaction(conn):
         if client_id is not None and deployments.find(conn, client_id) is not None:
             return jsonify({"id": client_id, "replayed": True}), 200
@@ -60,9 +60,8 @@ def create():
             name=name,
             plan_input=plan_input,
             plan_result=result,
-            plan_error=plan_error,
         )
-    response = jsonify({"id": new_id, "planned": result is not None})
+    response = jsonify({"id": new_id, "planned": True})
     response.status_code = 201
     response.headers["Location"] = f"/api/deployments/{new_id}"
     return response
@@ -95,14 +94,13 @@ def replace(deployment_id: str):
     name, _client_id, plan_input = split_body(json_body())
     conn = get_db()
     deployments.get(conn, deployment_id)  # 404 before spending time on a plan
-    result, plan_error = run_plan(plan_input, plan_cache())
+    result = compute_plan(plan_input, plan_cache())
     updated = deployments.update(
         conn,
         deployment_id,
         name=name,
         plan_input=plan_input,
         plan_result=result,
-        plan_error=plan_error,
     )
     return jsonify(describe(conn, updated))
 

@@ -28,7 +28,6 @@ _ERRORS = {
     "422": {"$ref": "#/components/responses/Invalid"},
 }
 _READ_ERRORS = {"401": _ERRORS["401"], "404": _ERRORS["404"]}
-_LAYER = {"503": {"$ref": "#/components/responses/LayerUnavailable"}}
 
 
 def _op(
@@ -71,7 +70,7 @@ PATHS: dict[str, Any] = {
             {"200": _json(_OBJECT, "model results")},
             body={"oneOf": [_ref("ModelSpec"), {"type": "array", "items": _ref("ModelSpec")}]},
             tag="calc",
-            errors={**_ERRORS, **_LAYER},
+            errors=_ERRORS,
         )
     },
     "/api/sky": {
@@ -80,7 +79,7 @@ PATHS: dict[str, Any] = {
             {"200": _json(_OBJECT, "sky estimate")},
             body=_ref("SkySpec"),
             tag="calc",
-            errors={**_ERRORS, **_LAYER},
+            errors=_ERRORS,
         )
     },
     "/api/plan": {
@@ -89,7 +88,7 @@ PATHS: dict[str, Any] = {
             {"200": _json(_ref("PlanResult"), "plan")},
             body=_ref("PlanInput"),
             tag="calc",
-            errors={**_ERRORS, **_LAYER},
+            errors=_ERRORS,
         )
     },
     "/api/deployments": {
@@ -476,7 +475,6 @@ RESPONSES = {
     "TooLarge": _error_response("the body is over the size limit"),
     "UnsupportedMedia": _error_response("writes need Content-Type: application/json"),
     "Invalid": _error_response("a field is wrong: the error names it and what is expected"),
-    "LayerUnavailable": _error_response("the layer behind this endpoint is not in this build"),
 }
 
 

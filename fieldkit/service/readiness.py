@@ -8,7 +8,6 @@ from typing import Any
 
 from flask import current_app
 
-from fieldkit.service.layers import LayerUnavailable, call_layer, layer_function
 from fieldkit.service.plancache import PlanCache
 from fieldkit.store import acknowledgements
 
@@ -26,23 +25,9 @@ def plan_cache() -> PlanCache | None:
 def compute_plan(spec: Any, cache: PlanCache | None = None) -> Any:
     """``fieldkit.plan.plan(spec)``, through the cache when one is given."""
 
-    def compute(value: Any) -> Any:
-        return call_layer("fieldkit.plan", "plan", value)
+    from fieldkit.plan import plan  # imported on first use: the engine costs ~0.6 s to import
 
-    return cache.get_or_compute(spec, compute) if cache is not None else compute(spec)
-
-
-def run_plan(
-    plan_input: Mapping[str, Any], cache: PlanCache | None = None
-) -> tuple[dict[str, Any] | None, dict[str, Any] | None]:
-    """The plan result, or ``(None, error)`` when the plan layer is not in this build.
-
-    Bad input raises :class:`fieldkit.errors.InputError` from the plan layer itself.
-    """
-    try:
-        return compute_plan(dict(plan_input), cache), None
-    except LayerUnavailable as exc:
-        return None, exc.to_json()
+    return cache.get_or_compute(spec, plan) if cache is not None else plan(spec)
 
 
 def chosen_option(result: Mapping[str, Any] | None) -> Mapping[str, Any] | None:
@@ -119,12 +104,10 @@ def checklist_state(
 
 
 def _checks_done(items: list[dict], history: list[acknowledgements.Acknowledgement]) -> bool:
-    """The safety layer's rule when it is in this build, else the same rule computed here."""
-    try:
-        rule = layer_function("fieldkit.safety", "ready_to_raise")
-    except LayerUnavailable:
-        return not _missing(items)
-    return bool(rule(items, [ack.to_json() for ack in history]))
+    """The safety layer's rule over the acknowledgements."""
+    from fieldkit.safety import ready_to_raise
+
+    return bool(ready_to_raise(items, [ack.to_json() for ack in history]))
 
 
 def _missing(items: list[dict]) -> list[str]:

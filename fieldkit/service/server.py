@@ -22,8 +22,8 @@ from waitress.server import create_server
 
 from fieldkit.errors import InputError
 from fieldkit.service.app import create_app
+from fieldkit.service.calc_api import warm_up
 from fieldkit.service.lan_api import access_url, lan_address, qr_terminal
-from fieldkit.service.layers import warm_up
 from fieldkit.store.sqlite import checkpoint_and_close
 
 log = logging.getLogger("fieldkit.service")

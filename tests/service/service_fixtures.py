@@ -3,11 +3,7 @@
 from __future__ import annotations
 
 import copy
-import importlib
-import importlib.util
 import uuid
-
-import pytest
 
 # A stored plan result shaped like the plan contract of ARCHITECTURE.md, for tests of the store and the
 # checklist endpoints that must not depend on the plan layer's numbers. Its checklist items follow the
@@ -57,19 +53,3 @@ def export_doc(*, deployment_id: str | None = None, raise_ok: bool = True, acks=
 
 def ack(done=True, by="AB", at="2026-12-01T14:05:00Z", client_id=None) -> dict:
     return {"done": done, "by": by, "at": at, "client_id": client_id or str(uuid.uuid4())}
-
-
-def layer_state(module: str, name: str) -> str:
-    """'present' (importable, has the function), 'absent' (no such module) or 'broken'."""
-    if importlib.util.find_spec(module) is None:
-        return "absent"
-    try:
-        loaded = importlib.import_module(module)
-    except ImportError:
-        return "broken"
-    return "present" if hasattr(loaded, name) else "absent"
-
-
-def skip_if_broken(state: str, module: str) -> None:
-    if state == "broken":
-        pytest.skip(f"{module} exists but does not import yet (another layer is mid-way)")

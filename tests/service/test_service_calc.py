@@ -8,8 +8,6 @@ import pytest
 
 from fieldkit import paths
 
-from .service_fixtures import layer_state
-
 DEMO = paths.assets_dir() / "demo"
 ENDPOINTS = {
     "/api/model": ("fieldkit.antenna", "model_json", "dipole-model.json"),
@@ -27,10 +25,6 @@ def test_calc_endpoint_matches_the_layer_function(client, path):
     module, name, file = ENDPOINTS[path]
     spec = demo(file)
     response = client.post(path, json=spec)
-    if layer_state(module, name) != "present":
-        assert response.status_code == 503
-        assert response.json["error"] == "layer not available"
-        return
     assert response.status_code == 200, response.json
     import importlib
 
@@ -40,8 +34,6 @@ def test_calc_endpoint_matches_the_layer_function(client, path):
 
 
 def test_model_contract_fields(client):
-    if layer_state("fieldkit.antenna", "model_json") != "present":
-        pytest.skip("fieldkit.antenna.model_json has not landed")
     body = client.post("/api/model", json=demo("dipole-model.json")).json
     first = body["results"][0]
     assert {"frequency_mhz", "impedance_ohm", "swr", "zenith_gain_dbi"} <= set(first)
@@ -60,9 +52,7 @@ def test_model_contract_fields(client):
     ],
 )
 def test_bad_input_is_422_naming_the_field(client, path, change, field_prefix):
-    module, name, file = ENDPOINTS[path]
-    if layer_state(module, name) != "present":
-        pytest.skip(f"{module}.{name} has not landed")
+    _module, _name, file = ENDPOINTS[path]
     response = client.post(path, json={**demo(file), **change})
     assert response.status_code == 422, response.json
     assert response.json["field"].startswith(field_prefix)
@@ -70,8 +60,6 @@ def test_bad_input_is_422_naming_the_field(client, path, change, field_prefix):
 
 
 def test_plan_bad_input_is_422(client):
-    if layer_state("fieldkit.plan", "plan") != "present":
-        pytest.skip("fieldkit.plan has not landed")
     spec = {k: v for k, v in json.loads(paths.demo_plan_path().read_text()).items() if k != "name"}
     response = client.post("/api/plan", json={**spec, "form": "spiral"})
     assert response.status_code == 422

@@ -8,21 +8,7 @@ import uuid
 
 import pytest
 
-from .service_fixtures import CHECKLIST, ack, export_doc, layer_state
-
-PLAN_STATE = layer_state("fieldkit.plan", "plan")
-PLAN_LAYER = PLAN_STATE == "present"
-
-
-def assert_plan_layer_unavailable(demo_input):
-    """The service stored no result: the plan layer, called directly, must really be missing."""
-    if PLAN_STATE == "absent":
-        return
-    from fieldkit.plan import plan
-
-    with pytest.raises(ModuleNotFoundError) as caught:
-        plan({k: v for k, v in demo_input.items() if k != "name"})
-    assert caught.value.name.startswith("fieldkit.")
+from .service_fixtures import CHECKLIST, ack, export_doc
 
 
 def create(client, body):
@@ -40,12 +26,8 @@ def test_create_read_list_replace_delete(client, demo_input):
     assert got["name"] == demo_input["name"]
     assert got["input"] == {k: v for k, v in demo_input.items() if k != "name"}
     assert got["revision"] == 1
-    if got["result"] is not None:
-        assert got["result"]["options"]
-        assert got["plan_error"] is None
-    else:
-        assert got["plan_error"]["error"] == "layer not available"
-        assert_plan_layer_unavailable(demo_input)
+    assert got["result"]["options"]
+    assert got["plan_error"] is None
     assert got["ready_to_raise"] is False  # nothing is acknowledged yet
 
     listed = client.get("/api/deployments").json["deployments"]
@@ -65,14 +47,10 @@ def test_create_read_list_replace_delete(client, demo_input):
     assert client.get("/api/deployments").json["deployments"] == []
 
 
-@pytest.mark.skipif(not PLAN_LAYER, reason="fieldkit.plan has not landed")
 @pytest.mark.slow
 def test_created_deployment_has_the_plan_layers_checklist(client, demo_input):
     new_id = create(client, demo_input).json["id"]
     got = client.get(f"/api/deployments/{new_id}").json
-    if got["result"] is None:
-        assert_plan_layer_unavailable(demo_input)
-        pytest.skip("the plan layer has not fully landed")
     items = client.get(f"/api/deployments/{new_id}/checks").json["items"]
     expected = got["result"]["options"][0]["safety"]["checklist"]
     assert [i["id"] for i in items] == [i["id"] for i in expected]
@@ -121,13 +99,9 @@ def test_create_refuses_bad_fields(client, body, field):
     assert client.get("/api/deployments").json["deployments"] == []
 
 
-@pytest.mark.skipif(not PLAN_LAYER, reason="fieldkit.plan has not landed")
 def test_create_with_bad_plan_input_is_422_and_not_stored(client, demo_input):
     bad = {**demo_input, "channels_mhz": [-3.0]}
     response = create(client, bad)
-    if response.status_code == 201 and not response.json["planned"]:
-        assert_plan_layer_unavailable(demo_input)
-        pytest.skip("the plan layer has not fully landed")
     assert response.status_code == 422
     assert response.json["field"].startswith("channels_mhz")
     assert client.get("/api/deployments").json["deployments"] == []

@@ -9,7 +9,9 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-ALLOWED = {200, 201, 400, 404, 409, 413, 415, 422, 503}
+ALLOWED = {200, 201, 400, 404, 409, 413, 415, 422}
+# A plan may also meet a full plan queue (503 with Retry-After), a real answer of /api/plan.
+ALLOWED_CALC = ALLOWED | {503}
 # A request must finish within this bound [s] (random bodies are refused at validation).
 BOUND_S = 10.0
 
@@ -54,8 +56,8 @@ FUZZ = settings(
 )
 
 
-def check(response, started):
-    assert response.status_code in ALLOWED, response.get_data(as_text=True)[:500]
+def check(response, started, allowed=ALLOWED):
+    assert response.status_code in allowed, response.get_data(as_text=True)[:500]
     assert time.perf_counter() - started < BOUND_S
     body = response.json
     assert body is not None
@@ -90,7 +92,7 @@ def test_fuzz_import(client, body):
 @given(path=st.sampled_from(["/api/model", "/api/sky", "/api/plan"]), body=json_values)
 def test_fuzz_calc(client, path, body):
     started = time.perf_counter()
-    check(client.post(path, json=body), started)
+    check(client.post(path, json=body), started, ALLOWED_CALC)
 
 
 @FUZZ
