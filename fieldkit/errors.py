@@ -11,6 +11,10 @@ import math
 from collections.abc import Iterable, Mapping
 from typing import Any
 
+# The largest integer a JSON number carries exactly between programs: ±(2**53 - 1), RFC 8259 §6 and
+# I-JSON, RFC 7493 §2.2. No fieldkit field needs more (counts, ids and revisions stay far below).
+MAX_EXACT_INTEGER = 2**53 - 1
+
 
 class InputError(ValueError):
     """Bad input: names the field, the value and what is expected."""
@@ -74,6 +78,13 @@ def number(
         what = "an integer"
     if isinstance(value, bool) or not isinstance(value, int | float):
         raise InputError(field, f"expected {what}, got {_show(value)}", value=value)
+    if isinstance(value, int) and abs(value) > MAX_EXACT_INTEGER:  # before any float() of it
+        raise InputError(
+            field,
+            f"expected {what}; got an integer beyond ±{MAX_EXACT_INTEGER}, the largest JSON carries "
+            "exactly",
+            value=None,
+        )
     if integer and not float(value).is_integer():
         raise InputError(field, f"expected {what}, got {_show(value)}", value=value)
     if not math.isfinite(value):

@@ -8,6 +8,8 @@ References
 ----------
 .. [1] FCC OET Bulletin 65, Supplement B (amateur radio stations), 1997, Table 1 "operating duty factor
    of modes": conversational SSB about 20 %, CW about 40 %, FM and continuous data 100 %. From memory.
+.. [2] 47 CFR §97.313(b): no amateur station may transmit with more than 1 500 W peak envelope power.
+   From memory.
 """
 
 from __future__ import annotations
@@ -29,6 +31,13 @@ MODE_DUTY_FACTOR: dict[str, float] = {
 MODE_LABEL = {"ssb": "SSB", "cw": "CW", "data": "data", "fm": "FM"}
 #: Default fraction of the averaging time spent transmitting: the worst case (on the air throughout).
 DEFAULT_TRANSMIT_FRACTION = 1.0
+#: Largest transmitter power accepted [W PEP]. Reason: 1 500 W is the highest ceiling among the licence
+#: classes fieldkit serves (US amateur maximum, 47 CFR §97.313(b) [2]; most administrations allow
+#: 400 W-1 kW, and portable agency and military HF sets give 100 W-1 kW, from memory), and the exposure
+#: model is meant for that range: a field-site keep-out zone around a low wire, searched near the
+#: antenna. Far above it the zone outgrows any clearing and the search only grows (a 1 GW probe ran
+#: for minutes and still said raise_ok); such a station needs a licensed engineer's exposure study.
+MAX_POWER_W = 1500.0
 
 
 @dataclass(frozen=True)
@@ -83,6 +92,14 @@ def parse_radio(value: Any, field: str = "radio") -> Radio:
     power = number(
         obj["power_w"], join(field, "power_w"), unit="W", minimum=0.0, exclusive_minimum=True
     )
+    if power > MAX_POWER_W:
+        raise InputError(
+            join(field, "power_w"),
+            f"expected at most {MAX_POWER_W:g} W, got {power:g}: the most any licence class "
+            "fieldkit serves allows (47 CFR §97.313); a larger station needs a licensed engineer's "
+            "exposure study",
+            value=power,
+        )
     mode = choice(obj["mode"], join(field, "mode"), MODE_DUTY_FACTOR)
     fraction = DEFAULT_TRANSMIT_FRACTION
     if "transmit_fraction" in obj:

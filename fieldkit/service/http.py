@@ -6,13 +6,13 @@ Every error leaves as ``{"error", "field", "detail"}``; bad input is a 4xx, neve
 from __future__ import annotations
 
 import json
-import math
 from typing import Any
 
 from flask import Flask, Response, current_app, jsonify, request
 from flask.json.provider import DefaultJSONProvider
 from werkzeug.exceptions import HTTPException, RequestEntityTooLarge
 
+from fieldkit import jsonio
 from fieldkit.errors import InputError
 
 # Deepest JSON nesting accepted. The deepest real input (a plan with a sky block and a model spec
@@ -35,30 +35,6 @@ def error_response(status: int, error: str, detail: str, field: str | None = Non
     return response
 
 
-def _refuse_constant(name: str) -> float:
-    raise ValueError(f"{name} is not a JSON number")
-
-
-def _finite_float(literal: str) -> float:
-    value = float(literal)
-    if not math.isfinite(value):
-        raise ValueError(f"{literal} is too large for a finite number")
-    return value
-
-
-def _depth_ok(value: Any) -> bool:
-    stack = [(value, 1)]
-    while stack:
-        item, depth = stack.pop()
-        if depth > MAX_JSON_DEPTH:
-            return False
-        if isinstance(item, dict):
-            stack.extend((child, depth + 1) for child in item.values())
-        elif isinstance(item, list):
-            stack.extend((child, depth + 1) for child in item)
-    return True
-
-
 class BadBody(InputError):
     """A body that is not acceptable JSON at all (HTTP 400)."""
 
@@ -73,7 +49,8 @@ def json_body(*, allow_array: bool = False) -> Any:
     """The request's JSON body: an object (or an array where the endpoint allows one).
 
     Refuses non-JSON content types (415), bodies over the size limit (413), malformed or non-finite
-    JSON and nesting deeper than :data:`MAX_JSON_DEPTH` (400), and a wrong top-level type (422).
+    JSON and nesting deeper than :data:`MAX_JSON_DEPTH` (400), an integer beyond what JSON carries
+    exactly (422, naming its field) and a wrong top-level type (422).
     """
     if request.mimetype != "application/json":
         raise UnsupportedMedia()
@@ -81,12 +58,12 @@ def json_body(*, allow_array: bool = False) -> Any:
     if not raw.strip():
         raise BadBody("expected a JSON body, got an empty one")
     try:
-        value = json.loads(raw, parse_constant=_refuse_constant, parse_float=_finite_float)
+        value = jsonio.parse(raw)
     except RecursionError:
         raise BadBody(f"JSON nested deeper than {MAX_JSON_DEPTH} levels") from None
     except ValueError as exc:  # JSONDecodeError and UnicodeDecodeError are ValueErrors
         raise BadBody(f"not valid JSON: {exc}"[:300]) from None
-    if not _depth_ok(value):
+    if not jsonio.refuse_unrepresentable(value, MAX_JSON_DEPTH):
         raise BadBody(f"JSON nested deeper than {MAX_JSON_DEPTH} levels")
     try:  # a lone surrogate escape ("\ud800") is valid JSON but not text: SQLite would fail on it
         json.dumps(value, ensure_ascii=False).encode("utf-8")
@@ -140,8 +117,9 @@ def register_errors(app: Flask) -> None:
 
     @app.errorhandler(Exception)
     def unexpected(exc: Exception) -> Response:
-        # Logged with the path only: query strings and headers may carry the access key.
-        current_app.logger.exception("unexpected error in %s %s", request.method, request.path)
+        # Logged with the path only (query strings and headers may carry the access key), quoted
+        # with repr: a newline in the path cannot forge a log line.
+        current_app.logger.exception("unexpected error in %s %r", request.method, request.path)
         return error_response(
             500, "internal error", "an unexpected error; the service log has the details"
         )

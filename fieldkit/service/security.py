@@ -13,7 +13,7 @@ import hmac
 import ipaddress
 import secrets
 import threading
-from urllib.parse import urlencode
+from urllib.parse import quote, urlencode
 
 from flask import Flask, Response, current_app, redirect, request
 from werkzeug.datastructures import MultiDict
@@ -99,6 +99,16 @@ def is_loopback_host(host: str) -> bool:
         return False
 
 
+def same_site_path(path: str) -> str:
+    """``path`` as a Location that stays on this service.
+
+    Percent-encoded (a tab or newline cannot reach the header: browsers drop tabs and newlines from
+    URLs, so ``/\t/evil.example`` would become the protocol-relative ``//evil.example``), and with
+    one leading slash (``//host`` would leave the laptop).
+    """
+    return "/" + quote(path, safe="/").lstrip("/")
+
+
 def _guard() -> Response | None:
     """Before every request: the LAN key for the API, the cookie from ``?key=``, JSON-only writes.
 
@@ -129,8 +139,7 @@ def _guard() -> Response | None:
             # Move the key from the address into the cookie, so it does not stay in the history.
             rest = MultiDict(request.args)
             rest.pop(KEY_QUERY)
-            # request.path "//host" would be a protocol-relative redirect off the laptop: never.
-            target = "/" if path.startswith("//") else path
+            target = same_site_path(path)
             if rest:
                 target += "?" + urlencode(list(rest.items(multi=True)))
             response = redirect(target, code=303)

@@ -34,10 +34,14 @@ def _send(name: str):
     web_dir = Path(current_app.config["WEB_DIR"])
     parts = name.split("/")
     if any(part.startswith(".") for part in parts) or safe_join(str(web_dir), name) is None:
-        raise NotFound(f"no file {name!r} in the app")
+        raise NotFound(f"no file {name[:80]!r} in the app")
     target = web_dir / name
-    if not target.is_file():
-        raise NotFound(f"no file {name!r} in the app")
+    try:
+        found = target.is_file()
+    except OSError:  # a name longer than the file system allows (ENAMETOOLONG), and the like
+        found = False
+    if not found:
+        raise NotFound(f"no file {name[:80]!r} in the app")
     response = send_from_directory(web_dir, name)
     if parts[-1] in NO_CACHE_NAMES or name.endswith(NO_CACHE_SUFFIXES):
         response.headers["Cache-Control"] = "no-cache"

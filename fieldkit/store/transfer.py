@@ -17,6 +17,9 @@ from fieldkit.store.store_errors import Conflict
 FORMAT = "fieldkit-deployment"
 FORMAT_VERSION = 1
 MAX_IMPORTED_ACKNOWLEDGEMENTS = 20_000
+# A revision is bumped by each edit: two thousand million edits is beyond any deployment, and the bound
+# keeps every later revision + 1 far inside SQLite's 64-bit INTEGER.
+MAX_REVISION = 2**31 - 1
 _ID = re.compile(r"^[A-Za-z0-9_.:-]{1,64}$")
 _SHA256 = re.compile(r"^[0-9a-f]{64}$")
 
@@ -62,7 +65,8 @@ def _validated(doc: Any) -> dict[str, Any]:
     check_keys(doc, "", ("format", "format_version", "deployment", "acknowledgements"))
     if doc.get("format") != FORMAT:
         raise InputError("format", f"expected {FORMAT!r}, got {doc.get('format')!r}"[:200])
-    if doc.get("format_version") != FORMAT_VERSION:
+    version = doc.get("format_version")
+    if type(version) is not int or version != FORMAT_VERSION:  # true == 1 in Python: not here
         raise InputError(
             "format_version", f"expected {FORMAT_VERSION}, got {doc.get('format_version')!r}"[:200]
         )
@@ -80,7 +84,9 @@ def _validated(doc: Any) -> dict[str, Any]:
         "plan_error": _optional_mapping(dep.get("plan_error"), "deployment.plan_error"),
         "created_at": text(dep["created_at"], "deployment.created_at", max_length=40),
         "updated_at": text(dep["updated_at"], "deployment.updated_at", max_length=40),
-        "revision": number(dep["revision"], "deployment.revision", minimum=1, integer=True),
+        "revision": number(
+            dep["revision"], "deployment.revision", minimum=1, maximum=MAX_REVISION, integer=True
+        ),
     }
     acknowledgements.instant_utc(clean["created_at"], "deployment.created_at")
     acknowledgements.instant_utc(clean["updated_at"], "deployment.updated_at")
