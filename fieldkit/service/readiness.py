@@ -13,8 +13,10 @@ from fieldkit.store import acknowledgements
 
 PRE_RAISE = "pre-raise"
 CONFLICT_RULE = (
-    "per item, the acknowledgement with the latest 'at' (UTC) is the current state; equal times go "
-    "to the later arrival; the history keeps every acknowledgement; a repeated client_id is one record"
+    "per item, the acknowledgement the service received last is the current state (its own receipt "
+    "order, never a device's clock); the device's time is kept beside the receipt time, and one more "
+    "than five minutes ahead is flagged clock_ahead; the history keeps every acknowledgement; a "
+    "repeated client_id is one record"
 )
 
 
@@ -65,7 +67,8 @@ def checklist_state(
 ) -> tuple[list[dict], dict[str, Any]]:
     """Each checklist item with its current state, and the deployment's readiness to raise.
 
-    Items carry ``done``, ``by``, ``at`` (from the deciding acknowledgement), ``acknowledgements``
+    Items carry ``done``, ``by``, ``at`` (the device's time), ``received_at`` and ``clock_ahead`` (from
+    the deciding acknowledgement, the one received last), ``acknowledgements``
     (how many the history holds for the item) and ``stale_acknowledgements`` (how many were given for
     an earlier wording of the item and no longer count: the plan changed what the item says).
     """
@@ -96,18 +99,24 @@ def checklist_state(
                 "done": bool(held.done) if held else False,
                 "by": held.by if held else None,
                 "at": held.at if held else None,
+                "received_at": held.received_at if held else None,
+                "clock_ahead": held.clock_ahead if held else False,
                 "acknowledgements": counts.get(item["id"], 0),
                 "stale_acknowledgements": counts.get(item["id"], 0) - counting.get(item["id"], 0),
             }
         )
-    return items, readiness(result, items, valid)
+    return items, readiness(result, items, list(state.values()))
 
 
-def _checks_done(items: list[dict], history: list[acknowledgements.Acknowledgement]) -> bool:
-    """The safety layer's rule over the acknowledgements."""
+def _checks_done(items: list[dict], deciding: list[acknowledgements.Acknowledgement]) -> bool:
+    """The safety layer's rule over the deciding acknowledgement of each item.
+
+    One acknowledgement per item: which one decides is the service's rule (receipt order), so the
+    safety layer's own ordering of several cannot bring a device's clock back into it.
+    """
     from fieldkit.safety import ready_to_raise
 
-    return bool(ready_to_raise(items, [ack.to_json() for ack in history]))
+    return bool(ready_to_raise(items, [ack.to_json() for ack in deciding]))
 
 
 def _missing(items: list[dict]) -> list[str]:
@@ -119,10 +128,10 @@ def _missing(items: list[dict]) -> list[str]:
 
 
 def readiness(
-    result: Any, items: list[dict], history: list[acknowledgements.Acknowledgement]
+    result: Any, items: list[dict], deciding: list[acknowledgements.Acknowledgement]
 ) -> dict:
     """Ready to raise: a plan exists, its safety block does not forbid raising (``raise_ok`` is not
     false), and every required pre-raise item is acknowledged done. Without a plan nothing is ready."""
     ok = raise_ok(result)
-    ready = chosen_option(result) is not None and ok is not False and _checks_done(items, history)
+    ready = chosen_option(result) is not None and ok is not False and _checks_done(items, deciding)
     return {"ready_to_raise": ready, "raise_ok": ok, "missing_checks": _missing(items)}

@@ -1,11 +1,13 @@
 """Checklist acknowledgements: an append-only history per item; the current state is derived from it.
 
-Rule for conflicts (stated in docs/service.md): for each item the acknowledgement with the latest
-``at`` (the time the person ticked it, as sent by their device, compared in UTC) is the current state;
-two with the same ``at`` are ordered by arrival. The history keeps every acknowledgement. The same
-``client_id`` sent again (a phone replaying its offline queue) is the same record: nothing changes.
-An acknowledgement counts only for the wording of the item it was given for (``item_text_sha256``):
-when a re-plan changes what an item says, it must be checked again.
+Rule for conflicts (stated in docs/service.md): for each item the acknowledgement the service received
+last is the current state — the service's own receipt order (``seq``), never a device's clock. The
+device's time (``at``) is kept beside the receipt time (``received_at``); a device time more than
+:data:`CLOCK_AHEAD_TOLERANCE_S` ahead of its receipt is recorded and flagged (``clock_ahead``), and
+like any other tick it is outranked by every later one. The history keeps every acknowledgement. The
+same ``client_id`` sent again (a phone replaying its offline queue) is the same record: nothing
+changes. An acknowledgement counts only for the wording of the item it was given for
+(``item_text_sha256``): when a re-plan changes what an item says, it must be checked again.
 """
 
 from __future__ import annotations
@@ -21,6 +23,11 @@ from fieldkit.store.deployments import utc_now
 from fieldkit.store.sqlite import transaction
 from fieldkit.store.store_errors import Conflict, NotFound
 
+# How far a device's clock may run ahead of the service's before its tick is flagged [s]. Phones set
+# their clocks from the network and drift by seconds; a laptop off the grid for a week drifts by about
+# a minute (quartz, ~20 ppm, common practice). Five minutes separates drift from a wrong date or zone.
+CLOCK_AHEAD_TOLERANCE_S = 300.0
+
 
 @dataclass(frozen=True)
 class Acknowledgement:
@@ -34,10 +41,17 @@ class Acknowledgement:
     at_utc: str
     received_at: str
     item_text_sha256: str | None = None
+    device_ahead_s: float | None = None  # at_utc - received_at [s]; None only if unparsable
+
+    @property
+    def clock_ahead(self) -> bool:
+        """The device's time ran more than :data:`CLOCK_AHEAD_TOLERANCE_S` ahead of the receipt."""
+        return self.device_ahead_s is not None and self.device_ahead_s > CLOCK_AHEAD_TOLERANCE_S
 
     def to_json(self) -> dict[str, Any]:
         out = asdict(self)
         del out["seq"]
+        out["clock_ahead"] = self.clock_ahead
         return out
 
 
@@ -68,6 +82,19 @@ def text_sha256(text: object) -> str:
     return hashlib.sha256(str(text).encode("utf-8")).hexdigest()
 
 
+def seconds_between(earlier_utc: str, later_utc: str) -> float | None:
+    """``later - earlier`` [s] for two :func:`instant_utc` texts (None when either is not one)."""
+    try:
+        return round(
+            (
+                datetime.fromisoformat(later_utc) - datetime.fromisoformat(earlier_utc)
+            ).total_seconds(),
+            3,
+        )
+    except (TypeError, ValueError):
+        return None
+
+
 def counts_for(ack: Acknowledgement, item_text: object) -> bool:
     """Whether ``ack`` was given for this wording of its item (rows from before v4 always count)."""
     return ack.item_text_sha256 is None or ack.item_text_sha256 == text_sha256(item_text)
@@ -85,6 +112,7 @@ def _row(row: sqlite3.Row) -> Acknowledgement:
         at_utc=row["at_utc"],
         received_at=row["received_at"],
         item_text_sha256=row["item_text_sha256"],
+        device_ahead_s=row["device_ahead_s"],
     )
 
 
@@ -127,9 +155,10 @@ def insert(
                 value=client_id,
             )
         return stored, True
+    received_at = received_at or utc_now()
     cursor = conn.execute(
         "INSERT INTO acknowledgements (client_id, deployment_id, item_id, done, by, at, at_utc,"
-        " received_at, item_text_sha256) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
+        " received_at, item_text_sha256, device_ahead_s) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
         (
             client_id,
             deployment_id,
@@ -138,8 +167,9 @@ def insert(
             by,
             at,
             at_utc,
-            received_at or utc_now(),
+            received_at,
             item_text_sha256,
+            seconds_between(instant_utc(received_at, "received_at"), at_utc),
         ),
     )
     stored = conn.execute(
@@ -186,15 +216,19 @@ def histories(conn: sqlite3.Connection) -> dict[str, list[Acknowledgement]]:
 
 
 def current_state(conn: sqlite3.Connection, deployment_id: str) -> dict[str, Acknowledgement]:
-    """The deciding acknowledgement per item: latest ``at`` (UTC) wins, ties go to the later arrival."""
+    """The deciding acknowledgement per item: the one the service received last."""
     return decide(history(conn, deployment_id))
 
 
 def decide(acknowledgements: list[Acknowledgement]) -> dict[str, Acknowledgement]:
-    """:func:`current_state` of an already read history."""
+    """:func:`current_state` of an already read history: the latest receipt (``seq``) per item.
+
+    The device's ``at`` plays no part: a clock set years ahead cannot make a tick outrank the ones
+    that arrive after it.
+    """
     state: dict[str, Acknowledgement] = {}
     for ack in acknowledgements:
         held = state.get(ack.item_id)
-        if held is None or (ack.at_utc, ack.seq) > (held.at_utc, held.seq):
+        if held is None or ack.seq > held.seq:
             state[ack.item_id] = ack
     return state

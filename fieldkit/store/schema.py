@@ -70,7 +70,21 @@ _V3 = (
 # the old tick stale: the item must be checked again. Older rows (NULL) keep counting.
 _V4 = ("ALTER TABLE acknowledgements ADD COLUMN item_text_sha256 TEXT",)
 
-MIGRATIONS: tuple[tuple[str, ...], ...] = (_V1, _V2, _V3, _V4)
+# Version 5: acknowledgements are ordered by the service's own receipt order (seq), not by the device's
+# clock; each one records how far the device's time ran ahead of its receipt [s] (negative: behind,
+# e.g. a tick queued offline), so a clock far ahead is flagged in the history. Existing rows get the
+# figure from their stored times; the append-only trigger is lifted for that one update only.
+_V5 = (
+    "DROP TRIGGER acknowledgements_append_only",
+    "ALTER TABLE acknowledgements ADD COLUMN device_ahead_s REAL",
+    "UPDATE acknowledgements SET device_ahead_s ="
+    " round((julianday(at_utc) - julianday(received_at)) * 86400.0, 3)",
+    """CREATE TRIGGER acknowledgements_append_only BEFORE UPDATE ON acknowledgements
+        BEGIN SELECT RAISE(ABORT, 'acknowledgements are append-only'); END""",
+    "CREATE INDEX acknowledgements_by_receipt ON acknowledgements (deployment_id, item_id, seq)",
+)
+
+MIGRATIONS: tuple[tuple[str, ...], ...] = (_V1, _V2, _V3, _V4, _V5)
 SCHEMA_VERSION = len(MIGRATIONS)
 
 

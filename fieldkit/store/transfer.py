@@ -171,7 +171,18 @@ def import_deployment(conn: sqlite3.Connection, doc: Any) -> tuple[str, bool]:
 
 # A cell starting with one of these is read as a formula by spreadsheet programs (CSV injection).
 _FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
-CSV_COLUMNS = ("item_id", "stage", "required", "text", "done", "by", "at", "acknowledgements")
+CSV_COLUMNS = (
+    "item_id",
+    "stage",
+    "required",
+    "text",
+    "done",
+    "by",
+    "at",
+    "received_at",
+    "clock_ahead",
+    "acknowledgements",
+)
 
 
 def _cell(value: Any) -> str:

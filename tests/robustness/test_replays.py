@@ -1,10 +1,10 @@
 """Replays from phones that were offline: twice, out of order, concurrently, after an edit.
 
 The rule under test is the service's own (fieldkit/store/acknowledgements.py and the ``rule`` field of
-``GET /api/deployments/<id>/checks``): per item, the acknowledgement with the latest ``at`` (UTC)
-is the current state; equal times go to the later arrival; the history keeps every
-acknowledgement; a repeated ``client_id`` is one record, and the same ``client_id`` with different
-content is a 409 conflict.
+``GET /api/deployments/<id>/checks``): per item, the acknowledgement the service received last is the
+current state, whatever the device's clock said (issue 15, item 4); the history keeps every
+acknowledgement with both times; a device time more than five minutes ahead is flagged; a repeated
+``client_id`` is one record, and the same ``client_id`` with different content is a 409 conflict.
 """
 
 from __future__ import annotations
@@ -33,7 +33,7 @@ def _history(client, deployment_id, item):
 
 def test_the_rule_is_stated(client, deployment_id):
     rule = client.get(f"/api/deployments/{deployment_id}/checks").get_json()["rule"]
-    assert "latest" in rule and "client_id" in rule and "history" in rule
+    assert "received last" in rule and "client_id" in rule and "history" in rule
 
 
 def test_same_acknowledgement_twice_is_one_record(client, deployment_id):
@@ -72,14 +72,14 @@ def test_reused_client_id_with_other_content_is_a_conflict(client, deployment_id
     assert _history(client, deployment_id, "pre-item-1")["history"] == []
 
 
-def test_out_of_order_arrival_latest_time_wins_history_keeps_both(client, deployment_id):
+def test_out_of_order_arrival_the_later_receipt_wins_history_keeps_both(client, deployment_id):
     later = ack(done=True, by="AB", at="2026-12-01T14:10:00Z")
     earlier = ack(done=False, by="CD", at="2026-12-01T14:05:00Z")  # sent from an offline phone
     assert _put(client, deployment_id, "pre-item-2", later).status_code == 200
     response = _put(client, deployment_id, "pre-item-2", earlier)
     assert response.status_code == 200
     item = response.get_json()["item"]
-    assert (item["done"], item["by"], item["at"]) == (True, "AB", later["at"])
+    assert (item["done"], item["by"], item["at"]) == (False, "CD", earlier["at"])
     history = _history(client, deployment_id, "pre-item-2")["history"]
     assert [h["client_id"] for h in history] == [later["client_id"], earlier["client_id"]]
     # the late one replayed once more changes nothing
@@ -95,8 +95,9 @@ def test_equal_times_go_to_the_later_arrival(client, deployment_id):
     assert (item["done"], item["by"]) == (False, "CD")
 
 
-def test_replayed_queue_in_reverse_gives_the_same_state(tmp_path):
-    """Two laptops get the same 12 acknowledgements in opposite orders: the same current state."""
+def test_replayed_queue_in_reverse_keeps_every_record_and_each_laptops_last_receipt(tmp_path):
+    """Two laptops get the same 12 acknowledgements in opposite orders: the same 12 records, and on
+    each the state is what it received last (receipt order, not the devices' clocks)."""
     # distinct times (7 and 12 are coprime), so the tie rule plays no part here
     queue = [
         (
@@ -118,8 +119,12 @@ def test_replayed_queue_in_reverse_gives_the_same_state(tmp_path):
             assert put.status_code == 200 and put.get_json()["replayed"] is True
         items = client.get("/api/deployments/shared-deployment/checks").get_json()["items"]
         states.append({i["id"]: (i["done"], i["by"], i["acknowledgements"]) for i in items})
-    assert states[0] == states[1]
-    assert states[0]["pre-item-0"][2] + states[0]["pre-item-1"][2] == 12
+        last = {item: body for item, body in order}  # the last one each item received
+        for item, body in last.items():
+            assert states[-1][item][:2] == (body["done"], body["by"]), (name, item)
+    assert states[0] != states[1]  # the orders differ, so do the last receipts
+    for item in ("pre-item-0", "pre-item-1"):
+        assert states[0][item][2] == states[1][item][2] == 6  # every record on both laptops
 
 
 def test_concurrent_replays_over_waitress_make_one_record(tmp_path):
@@ -193,10 +198,23 @@ def test_instants_outside_the_utc_range_are_refused_by_name(client, deployment_i
     assert response.status_code == 422 and response.get_json()["field"] == "at"
 
 
-def test_a_phone_with_its_clock_in_year_999_does_not_win(client, deployment_id):
-    """Latest time wins means compared as instants: a year-999 tick is older than a 2026 one."""
+@pytest.mark.parametrize("clock", ["0999-12-01T14:05:00Z", "9999-12-31T23:59:59Z"])
+def test_a_phone_with_a_wrong_clock_neither_wins_nor_loses_by_it(client, deployment_id, clock):
+    """A clock years behind or ahead plays no part: each tick counts when it arrives, and the
+    one after it decides next (the 9999 probe of issue 15: a tick that could never be undone)."""
     now = ack(done=True, by="AB", at="2026-12-01T14:05:00Z")
-    stale = ack(done=False, by="CD", at="0999-12-01T14:05:00Z")
+    odd = ack(done=False, by="CD", at=clock)
+    after = ack(done=True, by="EF", at="2026-12-01T14:06:00Z")
     _put(client, deployment_id, "pre-item-0", now)
-    item = _put(client, deployment_id, "pre-item-0", stale).get_json()["item"]
-    assert (item["done"], item["by"]) == (True, "AB")
+    item = _put(client, deployment_id, "pre-item-0", odd).get_json()["item"]
+    assert (item["done"], item["by"]) == (False, "CD")
+    assert item["clock_ahead"] is clock.startswith("9999")  # recorded and flagged when ahead
+    item = _put(client, deployment_id, "pre-item-0", after).get_json()["item"]
+    assert (item["done"], item["by"]) == (True, "EF")
+    history = _history(client, deployment_id, "pre-item-0")["history"]
+    assert [(h["by"], h["clock_ahead"]) for h in history] == [
+        ("AB", False),
+        ("CD", clock.startswith("9999")),
+        ("EF", False),
+    ]
+    assert all(h["at"] and h["received_at"] for h in history)  # both times, always

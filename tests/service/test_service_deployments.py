@@ -141,16 +141,18 @@ def test_checks_state_replay_and_conflict_rule(client, planned):
     history = client.get(f"{base}/pre-power-line-0").json["history"]
     assert len(history) == 1
 
-    # An older un-tick arriving late does not override the newer tick: the later 'at' wins ...
-    late = ack(done=False, by="CD", at="2026-12-01T15:00:00+02:00")  # 13:00 UTC, before 14:05 UTC
-    assert client.put(f"{base}/pre-power-line-0", json=late).json["item"]["done"] is True
-    # ... and the history keeps both.
+    # The service's own receipt order decides (issue 15, item 4): an un-tick that arrives later
+    # wins whatever time its device put on it (13:00 UTC, before 14:05 UTC) ...
+    late = ack(done=False, by="CD", at="2026-12-01T15:00:00+02:00")
+    assert client.put(f"{base}/pre-power-line-0", json=late).json["item"]["done"] is False
+    # ... and the history keeps both, each with the device's time and the time of receipt.
     history = client.get(f"{base}/pre-power-line-0").json["history"]
     assert [h["by"] for h in history] == ["AB", "CD"]
+    assert all(h["at"] and h["received_at"] for h in history)
 
-    # A newer un-tick does change it.
-    newer = ack(done=False, by="EF", at="2026-12-01T14:30:00Z")
-    assert client.put(f"{base}/pre-power-line-0", json=newer).json["item"]["done"] is False
+    # The next tick to arrive changes it again.
+    newer = ack(done=True, by="EF", at="2026-12-01T14:30:00Z")
+    assert client.put(f"{base}/pre-power-line-0", json=newer).json["item"]["done"] is True
 
     # The same client_id with other content is refused.
     clash = client.put(f"{base}/pre-weather", json={**first, "by": "ZZ"})

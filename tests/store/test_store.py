@@ -130,6 +130,50 @@ def test_migrate_from_previous_schema_keeps_ticks_counting(tmp_path):
         conn.close()
 
 
+def test_migrate_from_version_4_records_clock_offsets_and_orders_by_receipt(tmp_path):
+    """Ticks stored under the old rule (latest device time wins) keep every record; after v5 the
+    receipt order decides, the 9999 tick is flagged, and the history stays append-only."""
+    path = store.database_path(tmp_path)
+    assert migrate(path, target=4) == 4
+    conn = store.connect(path)
+    new_id = deployments.create(conn, name="A", plan_input=PLAN_INPUT, plan_result=None)
+    rows = [
+        (
+            "c1",
+            1,
+            "9999-12-31T23:59:59Z",
+            "9999-12-31T23:59:59.000000Z",
+            "2026-11-30T10:05:01.000000Z",
+        ),
+        (
+            "c2",
+            0,
+            "2026-11-30T10:06:00Z",
+            "2026-11-30T10:06:00.000000Z",
+            "2026-11-30T10:06:00.500000Z",
+        ),
+    ]
+    for client_id, done, at, at_utc, received in rows:
+        conn.execute(
+            "INSERT INTO acknowledgements (client_id, deployment_id, item_id, done, by, at, at_utc,"
+            " received_at) VALUES (?, ?, 'pre-x', ?, 'AB', ?, ?, ?)",
+            (client_id, new_id, done, at, at_utc, received),
+        )
+    conn.close()
+    assert migrate(path) == SCHEMA_VERSION
+    conn = store.connect(path)
+    try:
+        first, second = acknowledgements.history(conn, new_id)
+        assert first.clock_ahead is True and first.device_ahead_s > 2.5e11  # about 7 973 years
+        assert second.clock_ahead is False and second.device_ahead_s == pytest.approx(-0.5)
+        # under the old rule c1 (year 9999) could never be undone; now the later receipt decides
+        assert acknowledgements.current_state(conn, new_id)["pre-x"].client_id == "c2"
+        with pytest.raises(sqlite3.IntegrityError, match="append-only"):
+            conn.execute("UPDATE acknowledgements SET done = 1")
+    finally:
+        conn.close()
+
+
 def test_set_result_only_for_the_revision_it_was_planned_for(db):
     new_id = deployments.create(db, name="A", plan_input=PLAN_INPUT, plan_result=None)
     deployments.update(db, new_id, name="edited", plan_input=PLAN_INPUT, plan_result=None)
@@ -231,10 +275,10 @@ def test_instant_utc_refuses(value):
     assert caught.value.field == "at"
 
 
-def test_current_state_later_at_wins_and_history_keeps_all(db):
+def test_current_state_is_the_last_receipt_and_history_keeps_all(db):
     new_id = deployments.create(db, name="A", plan_input=PLAN_INPUT, plan_result=None)
 
-    def tick(client_id, done, at):
+    def tick(client_id, done, at, received_at=None):
         return acknowledgements.acknowledge(
             db,
             deployment_id=new_id,
@@ -243,18 +287,45 @@ def test_current_state_later_at_wins_and_history_keeps_all(db):
             by="AB",
             at=at,
             client_id=client_id,
+            received_at=received_at,
         )
 
     tick("c1", True, "2026-12-01T14:00:00Z")
-    tick("c2", False, "2026-12-01T13:59:00Z")  # arrives later, happened earlier
-    assert acknowledgements.current_state(db, new_id)["pre-x"].client_id == "c1"
-    tick("c3", False, "2026-12-01T15:00:00+01:00")  # same instant as c1: the later arrival wins
-    assert acknowledgements.current_state(db, new_id)["pre-x"].client_id == "c3"
+    tick("c2", False, "2026-12-01T13:59:00Z")  # arrives later, its device says earlier: it decides
+    assert acknowledgements.current_state(db, new_id)["pre-x"].client_id == "c2"
+    tick("c3", True, "9999-12-31T23:59:59Z")  # a clock far ahead: recorded, flagged ...
+    held = acknowledgements.current_state(db, new_id)["pre-x"]
+    assert held.client_id == "c3" and held.clock_ahead is True
+    tick("c4", False, "2026-12-01T14:01:00Z")  # ... and outranked by the next tick to arrive
+    assert acknowledgements.current_state(db, new_id)["pre-x"].client_id == "c4"
     _, replayed = tick("c1", True, "2026-12-01T14:00:00Z")
     assert replayed
-    assert [a.client_id for a in acknowledgements.history(db, new_id)] == ["c1", "c2", "c3"]
+    assert [a.client_id for a in acknowledgements.history(db, new_id)] == ["c1", "c2", "c3", "c4"]
     with pytest.raises(store.Conflict):
         tick("c1", False, "2026-12-01T14:00:00Z")
+
+
+def test_a_device_clock_ahead_is_flagged_beyond_the_tolerance(db):
+    from datetime import UTC, datetime, timedelta
+
+    new_id = deployments.create(db, name="A", plan_input=PLAN_INPUT, plan_result=None)
+    received = datetime(2026, 12, 1, 14, 0, tzinfo=UTC)
+    tolerance = acknowledgements.CLOCK_AHEAD_TOLERANCE_S
+    cases = {"drift": 60, "edge": tolerance, "ahead": tolerance + 1, "behind": -7200}
+    for client_id, ahead_s in cases.items():
+        ack, _ = acknowledgements.acknowledge(
+            db,
+            deployment_id=new_id,
+            item_id=f"pre-{client_id}",
+            done=True,
+            by="AB",
+            at=(received + timedelta(seconds=ahead_s)).isoformat(),
+            client_id=client_id,
+            received_at=received.strftime("%Y-%m-%dT%H:%M:%S.%fZ"),
+        )
+        assert ack.device_ahead_s == pytest.approx(ahead_s), client_id
+        assert ack.clock_ahead is (ahead_s > tolerance), client_id
+        assert ack.to_json()["clock_ahead"] is ack.clock_ahead
 
 
 def test_acknowledging_a_missing_deployment_is_not_found(db):
