@@ -34,6 +34,7 @@ DEFAULTS: dict[str, Any] = {
     "PUBLIC_URL": None,  # the address phones use, set by serve(); else the request's host
     "LAN_SWITCH": False,  # the desktop window may share on the LAN (POST /api/lan)
     "LAN_PORT": 8765,  # where the share listens (a free port if taken)
+    "ON_KEY_ROTATED": None,  # called with the new address after POST /api/lan/key (serve prints it)
     "DEMO": True,  # load the demo deployment into an empty database on first start
     "DEMO_PLAN": True,  # and plan it in the background
     "PLAN_CACHE_ENTRIES": DEFAULT_ENTRIES,  # 0 turns the plan cache off

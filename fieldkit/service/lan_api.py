@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import io
-import ipaddress
 import socket
 
 import segno
@@ -11,7 +10,13 @@ from flask import Blueprint, current_app, jsonify, request
 
 from fieldkit.errors import InputError, check_keys
 from fieldkit.service.http import json_body
-from fieldkit.service.security import KEY_QUERY, keyring, set_key_cookie
+from fieldkit.service.security import (
+    KEY_QUERY,
+    Forbidden,
+    is_loopback_peer,
+    keyring,
+    set_key_cookie,
+)
 from fieldkit.store.store_errors import Conflict
 
 bp = Blueprint("lan", __name__, url_prefix="/api")
@@ -81,6 +86,7 @@ def _current() -> dict:
         "switch": bool(current_app.config["LAN_SWITCH"]),
         "url": url,
         "qr_svg": qr_svg(url),
+        "can_rotate_key": bool(lan or share is not None) and is_loopback_peer(),
     }
 
 
@@ -97,7 +103,7 @@ def switch_lan():
     enabled = body.get("enabled")
     if not isinstance(enabled, bool):
         raise InputError("enabled", f"expected true or false, got {enabled!r}"[:200])
-    if not current_app.config["LAN_SWITCH"] or not _from_loopback():
+    if not current_app.config["LAN_SWITCH"] or not is_loopback_peer():
         raise Conflict(
             "enabled",
             "only the desktop window can switch sharing; on a server use `fieldkit serve --lan`",
@@ -107,13 +113,6 @@ def switch_lan():
     elif not enabled:
         stop_share(current_app._get_current_object())
     return jsonify(_current())
-
-
-def _from_loopback() -> bool:
-    try:
-        return ipaddress.ip_address(request.remote_addr or "").is_loopback
-    except ValueError:
-        return False
 
 
 def start_share(app) -> None:
@@ -149,6 +148,18 @@ def stop_share(app) -> None:
 
 @bp.post("/lan/key")
 def rotate_key():
+    """A new access key; only from the laptop itself (loopback: the desktop window or its browser).
+
+    A phone holding the key must not be able to lock every other phone out: it gets 403. The new
+    address and QR code come back in the answer and, under ``fieldkit serve --lan``, are printed in
+    the laptop's terminal (``ON_KEY_ROTATED``).
+    """
+    if not is_loopback_peer():
+        raise Forbidden(
+            "key",
+            "the access key can be changed only on the laptop (the desktop window, or a browser "
+            "there at http://127.0.0.1); a phone cannot change it, so no phone can lock the others out",
+        )
     share = _share()
     if share is not None:
         target = share[1]
@@ -157,7 +168,11 @@ def rotate_key():
     else:
         raise Conflict("lan", "the service is not on the local network; there is no key to rotate")
     key = keyring(target).rotate()
-    response = jsonify({**_current(), "rotated": True})
+    current = _current()
+    announce = target.config.get("ON_KEY_ROTATED")
+    if announce is not None:
+        announce(current["url"])
+    response = jsonify({**current, "rotated": True})
     if target is current_app._get_current_object():
         set_key_cookie(response, key)
     return response

@@ -1,10 +1,13 @@
-"""Security headers on every response and the LAN access key.
+"""Security headers on every response, the LAN access key, and the Host and Origin checks.
 
 In LAN mode every ``/api/`` route except health needs the key: the ``X-Fieldkit-Key`` header or the
 ``fieldkit_key`` cookie (HttpOnly, SameSite=Strict) that a first visit with ``?key=KEY`` sets. The key
 is never written to a log. Writes accept ``application/json`` only: a cross-site HTML form cannot send
 that content type, and the SameSite=Strict cookie is not sent on cross-site requests, which together
-close cross-site request forgery.
+close cross-site request forgery. Defence in depth beside the key: the Host header must name this
+laptop (loopback, or in LAN mode the address the connection arrived on, the address phones were
+given, or the laptop's own name), so a page that rebinds its domain name to the laptop reaches
+nothing; and a write that carries an ``Origin`` must come from the service's own origin.
 """
 
 from __future__ import annotations
@@ -12,12 +15,15 @@ from __future__ import annotations
 import hmac
 import ipaddress
 import secrets
+import socket
 import threading
-from urllib.parse import quote, urlencode
+from typing import Any
+from urllib.parse import quote, urlencode, urlsplit
 
 from flask import Flask, Response, current_app, redirect, request
 from werkzeug.datastructures import MultiDict
 
+from fieldkit.errors import InputError
 from fieldkit.service.http import WRITE_METHODS, UnsupportedMedia, error_response
 
 KEY_HEADER = "X-Fieldkit-Key"
@@ -39,6 +45,20 @@ SECURITY_HEADERS = {
     "Permissions-Policy": "camera=(), microphone=(), payment=(), usb=()",
 }
 OPEN_API_PATHS = frozenset({"/api/health"})
+# The WSGI environ key under which fieldkit's waitress channel puts the address a connection arrived
+# on (fieldkit.service.connections); absent under the Flask test client.
+LOCAL_ADDRESS_KEY = "fieldkit.local_address"
+CHANGING_METHODS = WRITE_METHODS | {"DELETE"}
+
+
+class Forbidden(InputError):
+    """The request is understood and refused for who or where it comes from (HTTP 403)."""
+
+    def __init__(self, field: str, detail: str) -> None:
+        super().__init__(field, detail, status=403)
+
+    def to_json(self) -> dict[str, Any]:
+        return {"error": "forbidden", "field": self.field, "detail": self.detail}
 
 
 def new_key() -> str:
@@ -83,20 +103,60 @@ def _unauthorized(detail: str) -> Response:
     return response
 
 
+def host_name(host: str) -> str:
+    """The name or address of a Host header, without its port (``[::1]:8765`` -> ``::1``)."""
+    if host.startswith("["):  # [::1]:8765
+        return host[1:].split("]", 1)[0]
+    if host.count(":") == 1:  # name:port
+        return host.split(":", 1)[0]
+    return host  # a bare name or a bare IPv6 address
+
+
 def is_loopback_host(host: str) -> bool:
     """Whether a Host header (name, optional port) names this computer's loopback interface."""
-    if host.startswith("["):  # [::1]:8765
-        name = host[1:].split("]", 1)[0]
-    elif host.count(":") == 1:  # name:port
-        name = host.split(":", 1)[0]
-    else:  # a bare name or a bare IPv6 address
-        name = host
+    name = host_name(host)
     if name == "localhost":
         return True
     try:
         return ipaddress.ip_address(name).is_loopback
     except ValueError:
         return False
+
+
+def is_loopback_peer() -> bool:
+    """Whether the request comes from this computer (the desktop window, a browser on the laptop)."""
+    try:
+        return ipaddress.ip_address(request.remote_addr or "").is_loopback
+    except ValueError:
+        return False
+
+
+def laptop_names() -> set[str]:
+    """Names a LAN-mode Host header may carry: where this connection arrived, the address phones were
+    given (``PUBLIC_URL``), and this computer's own host name (also as ``.local`` for mDNS)."""
+    names = {socket.gethostname().lower()}
+    names.add(next(iter(names)) + ".local")
+    arrived = request.environ.get(LOCAL_ADDRESS_KEY)
+    if arrived:
+        names.add(str(arrived).lower())
+    public = current_app.config.get("PUBLIC_URL")
+    if public:
+        names.add((urlsplit(public).hostname or "").lower())
+    return names - {""}
+
+
+def _host_ok() -> bool:
+    if is_loopback_host(request.host):
+        return True
+    return current_app.config["LAN"] and host_name(request.host).lower() in laptop_names()
+
+
+def _origin_ok() -> bool:
+    """A write from a browser names its page's origin: it must be this service's own (the Host)."""
+    origin = request.headers.get("Origin")
+    if origin is None:  # scripts and command-line clients send none; the key still applies
+        return True
+    return origin.lower() == f"{request.scheme}://{request.host}".lower()
 
 
 def same_site_path(path: str) -> str:
@@ -106,6 +166,8 @@ def same_site_path(path: str) -> str:
     URLs, so ``/\t/evil.example`` would become the protocol-relative ``//evil.example``), and with
     one leading slash (``//host`` would leave the laptop).
     """
+    if path.startswith("//"):
+        return "/"
     return "/" + quote(path, safe="/").lstrip("/")
 
 
@@ -117,12 +179,21 @@ def _guard() -> Response | None:
     """
     path = request.path
     is_api = path == "/api" or path.startswith("/api/")
-    if not current_app.config["LAN"] and not is_loopback_host(request.host):
+    if not _host_ok():
+        where = (
+            "this laptop's address"
+            if current_app.config["LAN"]
+            else "http://127.0.0.1 or localhost"
+        )
         return error_response(
-            400,
-            "misdirected request",
-            "this fieldkit answers only http://127.0.0.1 or localhost",
-            "Host",
+            400, "misdirected request", f"this fieldkit answers only {where}", "Host"
+        )
+    if request.method in CHANGING_METHODS and not _origin_ok():
+        return error_response(
+            403,
+            "forbidden",
+            "a change may come only from this fieldkit's own pages, not from another site",
+            "Origin",
         )
     if current_app.config["LAN"]:
         ring = keyring()

@@ -114,6 +114,13 @@ def _check_port(host: str, port: int) -> None:
             raise PortUnavailable(host, port, exc) from None
 
 
+def _announce_new_key(url: str, out: TextIO) -> None:
+    """The laptop's terminal shows the new address and QR code after a key rotation."""
+    print(f"New access key: phones must open {url}", file=out)
+    print("The old address and its cookies no longer work. Scan this code:", file=out)
+    print(qr_terminal(url), file=out, flush=True)
+
+
 def _stop(signum: int, _frame: object) -> None:
     raise KeyboardInterrupt(signal.Signals(signum).name)
 
@@ -167,6 +174,7 @@ def serve(
             )
         print("Phones on the same network: scan this code, or type the address.", file=out)
         print(qr_terminal(url), file=out)
+        app.config["ON_KEY_ROTATED"] = lambda new_url: _announce_new_key(new_url, out)
     else:
         print(f"fieldkit serving on http://{host}:{port}/ (this computer only)", file=out)
     out.flush()

@@ -81,8 +81,12 @@ def test_wrong_key_in_address_is_refused(lan_app):
 
 
 def test_no_protocol_relative_redirect(lan_app):
-    response = lan_app.test_client().get(f"//evil.example/?key={lan_app.config['KEY']}")
-    assert response.headers["Location"] == "/"
+    client = lan_app.test_client()
+    key = lan_app.config["KEY"]
+    response = client.get(f"/?key={key}", environ_overrides={"PATH_INFO": "//evil.example/"})
+    assert response.headers["Location"] == "/evil.example/"  # a path here, not another host
+    # the test client reads "//evil.example/" as a host name: a Host that is not the laptop's
+    assert client.get(f"//evil.example/?key={key}").status_code == 400
 
 
 def test_static_app_shell_loads_without_key(lan_app):

@@ -137,3 +137,85 @@ def test_a_long_static_name_is_404_without_the_key(lan_app):
     response = lan_app.test_client().get("/" + "a" * 300)
     assert response.status_code == 404
     assert response.json["error"] and response.json["detail"]
+
+
+PHONE = {"REMOTE_ADDR": "192.0.2.10"}  # RFC 5737 documentation address: an in-process "phone"
+
+
+def test_a_phone_with_the_key_cannot_rotate_it(lan_app):
+    client = lan_app.test_client()
+    key = keyring(lan_app).key
+    response = client.post("/api/lan/key", json={}, headers={KEY_HEADER: key}, environ_base=PHONE)
+    assert response.status_code == 403
+    assert response.json["error"] == "forbidden" and response.json["field"] == "key"
+    assert "only on the laptop" in response.json["detail"]
+    assert keyring(lan_app).key == key  # nobody was locked out
+    lan = client.get("/api/lan", headers={KEY_HEADER: key}, environ_base=PHONE).json
+    assert lan["can_rotate_key"] is False
+
+
+def test_the_laptop_rotates_the_key_and_is_shown_the_new_address(lan_app):
+    shown = []
+    lan_app.config["ON_KEY_ROTATED"] = shown.append
+    client = lan_app.test_client()
+    old = keyring(lan_app).key
+    response = client.post("/api/lan/key", json={}, headers={KEY_HEADER: old})  # from 127.0.0.1
+    assert response.status_code == 200
+    new = keyring(lan_app).key
+    assert new != old and response.json["url"].endswith(f"?key={new}")
+    assert response.json["qr_svg"].startswith("<svg")
+    assert shown == [response.json["url"]]
+
+
+@pytest.mark.parametrize("host", ["evil.example", "evil.example:8765", "192.0.2.99:8765"])
+def test_lan_mode_refuses_a_host_that_is_not_the_laptop(lan_app, host):
+    key = keyring(lan_app).key
+    environ = {**PHONE, "fieldkit.local_address": "192.0.2.1"}
+    response = lan_app.test_client().get(
+        "/api/kit", headers={KEY_HEADER: key, "Host": host}, environ_base=environ
+    )
+    assert response.status_code == 400 and response.json["field"] == "Host"
+
+
+@pytest.mark.parametrize("host", ["192.0.2.1:8765", "192.0.2.1", "127.0.0.1:8765", "localhost"])
+def test_lan_mode_answers_the_laptops_own_addresses(lan_app, host):
+    key = keyring(lan_app).key
+    environ = {**PHONE, "fieldkit.local_address": "192.0.2.1"}
+    response = lan_app.test_client().get(
+        "/api/kit", headers={KEY_HEADER: key, "Host": host}, environ_base=environ
+    )
+    assert response.status_code == 200, response.json
+
+
+def test_lan_mode_answers_the_published_address(lan_app):
+    lan_app.config["PUBLIC_URL"] = "http://192.0.2.7:8765/"
+    key = keyring(lan_app).key
+    response = lan_app.test_client().get(
+        "/api/kit", headers={KEY_HEADER: key, "Host": "192.0.2.7:8765"}, environ_base=PHONE
+    )
+    assert response.status_code == 200
+
+
+@pytest.mark.parametrize(
+    "origin", ["http://evil.example", "null", "http://192.0.2.1:9999", "https://192.0.2.1:8765"]
+)
+def test_lan_writes_from_another_origin_are_refused(lan_app, origin):
+    key = keyring(lan_app).key
+    environ = {**PHONE, "fieldkit.local_address": "192.0.2.1"}
+    headers = {KEY_HEADER: key, "Host": "192.0.2.1:8765", "Origin": origin}
+    client = lan_app.test_client()
+    response = client.put("/api/kit", json={}, headers=headers, environ_base=environ)
+    assert response.status_code == 403 and response.json["field"] == "Origin"
+    assert (
+        client.delete("/api/deployments/x", headers=headers, environ_base=environ).status_code
+        == 403
+    )
+    same = {**headers, "Origin": "http://192.0.2.1:8765"}
+    assert client.put("/api/kit", json={}, headers=same, environ_base=environ).status_code == 200
+
+
+def test_loopback_writes_from_another_origin_are_refused_too(client):
+    response = client.put("/api/kit", json={}, headers={"Origin": "http://evil.example"})
+    assert response.status_code == 403
+    ok = client.put("/api/kit", json={}, headers={"Origin": "http://localhost"})
+    assert ok.status_code == 200

@@ -138,12 +138,21 @@ def test_serve_lan_prints_address_key_and_qr(tmp_path):
         status, body, _ = call(local + "api/lan", headers={"X-Fieldkit-Key": key})
         assert status == 200
         assert body["url"] == match.group(0)
+        assert body["can_rotate_key"] is True  # asked from the laptop itself
+        # Rotation from the laptop: the new address and its QR code appear in the terminal.
+        status, rotated, _ = call(
+            local + "api/lan/key", "POST", {}, headers={"X-Fieldkit-Key": key}
+        )
+        assert status == 200 and rotated["rotated"] is True and not rotated["url"].endswith(key)
         proc.send_signal(signal.SIGTERM)
         out, err = proc.communicate(timeout=30)
     finally:
         proc.kill()
     assert proc.returncode == 0, err
     assert key not in err  # nothing logged with the key
+    after = out.split(f"New access key: phones must open {rotated['url']}", 1)
+    assert len(after) == 2, out[-500:]
+    assert "\u2580" in after[1] or "\u2584" in after[1] or "\u2588" in after[1]  # its QR code
 
 
 @pytest.mark.slow
