@@ -83,6 +83,7 @@ def open_window(
 
         stop_share(app)  # phones lose access when the window closes
         running.stop()
+        app.extensions["fieldkit_plan_board"].close()
         checkpoint_and_close(app.config["DATABASE"])
     return 0
 
@@ -115,6 +116,7 @@ def run(
 
         app = create_app({"DATA_DIR": data_dir, "LAN_SWITCH": True})
         warm_up()
+        app.extensions["fieldkit_plan_board"].start()
         return open_window(app, on_loaded=on_loaded, out=out)
     print(f"No desktop window: {reason}.", file=out)
     print("Serving instead; open the address below in a browser on this computer.", file=out)

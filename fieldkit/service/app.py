@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 import json
 import logging
 import threading
@@ -13,9 +14,8 @@ from flask import Flask
 
 from fieldkit import paths, store
 from fieldkit.errors import InputError
-from fieldkit.service import http, request_db, security, static_files
+from fieldkit.service import http, plan_jobs, request_db, security, static_files
 from fieldkit.service.plancache import DEFAULT_ENTRIES, PlanCache
-from fieldkit.service.readiness import compute_plan
 from fieldkit.store import deployments
 from fieldkit.store.sqlite import get_meta, set_meta
 
@@ -39,6 +39,10 @@ DEFAULTS: dict[str, Any] = {
     "DEMO_PLAN": True,  # and plan it in the background
     "PLAN_CACHE_ENTRIES": DEFAULT_ENTRIES,  # 0 turns the plan cache off
     "PLAN_CACHE": None,  # a PlanCache to share between apps (tests share one per session)
+    "PLAN_BOARD": None,  # a plan_jobs.PlanBoard to share (the desktop's LAN share, the tests)
+    "PLAN_WORKERS": plan_jobs.DEFAULT_WORKERS,  # worker processes running plans
+    "PLAN_QUEUE": plan_jobs.DEFAULT_QUEUE,  # plans that may wait for a worker; then 503
+    "PLAN_DEADLINE_S": plan_jobs.DEFAULT_DEADLINE_S,  # the longest one plan may run [s]
     "MAX_CONTENT_LENGTH": MAX_CONTENT_LENGTH,
     "JSON_SORT_KEYS": False,
 }
@@ -51,7 +55,8 @@ def create_app(config: Mapping[str, Any] | None = None) -> Flask:
     ----------
     config : mapping, optional
         Overrides of :data:`DEFAULTS` (``DATA_DIR``, ``WEB_DIR``, ``LAN``, ``KEY``, ``PUBLIC_URL``,
-        ``DEMO``, ``MAX_CONTENT_LENGTH``, or any Flask setting). Tests pass their own.
+        ``DEMO``, ``PLAN_WORKERS``, ``PLAN_QUEUE``, ``PLAN_DEADLINE_S``, ``MAX_CONTENT_LENGTH``,
+        or any Flask setting). Tests pass their own.
     """
     app = Flask("fieldkit.service", static_folder=None)
     app.json = http.StrictJSONProvider(app)
@@ -81,11 +86,13 @@ def create_app(config: Mapping[str, Any] | None = None) -> Flask:
         kit_api,
         lan_api,
         openapi,
+        plans_api,
     )
 
     for blueprint in (
         health_api.bp,
         calc_api.bp,
+        plans_api.bp,
         deployments_api.bp,
         checks_api.bp,
         kit_api.bp,
@@ -95,8 +102,13 @@ def create_app(config: Mapping[str, Any] | None = None) -> Flask:
         app.register_blueprint(blueprint)
     app.register_blueprint(static_files.bp)
 
-    app.extensions["fieldkit_plan_cache"] = app.config.get("PLAN_CACHE") or PlanCache(
-        entries=app.config["PLAN_CACHE_ENTRIES"]
+    cache = app.config.get("PLAN_CACHE") or PlanCache(entries=app.config["PLAN_CACHE_ENTRIES"])
+    app.extensions["fieldkit_plan_cache"] = cache
+    app.extensions["fieldkit_plan_board"] = app.config.get("PLAN_BOARD") or plan_jobs.PlanBoard(
+        cache=cache,
+        workers=app.config["PLAN_WORKERS"],
+        queue_limit=app.config["PLAN_QUEUE"],
+        deadline_s=app.config["PLAN_DEADLINE_S"],
     )
     app.extensions["fieldkit_planning"] = set()
     if app.config["DEMO"]:
@@ -107,9 +119,9 @@ def create_app(config: Mapping[str, Any] | None = None) -> Flask:
 def load_demo(app: Flask) -> str | None:
     """On first start with an empty database, store the demo deployment and plan it in the background.
 
-    The demo is stored at once (a newcomer sees it immediately); its plan takes a while, so it is
-    computed in a daemon thread and stored when done (``"planning": true`` until then). Returns the
-    new id, or None when the database already had deployments or had the demo once.
+    The demo is stored at once (a newcomer sees it immediately); its plan takes a while, so it runs as
+    a plan job that a daemon thread waits for and stores when done (``"planning": true`` until
+    then). Returns the new id, or None when the database already had deployments or had the demo once.
     """
     database = app.config["DATABASE"]
     doc = json.loads(paths.demo_plan_path().read_text(encoding="utf-8"))
@@ -126,10 +138,10 @@ def load_demo(app: Flask) -> str | None:
     if app.config["DEMO_PLAN"]:
         planning = app.extensions["fieldkit_planning"]
         planning.add(new_id)
-        cache = app.extensions["fieldkit_plan_cache"]
+        board = app.extensions["fieldkit_plan_board"]
         worker = threading.Thread(
             target=_plan_in_background,
-            args=(database, new_id, doc, cache, planning),
+            args=(database, new_id, doc, board, planning),
             name="fieldkit-demo-plan",
             daemon=True,
         )
@@ -138,11 +150,13 @@ def load_demo(app: Flask) -> str | None:
 
 
 def _plan_in_background(
-    database: Path, deployment_id: str, doc: dict, cache, planning: set
+    database: Path, deployment_id: str, doc: dict, board: plan_jobs.PlanBoard, planning: set
 ) -> None:
     try:
         try:
-            result, plan_error = compute_plan(doc, cache), None
+            result, plan_error = board.result(_finished(board, doc)), None
+        except plan_jobs.PlanCancelled:  # the service is stopping: write nothing after it closed
+            return
         except InputError as exc:  # the demo must never keep the service from working
             log.warning("demo plan refused by the plan layer: %s", exc)
             result, plan_error = None, exc.to_json()
@@ -161,3 +175,10 @@ def _plan_in_background(
         log.exception("could not store the demo plan")
     finally:
         planning.discard(deployment_id)
+
+
+def _finished(board: plan_jobs.PlanBoard, doc: dict) -> plan_jobs.Job:
+    job = board.submit(doc, keep=True)
+    with contextlib.suppress(InputError):  # board.result raises the job's own error
+        board.wait(job)
+    return job

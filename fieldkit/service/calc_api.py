@@ -4,10 +4,10 @@ from __future__ import annotations
 
 import threading
 
-from flask import Blueprint, jsonify
+from flask import Blueprint, Response, jsonify
 
 from fieldkit.service.http import json_body
-from fieldkit.service.readiness import compute_plan, plan_cache
+from fieldkit.service.plans_api import plan_text
 
 bp = Blueprint("calc", __name__, url_prefix="/api")
 
@@ -30,21 +30,21 @@ def sky():
 
 @bp.post("/plan")
 def plan():
-    spec = json_body()
-    return jsonify(compute_plan(spec, plan_cache()))
+    """The plan JSON, as ``fieldkit plan`` prints it; the request waits for its plan job."""
+    return Response(plan_text(json_body()), mimetype="application/json")
 
 
 def warm_up() -> None:
     """Load the calculators in a background thread, so the first request after a start is not slow.
 
-    Importing the plan chain and PyIRI's coefficient reader costs 1-2 s of CPU; done at start, the
-    first request from the window or a phone does not pay it. Failures are left for the request
-    itself to report.
+    Importing the engine and PyIRI's coefficient reader costs 1-2 s of CPU; done at start, the first
+    model or sky request from the window or a phone does not pay it (plans run in worker processes,
+    which load the planner themselves). Failures are left for the request itself to report.
     """
 
     def load() -> None:
         try:
-            import fieldkit.plan  # noqa: F401
+            import fieldkit.antenna  # noqa: F401
             from fieldkit.sky import iri
 
             iri._library()

@@ -8,7 +8,8 @@ from flask import Blueprint, current_app, jsonify
 
 from fieldkit.errors import InputError, text
 from fieldkit.service.http import json_body
-from fieldkit.service.readiness import checklist_state, compute_plan, plan_cache
+from fieldkit.service.plans_api import plan_result
+from fieldkit.service.readiness import checklist_state
 from fieldkit.service.request_db import get_db
 from fieldkit.store import acknowledgements, deployments, transaction, transfer
 from fieldkit.store.store_errors import Conflict
@@ -50,7 +51,7 @@ def create():
             if (held.name, held.plan_input) == (name, plan_input):
                 return jsonify({"id": held.id, "replayed": True}), 200
             raise Conflict("client_id", f"a different deployment with id {client_id!r} exists")
-    result = compute_plan(plan_input, plan_cache())
+    result = plan_result(plan_input)
     with transaction(conn):
         if client_id is not None and deployments.find(conn, client_id) is not None:
             return jsonify({"id": client_id, "replayed": True}), 200
@@ -94,7 +95,7 @@ def replace(deployment_id: str):
     name, _client_id, plan_input = split_body(json_body())
     conn = get_db()
     deployments.get(conn, deployment_id)  # 404 before spending time on a plan
-    result = compute_plan(plan_input, plan_cache())
+    result = plan_result(plan_input)
     updated = deployments.update(
         conn,
         deployment_id,

@@ -11,4 +11,13 @@ bp = Blueprint("health", __name__, url_prefix="/api")
 
 @bp.get("/health")
 def health():
-    return jsonify({"ok": True, "version": fieldkit.__version__, "lan": current_app.config["LAN"]})
+    """Up, its version, LAN mode, and how busy the plan workers are (counts only: no key needed)."""
+    plans = current_app.extensions["fieldkit_plan_board"].load()
+    return jsonify(
+        {
+            "ok": True,
+            "version": fieldkit.__version__,
+            "lan": current_app.config["LAN"],
+            "plans": plans,
+        }
+    )

@@ -94,6 +94,9 @@ def register_errors(app: Flask) -> None:
     def input_error(exc: InputError) -> Response:
         response = jsonify(exc.to_json())
         response.status_code = exc.status
+        retry_after = getattr(exc, "retry_after_s", None)
+        if retry_after is not None:  # a full plan queue (503): when to try again [s]
+            response.headers["Retry-After"] = str(int(retry_after))
         return response
 
     @app.errorhandler(RequestEntityTooLarge)

@@ -130,6 +130,7 @@ def start_share(app) -> None:
             "LAN": True,
             "DEMO": False,
             "PLAN_CACHE": app.extensions["fieldkit_plan_cache"],
+            "PLAN_BOARD": app.extensions["fieldkit_plan_board"],  # one pool for both servers
         }
     )
     try:

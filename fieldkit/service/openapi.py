@@ -502,4 +502,6 @@ def document() -> dict[str, Any]:
 
 @bp.get("/openapi.json")
 def openapi():
-    return jsonify(document())
+    from fieldkit.service.openapi_jobs import extend
+
+    return jsonify(extend(document(), _ERRORS))

@@ -1,4 +1,4 @@
-"""The plan of a deployment and its checklist: run the plan layer, derive items and readiness."""
+"""The checklist of a deployment's plan: its items with their state, and readiness to raise."""
 
 from __future__ import annotations
 
@@ -6,9 +6,6 @@ import sqlite3
 from collections.abc import Mapping
 from typing import Any
 
-from flask import current_app
-
-from fieldkit.service.plancache import PlanCache
 from fieldkit.store import acknowledgements
 
 PRE_RAISE = "pre-raise"
@@ -18,18 +15,6 @@ CONFLICT_RULE = (
     "than five minutes ahead is flagged clock_ahead; the history keeps every acknowledgement; a "
     "repeated client_id is one record"
 )
-
-
-def plan_cache() -> PlanCache | None:
-    return current_app.extensions.get("fieldkit_plan_cache")
-
-
-def compute_plan(spec: Any, cache: PlanCache | None = None) -> Any:
-    """``fieldkit.plan.plan(spec)``, through the cache when one is given."""
-
-    from fieldkit.plan import plan  # imported on first use: the engine costs ~0.6 s to import
-
-    return cache.get_or_compute(spec, plan) if cache is not None else plan(spec)
 
 
 def chosen_option(result: Mapping[str, Any] | None) -> Mapping[str, Any] | None:

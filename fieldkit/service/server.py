@@ -18,19 +18,23 @@ from typing import TextIO
 
 from flask import Flask
 from waitress import wasyncore
-from waitress.server import create_server
 
 from fieldkit.errors import InputError
 from fieldkit.service.app import create_app
 from fieldkit.service.calc_api import warm_up
+from fieldkit.service.connections import create_server
 from fieldkit.service.lan_api import access_url, lan_address, qr_terminal
+from fieldkit.service.plan_jobs import DEFAULT_MAX_WAITERS
 from fieldkit.store.sqlite import checkpoint_and_close
 
 log = logging.getLogger("fieldkit.service")
 
-# Worker threads: plan requests are CPU-bound on a 2-4 core laptop, so more threads only queue;
-# six keep reads and checklist writes from phones flowing while two plans run.
-THREADS = 6
+# Request threads that no plan ever occupies: plans run in worker processes (plan_jobs), and a
+# request waiting for one holds one of at most max_waiters threads; these stay free for health,
+# ticks, reads and static files. Eight serve 20 phones ticking and reading at once (the mixed load of
+# benchmarks/bench_service_load.py) with health p95 well under 100 ms.
+FREE_THREADS = 8
+THREADS = FREE_THREADS + DEFAULT_MAX_WAITERS
 LOOPBACK = "127.0.0.1"
 # waitress buffers a request body (to disk past a point) before the app sees it: without a bound a
 # stranger on the hotspot could fill the disk before the key check. Above Flask's 1 MiB limit, so
@@ -40,7 +44,15 @@ WAITRESS_OPTIONS = {
     "threads": THREADS,
     "ident": "fieldkit",
     "max_request_body_size": MAX_REQUEST_BODY_BYTES,
+    # read on while a request runs, so that a client hanging up is noticed (a plan waiting for a
+    # worker is then given up: waitress.client_disconnected)
+    "channel_request_lookahead": 1,
 }
+
+
+def threads_for(app: Flask) -> int:
+    """Request threads for ``app``: the free ones plus one per request that may wait for a plan."""
+    return FREE_THREADS + app.extensions["fieldkit_plan_board"].max_waiters
 
 
 @dataclass
@@ -60,16 +72,25 @@ class RunningServer:
         server = self.server
         # Close every socket from inside the server's own loop: the loop ends when its map is empty.
         # ignore_all: a socket a client already broke (a refused oversized header) must not stop the stop
-        server.trigger.pull_trigger(lambda: wasyncore.close_all(server._map, ignore_all=True))
+        try:
+            server.trigger.pull_trigger(lambda: wasyncore.close_all(server._map, ignore_all=True))
+        except (
+            OSError
+        ):  # the wake-up pipe is gone already (seen about once in 20 stops): close here
+            wasyncore.close_all(server._map, ignore_all=True)
         self.thread.join(timeout_s)
         server.task_dispatcher.shutdown()
 
 
 def start_in_thread(
-    app: Flask, *, host: str = LOOPBACK, port: int = 0, threads: int = THREADS
+    app: Flask, *, host: str = LOOPBACK, port: int = 0, threads: int | None = None, **options
 ) -> RunningServer:
-    """Start waitress for ``app`` on ``host:port`` (0: a free port) in a daemon thread."""
-    options = {**WAITRESS_OPTIONS, "threads": threads}
+    """Start waitress for ``app`` on ``host:port`` (0: a free port) in a daemon thread.
+
+    ``options`` go to :class:`fieldkit.service.connections.FieldkitServer` (tests shorten the header
+    deadline with ``header_deadline_s``).
+    """
+    options = {**WAITRESS_OPTIONS, "threads": threads or threads_for(app), **options}
     server = create_server(app, host=host, port=port, **options)
     thread = threading.Thread(target=server.run, name="fieldkit-waitress", daemon=True)
     thread.start()
@@ -156,8 +177,12 @@ def serve(
     _check_port(host, port)  # before the app exists: a busy port starts nothing
     app = create_app({"DATA_DIR": data_dir, "LAN": lan})
     warm_up()
+    board = app.extensions["fieldkit_plan_board"]
+    board.start()  # the plan workers load the planner now, not at the first plan
     try:
-        server = create_server(app, host=host, port=port, **WAITRESS_OPTIONS)
+        server = create_server(
+            app, host=host, port=port, **{**WAITRESS_OPTIONS, "threads": threads_for(app)}
+        )
     except OSError as exc:
         raise PortUnavailable(host, port, exc) from None
     port = server.effective_port
@@ -189,5 +214,6 @@ def serve(
         wasyncore.close_all(server._map)
         for sig, handler in previous.items():
             signal.signal(sig, handler)
+        board.close()  # plan workers stop with the service
         checkpoint_and_close(app.config["DATABASE"])
         print("fieldkit stopped; database closed.", file=out, flush=True)

@@ -23,7 +23,7 @@ from fieldkit.service.security import KEY_COOKIE, KEY_HEADER, keyring
 from fieldkit.service.server import start_in_thread
 from tests.robustness.helpers import checklist_export, stop_server
 
-SAMPLE = {"deployment_id": "dep-1", "item_id": "pre-item-0"}
+SAMPLE = {"deployment_id": "dep-1", "item_id": "pre-item-0", "job_id": "job-1"}
 METHODS = ("GET", "HEAD", "POST", "PUT", "PATCH", "DELETE", "OPTIONS")
 
 

@@ -12,6 +12,7 @@ import pytest
 
 from fieldkit import paths
 from fieldkit.service import create_app
+from fieldkit.service.plan_jobs import PlanBoard
 from fieldkit.service.plancache import PlanCache
 
 from .service_fixtures import export_doc
@@ -23,10 +24,24 @@ def plan_cache():
     return PlanCache()
 
 
+@pytest.fixture(scope="session")
+def plan_board(plan_cache):
+    """One pool of plan worker processes for the session (each costs a start of 1-2 s)."""
+    board = PlanBoard(cache=plan_cache)
+    yield board
+    board.close()
+
+
 @pytest.fixture
-def app(tmp_path, plan_cache):
+def app(tmp_path, plan_cache, plan_board):
     return create_app(
-        {"DATA_DIR": tmp_path / "data", "DEMO": False, "TESTING": True, "PLAN_CACHE": plan_cache}
+        {
+            "DATA_DIR": tmp_path / "data",
+            "DEMO": False,
+            "TESTING": True,
+            "PLAN_CACHE": plan_cache,
+            "PLAN_BOARD": plan_board,
+        }
     )
 
 

@@ -9,7 +9,7 @@ import pytest
 
 from fieldkit.service.security import KEY_COOKIE, KEY_HEADER, keyring
 
-SAMPLE = {"deployment_id": "d0", "item_id": "i0"}
+SAMPLE = {"deployment_id": "d0", "item_id": "i0", "job_id": "j0"}
 
 
 def api_routes(app):
