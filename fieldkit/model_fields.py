@@ -171,3 +171,35 @@ MODEL = Record(
     "the `fieldkit model` input: wires over ground, fed at one point",
     one_of=(("frequency_mhz", "frequencies_mhz"),),
 )
+
+MODEL_SOLUTION = Record(
+    "ModelSolution",
+    (
+        num("frequency_mhz", "MHz", required=True),
+        nested("impedance_ohm", required=True, description="r and x at the feed [Ω]"),
+        num("swr", "", required=True, nullable=True, description="against reference_impedance_ohm"),
+        num("radiation_efficiency", "", 0, 1, required=True),
+        num("zenith_gain_dbi", "dBi", required=True),
+        num("max_gain_dbi", "dBi", required=True),
+        num("max_gain_elevation_deg", "deg", required=True),
+        num("max_gain_azimuth_deg", "deg", required=True),
+        nested("beamwidth_deg", required=True),
+        num("wire_azimuth_deg", "deg", required=True),
+        nested(
+            "power_w", required=True, description="input, radiated, conductor and ground loss [W]"
+        ),
+        num("segments", "", 1, integer=True, required=True),
+        num("feed_current_a", "A", required=True),
+        nested("pattern", description="with a pattern input: the directions"),
+        arr("gain_dbi", description="total gain per elevation, azimuth [dBi]"),
+        arr("gain_dbi_horizontal"),
+        arr("gain_dbi_vertical"),
+        nested("near_field", description="with a near_field input: E and H at the points"),
+    ),
+    "the engine's answer at one frequency",
+)
+MODEL_RESULT = Record(
+    "ModelResult",
+    (arr("results", MODEL_SOLUTION, required=True),),
+    "the `fieldkit model` result: one entry per frequency",
+)

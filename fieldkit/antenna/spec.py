@@ -20,6 +20,8 @@ from fieldkit.model_fields import (
     MAX_WIRES,
     MODEL,
     MODEL_INSULATION,
+    MODEL_RESULT,
+    MODEL_SOLUTION,
     MODEL_WIRE,
     NEAR_FIELD,
     PATTERN,
@@ -224,7 +226,7 @@ def _result(sol, pattern, near) -> dict[str, Any]:
             "e_vector_v_per_m": [[{"re": c.real, "im": c.imag} for c in row] for row in e.tolist()],
             "h_vector_a_per_m": [[{"re": c.real, "im": c.imag} for c in row] for row in h.tolist()],
         }
-    return out
+    return MODEL_SOLUTION.written(out)
 
 
 NEAR_FIELD_RANGE_WL = (
@@ -301,7 +303,9 @@ def _solve_one(p: dict[str, Any], field: str) -> dict[str, Any]:
         )
     except InputError as err:
         raise _prefixed(err, field) from None
-    return {"results": [_result(s, p["pattern"], p["near_field"]) for s in sols]}
+    return MODEL_RESULT.written(
+        {"results": [_result(s, p["pattern"], p["near_field"]) for s in sols]}
+    )
 
 
 @single_threaded()

@@ -73,7 +73,17 @@ PATHS: dict[str, Any] = {
     "/api/model": {
         "post": _op(
             "Solve wire antennas over ground (the `fieldkit model` contract).",
-            {"200": _json(_OBJECT, "model results")},
+            {
+                "200": _json(
+                    {
+                        "oneOf": [
+                            _ref("ModelResult"),
+                            {"type": "array", "items": _ref("ModelResult")},
+                        ]
+                    },
+                    "model results (an array for an array of specs)",
+                )
+            },
             body={"oneOf": [_ref("ModelSpec"), {"type": "array", "items": _ref("ModelSpec")}]},
             tag="calc",
             errors={**_ERRORS, **_LAYER},
@@ -82,7 +92,7 @@ PATHS: dict[str, Any] = {
     "/api/sky": {
         "post": _op(
             "The channel day: foF2, hmF2 and reach per channel and hour (`fieldkit sky`).",
-            {"200": _json(_OBJECT, "sky estimate")},
+            {"200": _json(_ref("SkyResult"), "sky estimate")},
             body=_ref("SkySpec"),
             tag="calc",
             errors={**_ERRORS, **_LAYER},
@@ -426,13 +436,14 @@ def input_schemas() -> dict[str, Any]:
     """The calculators' request and result schemas, from the field tables their parsers and JSON
     writers use (imported here, at request time, so the service starts without the calculators)."""
     from fieldkit.fields import schemas
-    from fieldkit.model_fields import MODEL
+    from fieldkit.model_fields import MODEL, MODEL_RESULT
     from fieldkit.planning.inputs import PLAN
     from fieldkit.planning.result import PLAN_RESULT
     from fieldkit.service.deployments_api import deployment_input
+    from fieldkit.sky.day import SKY_RESULT
     from fieldkit.sky.inputs import SKY
 
-    return schemas(MODEL, SKY, PLAN, PLAN_RESULT, deployment_input())
+    return schemas(MODEL, MODEL_RESULT, SKY, SKY_RESULT, PLAN, PLAN_RESULT, deployment_input())
 
 
 def document() -> dict[str, Any]:

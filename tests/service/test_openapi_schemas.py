@@ -7,6 +7,7 @@ too (bounds, choices, unknown fields)."""
 from __future__ import annotations
 
 import copy
+import json
 
 import jsonschema
 import pytest
@@ -135,7 +136,15 @@ def test_the_ground_names_of_the_schema_are_the_engines():
 
 
 def test_the_calculators_schemas_are_valid_json_schema(doc):
-    for name in ("ModelSpec", "SkySpec", "PlanInput", "PlanResult", "DeploymentInput"):
+    for name in (
+        "ModelSpec",
+        "ModelResult",
+        "SkySpec",
+        "SkyResult",
+        "PlanInput",
+        "PlanResult",
+        "DeploymentInput",
+    ):
         jsonschema.Draft202012Validator.check_schema(doc["components"]["schemas"][name])
 
 
@@ -162,6 +171,17 @@ def test_parser_and_schema_require_the_same_fields(doc, name):
         assert validator.is_valid(smaller) == (key not in needed), key
 
 
+def test_the_demo_results_validate(doc):
+    from fieldkit.antenna import model_json
+    from fieldkit.paths import assets_dir
+    from fieldkit.sky import sky_json
+
+    demo = assets_dir() / "demo"
+    model = model_json(json.loads((demo / "dipole-model.json").read_text()))
+    _validator(doc, "ModelResult").validate(model)
+    _validator(doc, "SkyResult").validate(sky_json(json.loads((demo / "sky.json").read_text())))
+
+
 def test_the_other_frequency_field_is_accepted_alone(doc):
     body = {k: v for k, v in MODEL_ALL.items() if k != "frequency_mhz"}
     body["frequencies_mhz"] = [7.0, 7.1]
@@ -177,8 +197,9 @@ def test_the_other_frequency_field_is_accepted_alone(doc):
 def test_posting_every_documented_field(client, doc, name):
     response = client.post(ENDPOINTS[name], json=BODIES[name])
     assert response.status_code == 200, response.json
+    result = {"ModelSpec": "ModelResult", "SkySpec": "SkyResult", "PlanInput": "PlanResult"}[name]
+    _validator(doc, result).validate(response.json)
     if name == "PlanInput":
-        _validator(doc, "PlanResult").validate(response.json)
         assert response.json["options"][0]["retrim"]["change_cm_per_leg"] < 0
     for key in doc["components"]["schemas"][name].get("required", []):
         smaller = {k: v for k, v in BODIES[name].items() if k != key}
