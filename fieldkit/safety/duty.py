@@ -18,7 +18,8 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import Any
 
-from fieldkit.errors import InputError, check_keys, choice, join, number, require_mapping
+from fieldkit.errors import InputError, choice, join, require_mapping
+from fieldkit.fields import Record, num, string
 
 #: Mode duty factor: average power over peak-envelope power while keyed (OET 65 Suppl. B, from memory).
 MODE_DUTY_FACTOR: dict[str, float] = {
@@ -75,6 +76,56 @@ class Radio:
         }
 
 
+RADIO = Record(
+    "Radio",
+    (
+        num(
+            "power_w",
+            "W",
+            0.0,
+            MAX_POWER_W,
+            required=True,
+            exclusive_minimum=True,
+            missing="missing; expected the transmitter power in W",
+            description="peak-envelope power into the feedline; at most the highest licence "
+            "maximum fieldkit serves (47 CFR §97.313)",
+        ),
+        string(
+            "mode",
+            *MODE_DUTY_FACTOR,
+            required=True,
+            missing=f"missing; expected one of: {', '.join(MODE_DUTY_FACTOR)}",
+        ),
+        num(
+            "transmit_fraction",
+            "",
+            0.0,
+            1.0,
+            exclusive_minimum=True,
+            description="share of the averaging time on the air (default 1, the worst case)",
+        ),
+        string("note"),
+    ),
+    "the transmitter, as far as RF exposure is concerned",
+)
+
+
+def _power_w(obj: Mapping[str, Any], field: str) -> float:
+    """The transmit power; above :data:`MAX_POWER_W` refused with the reason, not only the bound."""
+    try:
+        return RADIO.number(obj, field, "power_w")
+    except InputError as exc:
+        value = exc.value
+        if isinstance(value, int | float) and not isinstance(value, bool) and value > MAX_POWER_W:
+            raise InputError(
+                exc.field,
+                f"{exc.detail}: the most any licence class fieldkit serves allows (47 CFR §97.313); "
+                "a larger station needs a licensed engineer's exposure study",
+                value=value,
+            ) from None
+        raise
+
+
 def parse_radio(value: Any, field: str = "radio") -> Radio:
     """Validate the radio JSON: ``{"power_w", "mode", "transmit_fraction"?}``.
 
@@ -82,32 +133,11 @@ def parse_radio(value: Any, field: str = "radio") -> Radio:
     worst case 1.0 is used and said so in the output.
     """
     obj: Mapping[str, Any] = require_mapping(value, field)
-    check_keys(obj, field, ("power_w", "mode", "transmit_fraction", "note"))
-    if "power_w" not in obj:
-        raise InputError(join(field, "power_w"), "missing; expected the transmitter power in W")
-    if "mode" not in obj:
-        raise InputError(
-            join(field, "mode"), f"missing; expected one of: {', '.join(MODE_DUTY_FACTOR)}"
-        )
-    power = number(
-        obj["power_w"], join(field, "power_w"), unit="W", minimum=0.0, exclusive_minimum=True
-    )
-    if power > MAX_POWER_W:
-        raise InputError(
-            join(field, "power_w"),
-            f"expected at most {MAX_POWER_W:g} W, got {power:g}: the most any licence class "
-            "fieldkit serves allows (47 CFR §97.313); a larger station needs a licensed engineer's "
-            "exposure study",
-            value=power,
-        )
+    RADIO.check(obj, field)
+    RADIO.require(obj, field)
+    power = _power_w(obj, field)
     mode = choice(obj["mode"], join(field, "mode"), MODE_DUTY_FACTOR)
     fraction = DEFAULT_TRANSMIT_FRACTION
     if "transmit_fraction" in obj:
-        fraction = number(
-            obj["transmit_fraction"],
-            join(field, "transmit_fraction"),
-            minimum=0.0,
-            exclusive_minimum=True,
-            maximum=1.0,
-        )
+        fraction = RADIO.number(obj, field, "transmit_fraction")
     return Radio(power_w=power, mode=mode, transmit_fraction=fraction)

@@ -2,7 +2,8 @@
 
 :func:`extend` adds them to the document :mod:`fieldkit.service.openapi` builds: the plan-job routes,
 the ``X-Fieldkit-Job`` header, the 503 of a full plan queue with ``Retry-After``, the 403 answers, and
-the bounds the parsers enforce (transmit power, integers, the export's version and revision).
+the bounds the import parser enforces (integers, the export's version and revision). The plan
+input's own bounds (the transmit power among them) come from its field tables (:mod:`fieldkit.fields`).
 """
 
 from __future__ import annotations
@@ -11,7 +12,7 @@ import copy
 from typing import Any
 
 from fieldkit.errors import MAX_EXACT_INTEGER
-from fieldkit.safety.duty import DEFAULT_TRANSMIT_FRACTION, MAX_POWER_W, MODE_DUTY_FACTOR
+from fieldkit.planning.records import STAGES
 from fieldkit.service.plan_jobs import DEFAULT_DEADLINE_S, DEFAULT_QUEUE
 from fieldkit.service.plans_api import JOB_HEADER
 from fieldkit.store.transfer import FORMAT_VERSION, MAX_REVISION
@@ -41,7 +42,7 @@ PLANNING_ROUTES = (
     ("/api/deployments/import", "post"),
 )
 _STATES = ["queued", "running", "done", "failed", "cancelled"]
-_STAGES = "queued, starting, then the planner's: layouts, height sweeps, resonance, safety, result"
+_STAGES = f"queued, starting, then the planner's: {', '.join(STAGES)}"
 
 
 def _json(schema: dict[str, Any], description: str) -> dict[str, Any]:
@@ -103,27 +104,6 @@ SCHEMAS: dict[str, Any] = {
             "error": {"$ref": "#/components/schemas/Error"},
         },
     },
-    "Radio": {
-        "type": "object",
-        "required": ["power_w", "mode"],
-        "additionalProperties": False,
-        "properties": {
-            "power_w": {
-                "type": "number",
-                "exclusiveMinimum": 0,
-                "maximum": MAX_POWER_W,
-                "description": "peak envelope power [W]; at most the licence maximum, 47 CFR 97.313",
-            },
-            "mode": {"enum": list(MODE_DUTY_FACTOR)},
-            "transmit_fraction": {
-                "type": "number",
-                "exclusiveMinimum": 0,
-                "maximum": 1,
-                "default": DEFAULT_TRANSMIT_FRACTION,
-            },
-            "note": {"type": "string"},
-        },
-    },
 }
 RESPONSES = {
     "Busy": {
@@ -159,11 +139,6 @@ def extend(doc: dict[str, Any], errors: dict[str, Any]) -> dict[str, Any]:
         for method, op in item.items():
             if method in ("post", "put", "delete"):
                 op["responses"].setdefault("403", _FORBIDDEN)
-    plan_input = components["schemas"]["PlanInput"]
-    plan_input.setdefault("required", [])
-    if "radio" not in plan_input["required"]:
-        plan_input["required"].append("radio")  # the parser requires it
-    plan_input["properties"]["radio"] = {"$ref": "#/components/schemas/Radio"}
     export = components["schemas"]["DeploymentExport"]["properties"]
     export["format_version"] = {"type": "integer", "const": FORMAT_VERSION}
     export["deployment"] = {

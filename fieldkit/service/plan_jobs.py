@@ -393,7 +393,7 @@ class PlanBoard:
             if self._closed or not self._queue:
                 return None
             job = self._queue.popleft()
-            job.state = job.stage = "running"
+            job.state, job.stage = "running", "starting"
             job.started = time.monotonic()
             return job
 

@@ -31,8 +31,11 @@ from typing import Any, BinaryIO
 from fieldkit import jsonio
 from fieldkit.errors import InputError
 
-# Stage names the planning pipeline reports (agreed in TEAM.md: "Interfaces agreed").
+# Before the planner's first report (its stages: fieldkit.planning.STAGES).
 STARTING = "starting"
+# The planner reports before every engine solve (hundreds of times); the service hears of it at most
+# this often [s], and at every change of stage. The deadline and cancel checks run at every report.
+PROGRESS_INTERVAL_S = 0.1
 
 
 class PlanStopped(Exception):
@@ -80,24 +83,26 @@ class Worker:
     def run_job(self, message: dict[str, Any]) -> None:
         job_id = str(message["job"])
         deadline = time.monotonic() + float(message["deadline_s"])
-        where = {"stage": STARTING}
+        where: dict[str, Any] = {"stage": None, "sent": 0.0}
 
         def report(stage: str, done: int, total: int) -> None:
-            where["stage"] = stage
+            now = time.monotonic()
             with self.lock:
                 cancelled = job_id in self.cancelled
             if cancelled:
                 raise PlanStopped("cancelled")
-            if time.monotonic() > deadline:
+            if now > deadline:
                 raise PlanStopped("deadline")
-            self.send({"job": job_id, "progress": [stage, int(done), int(total)]})
+            if stage != where["stage"] or now - where["sent"] >= PROGRESS_INTERVAL_S:
+                where["stage"], where["sent"] = stage, now
+                self.send({"job": job_id, "progress": [stage, int(done), int(total)]})
 
         try:
             report(STARTING, 0, 1)
             result = plan(message["spec"], report)
             payload = jsonio.dumps(result, pretty=False).encode()
         except PlanStopped as exc:
-            self.send({"job": job_id, "stopped": exc.reason, "stage": where["stage"]})
+            self.send({"job": job_id, "stopped": exc.reason, "stage": where["stage"] or STARTING})
         except InputError as exc:
             self.send({"job": job_id, "error": exc.to_json(), "status": exc.status})
         except Exception:  # noqa: BLE001 - reported to the service as an internal error
@@ -111,15 +116,16 @@ class Worker:
 
 
 def plan(spec: Any, report) -> Any:
-    """The plan of ``spec``; ``report(stage, done, total)`` at the steps the planner reports."""
-    from fieldkit.plan import plan as make_plan
+    """The plan of ``spec``; ``report(stage, done, total)`` at every step the planner reports, and
+    it may raise to stop the plan (the interface agreed with the planning layer, TEAM.md)."""
+    from fieldkit.planning import plan as make_plan
 
-    return make_plan(spec)
+    return make_plan(spec, report=report)
 
 
 def warm_up() -> None:
     """Load the plan chain and PyIRI's coefficients before the first job (1-2 s of CPU)."""
-    import fieldkit.plan  # noqa: F401
+    import fieldkit.planning  # noqa: F401
     from fieldkit.sky import iri
 
     iri._library()

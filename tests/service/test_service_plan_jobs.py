@@ -52,7 +52,7 @@ def tight(tmp_path_factory):
 
 
 def test_a_job_answers_exactly_what_the_planner_answers(client):
-    from fieldkit.plan import plan
+    from fieldkit.planning import plan
 
     started = client.post("/api/plans", json=SMALL_PLAN)
     assert started.status_code == 202, started.json
