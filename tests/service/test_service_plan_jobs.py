@@ -15,6 +15,7 @@ import uuid
 
 import pytest
 
+from fieldkit.planning import STAGES
 from fieldkit.service import create_app
 from fieldkit.service.plan_jobs import KILL_GRACE_S, PlanBoard
 from fieldkit.service.server import start_in_thread
@@ -114,17 +115,23 @@ def test_a_full_queue_answers_503_with_retry_after(tight, demo_input):
 
 def test_a_plan_past_its_deadline_is_stopped_with_a_clear_error(tight, demo_input):
     client = tight.test_client()
+    client.post("/api/plan", json=SMALL_PLAN)  # the worker is up and warm
+    worker = tight.extensions["fieldkit_plan_board"]._slots[0].worker.proc
     started = time.monotonic()
     response = client.post("/api/plan", json=demo_variant(demo_input, 20))
     took = time.monotonic() - started
     assert response.status_code == 422, response.json
     assert response.json["error"] == "plan too long"
     assert "deadline of 1 s" in response.json["detail"]
-    # stopped for real: killed within its grace when it does not stop by itself
+    # stopped for real, at a report of the planner: named stage, and the same worker, not killed
+    assert any(stage in response.json["detail"] for stage in STAGES), response.json["detail"]
     assert took < 1.0 + KILL_GRACE_S + 15, took
-    # and the next plan gets a fresh worker (the small plan fits in the second)
-    again = client.post("/api/plan", json=SMALL_PLAN)
+    # the next plan is answered (the small one fits in the second) by the same worker process:
+    # the plan stopped itself at its deadline, nothing had to be killed
+    again = client.post("/api/plan", json={**SMALL_PLAN, "channels_mhz": [3.8]})
     assert again.status_code == 200, again.json
+    slot = tight.extensions["fieldkit_plan_board"]._slots[0]
+    assert slot.worker.proc is worker and worker.poll() is None
 
 
 def test_a_client_that_gives_up_stops_its_plan(tmp_path, demo_input):
