@@ -6,7 +6,7 @@ from typing import Any
 
 from flask import Blueprint, current_app, jsonify
 
-from fieldkit.errors import text
+from fieldkit.errors import InputError, join, text
 from fieldkit.fields import Record, string
 from fieldkit.service.http import json_body
 from fieldkit.service.plans_api import plan_result
@@ -137,6 +137,18 @@ def remove(deployment_id: str):
     return jsonify({"id": deployment_id, "deleted": True})
 
 
+def _replanned(plan_input: dict[str, Any]) -> dict[str, Any]:
+    """The plan of an imported input; its input errors name the field inside the export."""
+    try:
+        return plan_result(plan_input)
+    except InputError as exc:
+        if exc.status != 422 or not exc.field or exc.field.startswith("("):
+            raise
+        raise InputError(
+            join("deployment.input", exc.field), exc.detail, value=exc.value, status=422
+        ) from None
+
+
 @bp.get("/<deployment_id>/export")
 def export(deployment_id: str):
     doc = transfer.export_deployment(get_db(), deployment_id)
@@ -149,8 +161,27 @@ def export(deployment_id: str):
 
 @bp.post("/import")
 def import_():
-    new_id, created = transfer.import_deployment(get_db(), json_body())
-    response = jsonify({"id": new_id, "replayed": not created})
+    """Import an export: its input, name and acknowledgements; its plan recomputed, never trusted.
+
+    Readiness, safety and the checklist come from a new plan of the imported input (a plan job, like
+    a create), so a file with a forged result (``raise_ok: true``, no checklist) makes nothing
+    ready to raise. A plan input this fieldkit refuses is a 422 naming ``deployment.input.…``.
+    """
+    doc = json_body()
+    clean = transfer.validated(doc)
+    conn = get_db()
+    if transfer.replay_of(conn, clean):
+        return jsonify({"id": clean["deployment"]["id"], "replayed": True}), 200
+    recomputed = _replanned(clean["deployment"]["input"])
+    new_id, created = transfer.import_deployment(conn, doc, plan_result=recomputed)
+    response = jsonify(
+        {
+            "id": new_id,
+            "replayed": not created,
+            "recomputed": True,
+            "stored_result_matched": transfer.same_plan(clean["deployment"]["result"], recomputed),
+        }
+    )
     response.status_code = 201 if created else 200
     if created:
         response.headers["Location"] = f"/api/deployments/{new_id}"

@@ -1,4 +1,12 @@
-"""Moving a deployment between laptops: JSON export/import (lossless) and the checklist as CSV."""
+"""Moving a deployment between laptops: JSON export/import and the checklist as CSV.
+
+An import stores what a person decided (name, plan input, acknowledgements with their times) as the
+file has it, but never what was derived from it: the caller recomputes the plan from the input and
+passes it in (:func:`import_deployment`), so a file with a forged result — ``raise_ok: true`` and an
+empty checklist — cannot make anything ready to raise. When the recomputed plan agrees with the
+file's (all but the solver's own timings) the file's copy is kept, and export → import → export gives
+the same document.
+"""
 
 from __future__ import annotations
 
@@ -58,6 +66,11 @@ def export_deployment(conn: sqlite3.Connection, deployment_id: str) -> dict[str,
 
 def _optional_mapping(value: Any, field: str) -> dict[str, Any] | None:
     return None if value is None else dict(require_mapping(value, field))
+
+
+def validated(doc: Any) -> dict[str, Any]:
+    """The export document checked field by field: ``{"deployment": {...}, "acknowledgements": [...]}``."""
+    return _validated(doc)
 
 
 def _validated(doc: Any) -> dict[str, Any]:
@@ -124,37 +137,68 @@ def _validated(doc: Any) -> dict[str, Any]:
     return {"deployment": clean, "acknowledgements": clean_acks}
 
 
+# What an export holds that was derived from the rest (recomputed on import, never compared).
+DERIVED = ("result", "plan_error")
+# The part of a plan result that is the solver's own cost figures (timings), not the plan.
+COST_FIGURES = ("engine",)
+
+
 def _comparable(doc: Mapping[str, Any]) -> dict[str, Any]:
     return {
-        "deployment": dict(doc["deployment"]),
+        "deployment": {k: v for k, v in doc["deployment"].items() if k not in DERIVED},
         "acknowledgements": list(doc["acknowledgements"]),
     }
 
 
-def import_deployment(conn: sqlite3.Connection, doc: Any) -> tuple[str, bool]:
-    """Store an exported deployment as it was; return its id and whether it was newly created.
+def same_plan(stored: Mapping[str, Any] | None, recomputed: Mapping[str, Any] | None) -> bool:
+    """Whether two plan results agree in everything but the solver's timings."""
+    if not isinstance(stored, Mapping) or not isinstance(recomputed, Mapping):
+        return False
 
-    Importing the same export twice is a replay (nothing changes). An export whose id exists here with
-    other content is refused with 409: delete the local copy first, or edit the id in the file.
+    def plan_part(result: Mapping[str, Any]) -> dict[str, Any]:
+        return {k: v for k, v in result.items() if k not in COST_FIGURES}
+
+    return plan_part(stored) == plan_part(recomputed)
+
+
+def replay_of(conn: sqlite3.Connection, clean: Mapping[str, Any]) -> bool:
+    """True when this export is already stored here (a replay); 409 when its id holds another one."""
+    dep_id = clean["deployment"]["id"]
+    if deployments.find(conn, dep_id) is None:
+        return False
+    if _comparable(_validated(export_deployment(conn, dep_id))) == _comparable(clean):
+        return True
+    raise Conflict(
+        "deployment.id",
+        f"a different deployment with id {dep_id!r} is already stored",
+        value=dep_id,
+    )
+
+
+def import_deployment(
+    conn: sqlite3.Connection, doc: Any, *, plan_result: dict[str, Any]
+) -> tuple[str, bool]:
+    """Store an exported deployment with ``plan_result``, the plan recomputed from its input by the
+    caller; return its id and whether it was newly created.
+
+    The file's own result is kept only where it agrees with ``plan_result`` (:func:`same_plan`); its
+    ``plan_error`` is dropped (the recomputation succeeded). Importing the same export twice is a
+    replay (nothing changes). An export whose id exists here with other content is refused with
+    409: delete the local copy first, or edit the id in the file.
     """
     clean = _validated(doc)
     dep = clean["deployment"]
+    kept = dep["result"] if same_plan(dep["result"], plan_result) else plan_result
     with transaction(conn):
-        if deployments.find(conn, dep["id"]) is not None:
-            if _comparable(_validated(export_deployment(conn, dep["id"]))) == _comparable(clean):
-                return dep["id"], False
-            raise Conflict(
-                "deployment.id",
-                f"a different deployment with id {dep['id']!r} is already stored",
-                value=dep["id"],
-            )
+        if replay_of(conn, clean):
+            return dep["id"], False
         deployments.insert(
             conn,
             deployment_id=dep["id"],
             name=dep["name"],
             plan_input=dep["input"],
-            plan_result=dep["result"],
-            plan_error=dep["plan_error"],
+            plan_result=kept,
+            plan_error=None,
             created_at=dep["created_at"],
             updated_at=dep["updated_at"],
             revision=dep["revision"],

@@ -5,12 +5,23 @@ from __future__ import annotations
 import pytest
 
 from fieldkit.service import create_app
-from tests.robustness.helpers import checklist_export
+from fieldkit.service.plan_jobs import PlanBoard
+from tests.robustness.helpers import checklist_export, store_export
+
+
+@pytest.fixture(scope="session")
+def plan_board():
+    """One pool of plan worker processes for the session's in-process apps."""
+    board = PlanBoard()
+    yield board
+    board.close()
 
 
 @pytest.fixture
-def app(tmp_path):
-    return create_app({"DATA_DIR": tmp_path / "data", "DEMO": False, "TESTING": True})
+def app(tmp_path, plan_board):
+    return create_app(
+        {"DATA_DIR": tmp_path / "data", "DEMO": False, "TESTING": True, "PLAN_BOARD": plan_board}
+    )
 
 
 @pytest.fixture
@@ -19,13 +30,19 @@ def client(app):
 
 
 @pytest.fixture
-def lan_app(tmp_path):
-    return create_app({"DATA_DIR": tmp_path / "data", "DEMO": False, "LAN": True, "TESTING": True})
+def lan_app(tmp_path, plan_board):
+    return create_app(
+        {
+            "DATA_DIR": tmp_path / "data",
+            "DEMO": False,
+            "LAN": True,
+            "TESTING": True,
+            "PLAN_BOARD": plan_board,
+        }
+    )
 
 
 @pytest.fixture
-def deployment_id(client) -> str:
-    """A stored deployment with :data:`helpers.CHECKLIST` (imported, no plan run)."""
-    response = client.post("/api/deployments/import", json=checklist_export())
-    assert response.status_code == 201, response.get_json()
-    return response.get_json()["id"]
+def deployment_id(app) -> str:
+    """A stored deployment with :data:`helpers.CHECKLIST` (written to the store, no plan run)."""
+    return store_export(app.config["DATABASE"], checklist_export())

@@ -6,6 +6,7 @@ Everything here runs the real parts: SQLite on disk, waitress in its own process
 
 from __future__ import annotations
 
+import copy
 import json
 import math
 import os
@@ -64,14 +65,19 @@ DIPOLE = {
 
 
 def checklist_export(deployment_id: str | None = None, name: str = "Robustness fixture") -> dict:
-    """An export document (the import format of the service) holding :data:`CHECKLIST`."""
+    """An export document (the import format of the service) of :data:`SMALL_PLAN` holding
+    :data:`CHECKLIST` as its stored result.
+
+    Through ``POST /api/deployments/import`` the result is recomputed from the input (the import
+    trusts no derived state); :func:`store_export` stores it as it is, for tests of the checklist
+    mechanics that need a known checklist rather than a plan's numbers."""
     return {
         "format": "fieldkit-deployment",
         "format_version": 1,
         "deployment": {
             "id": deployment_id or str(uuid.uuid4()),
             "name": name,
-            "input": {"site": {"ground": "perfect", "supports": []}, "channels_mhz": [3.79]},
+            "input": copy.deepcopy(SMALL_PLAN),
             "result": {
                 "options": [
                     {
@@ -121,14 +127,41 @@ def strict_json(text: str) -> Any:
 TRACEBACK = re.compile(r"Traceback \(most recent call last\)|File \".*\", line \d+")
 
 
+def store_export(database: Path, doc: dict) -> str:
+    """Write an export-format document straight into a store (migrated first), as the laptop that
+    planned it keeps it: its stored result and acknowledgements as they are. Returns its id."""
+    from fieldkit import store
+    from fieldkit.store import acknowledgements, deployments
+
+    store.migrate(database)
+    dep = doc["deployment"]
+    conn = store.connect(database)
+    try:
+        with store.transaction(conn):
+            deployments.insert(
+                conn,
+                deployment_id=dep["id"],
+                name=dep["name"],
+                plan_input=dep["input"],
+                plan_result=dep["result"],
+                plan_error=dep.get("plan_error"),
+                created_at=dep["created_at"],
+                updated_at=dep["updated_at"],
+                revision=dep["revision"],
+            )
+            for ack in doc["acknowledgements"]:
+                acknowledgements.insert(conn, deployment_id=dep["id"], **ack)
+    finally:
+        conn.close()
+    return dep["id"]
+
+
 def seed_data_dir(data_dir: Path, doc: dict | None = None) -> str:
     """Create the database with one checklist deployment (so the service skips the demo plan)."""
-    from fieldkit.service import create_app
+    from fieldkit.store import database_path
 
-    app = create_app({"DATA_DIR": data_dir, "DEMO": False, "TESTING": True})
-    response = app.test_client().post("/api/deployments/import", json=doc or checklist_export())
-    assert response.status_code == 201, response.get_json()
-    return response.get_json()["id"]
+    Path(data_dir).mkdir(parents=True, exist_ok=True)
+    return store_export(database_path(Path(data_dir)), doc or checklist_export())
 
 
 class ServerProcess:

@@ -21,7 +21,7 @@ from fieldkit import paths
 from fieldkit.service import create_app
 from fieldkit.service.security import KEY_COOKIE, KEY_HEADER, keyring
 from fieldkit.service.server import start_in_thread
-from tests.robustness.helpers import checklist_export, stop_server
+from tests.robustness.helpers import checklist_export, stop_server, store_export
 
 SAMPLE = {"deployment_id": "dep-1", "item_id": "pre-item-0", "job_id": "job-1"}
 METHODS = ("GET", "HEAD", "POST", "PUT", "PATCH", "DELETE", "OPTIONS")
@@ -40,10 +40,7 @@ def test_every_route_and_every_method_without_a_valid_key_is_401(lan_app):
     client = lan_app.test_client(use_cookies=False)
     key = keyring(lan_app).key
     # a real deployment behind the sample id, so a leak would show data, not a 404
-    seeded = client.post(
-        "/api/deployments/import", json=checklist_export("dep-1"), headers={KEY_HEADER: key}
-    )
-    assert seeded.status_code == 201
+    store_export(lan_app.config["DATABASE"], checklist_export("dep-1"))
     wrong_places = [
         {},
         {"headers": {KEY_HEADER: "x" * len(key)}},  # wrong key of the right length

@@ -14,7 +14,7 @@ import pytest
 
 from fieldkit.service import create_app
 from fieldkit.service.server import start_in_thread
-from tests.robustness.helpers import ack, checklist_export, request_json, stop_server
+from tests.robustness.helpers import ack, checklist_export, request_json, stop_server, store_export
 
 BODY = json.dumps({"done": True, "by": "AB", "at": "2026-12-01T14:05:00Z"})
 
@@ -35,11 +35,8 @@ def _exchange(port: int, raw: bytes, timeout: float = 10.0) -> bytes:
 @pytest.fixture
 def server(tmp_path):
     app = create_app({"DATA_DIR": tmp_path / "data", "DEMO": False})
+    store_export(app.config["DATABASE"], checklist_export("raw-dep"))
     running = start_in_thread(app)
-    status, created = request_json(
-        f"{running.url}api/deployments/import", method="POST", body=checklist_export("raw-dep")
-    )
-    assert status == 201, created
     yield running
     stop_server(running)
 

@@ -18,7 +18,14 @@ import pytest
 
 from fieldkit.service import create_app
 from fieldkit.service.server import start_in_thread
-from tests.robustness.helpers import SMALL_PLAN, ack, checklist_export, request_json, stop_server
+from tests.robustness.helpers import (
+    SMALL_PLAN,
+    ack,
+    checklist_export,
+    request_json,
+    stop_server,
+    store_export,
+)
 
 
 def _put(client, deployment_id, item, body):
@@ -110,8 +117,7 @@ def test_replayed_queue_in_reverse_keeps_every_record_and_each_laptops_last_rece
     for name, order in (("forward", queue), ("reverse", queue[::-1])):
         app = create_app({"DATA_DIR": tmp_path / name, "DEMO": False, "TESTING": True})
         client = app.test_client()
-        doc = checklist_export(deployment_id="shared-deployment")
-        assert client.post("/api/deployments/import", json=doc).status_code == 201
+        store_export(app.config["DATABASE"], checklist_export(deployment_id="shared-deployment"))
         for item, body in order:
             assert _put(client, "shared-deployment", item, body).status_code == 200
         for item, body in order:  # the whole queue again: nothing changes
@@ -133,10 +139,7 @@ def test_concurrent_replays_over_waitress_make_one_record(tmp_path):
     server = start_in_thread(app)
     try:
         base = server.url.rstrip("/")
-        status, created = request_json(
-            f"{base}/api/deployments/import", method="POST", body=checklist_export()
-        )
-        assert status == 201, created
+        created = {"id": store_export(app.config["DATABASE"], checklist_export())}
         url = f"{base}/api/deployments/{created['id']}/checks/pre-item-0"
         body = ack()
         results: list[tuple[int, bool]] = []

@@ -14,6 +14,7 @@ from fieldkit import paths
 from fieldkit.service import create_app
 from fieldkit.service.plan_jobs import PlanBoard
 from fieldkit.service.plancache import PlanCache
+from tests.robustness.helpers import store_export
 
 from .service_fixtures import export_doc
 
@@ -51,8 +52,16 @@ def client(app):
 
 
 @pytest.fixture
-def lan_app(tmp_path):
-    return create_app({"DATA_DIR": tmp_path / "data", "DEMO": False, "LAN": True, "TESTING": True})
+def lan_app(tmp_path, plan_board):
+    return create_app(
+        {
+            "DATA_DIR": tmp_path / "data",
+            "DEMO": False,
+            "LAN": True,
+            "TESTING": True,
+            "PLAN_BOARD": plan_board,
+        }
+    )
 
 
 @pytest.fixture
@@ -62,8 +71,6 @@ def demo_input() -> dict:
 
 
 @pytest.fixture
-def planned(client) -> str:
-    """The id of a stored deployment with a checklist (imported from :func:`export_doc`)."""
-    response = client.post("/api/deployments/import", json=export_doc())
-    assert response.status_code == 201, response.json
-    return response.json["id"]
+def planned(app) -> str:
+    """The id of a stored deployment with :data:`CHECKLIST` (:func:`export_doc` written to the store)."""
+    return store_export(app.config["DATABASE"], export_doc())

@@ -5,6 +5,8 @@ from __future__ import annotations
 import copy
 import uuid
 
+from tests.robustness.helpers import SMALL_PLAN
+
 # A stored plan result shaped like the plan contract of ARCHITECTURE.md, for tests of the store and the
 # checklist endpoints that must not depend on the plan layer's numbers. Its checklist items follow the
 # safety block's shape (id, stage, text, required).
@@ -31,7 +33,11 @@ RESULT = {
 
 
 def export_doc(*, deployment_id: str | None = None, raise_ok: bool = True, acks=()) -> dict:
-    """An export-format document holding :data:`RESULT`, as a laptop running fieldkit would write."""
+    """An export-format document of :data:`SMALL_PLAN` holding :data:`RESULT`.
+
+    Imported through the API its result is recomputed (the import trusts no derived state); tests
+    of the checklist mechanics store it as it is with :func:`tests.robustness.helpers.store_export`.
+    """
     result = copy.deepcopy(RESULT)
     result["options"][0]["safety"]["raise_ok"] = raise_ok
     return {
@@ -40,7 +46,7 @@ def export_doc(*, deployment_id: str | None = None, raise_ok: bool = True, acks=
         "deployment": {
             "id": deployment_id or str(uuid.uuid4()),
             "name": "Checklist fixture",
-            "input": {"site": {"ground": "poor", "supports": []}, "channels_mhz": [3.79]},
+            "input": copy.deepcopy(SMALL_PLAN),
             "result": result,
             "plan_error": None,
             "created_at": "2026-12-01T12:00:00.000000Z",

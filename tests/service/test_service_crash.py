@@ -18,6 +18,9 @@ from pathlib import Path
 
 import pytest
 
+from fieldkit.store import database_path
+from tests.robustness.helpers import store_export
+
 from .service_fixtures import export_doc
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -58,10 +61,9 @@ def send(url: str, method: str, body: dict) -> int:
 def test_acknowledgements_survive_sigkill(tmp_path):
     rng = random.Random(20261201)  # fixed seed: the kill moments are reproducible
     data_dir = tmp_path / "data"
+    data_dir.mkdir()
+    dep = store_export(database_path(data_dir), export_doc())  # its checklist has pre-weather
     proc, base = start(data_dir)
-    doc = export_doc()
-    assert send(base + "/api/deployments/import", "POST", doc) == 201
-    dep = doc["deployment"]["id"]
     confirmed: list[str] = []
     faults = 0
     try:

@@ -8,6 +8,8 @@ import uuid
 
 import pytest
 
+from tests.robustness.helpers import SMALL_PLAN, store_export
+
 from .service_fixtures import CHECKLIST, ack, export_doc
 
 
@@ -171,8 +173,8 @@ def test_ready_to_raise_needs_every_required_pre_raise_item(client, planned):
     assert client.get(f"/api/deployments/{planned}").json["ready_to_raise"] is True
 
 
-def test_raise_not_ok_blocks_ready_even_when_all_ticked(client):
-    new_id = client.post("/api/deployments/import", json=export_doc(raise_ok=False)).json["id"]
+def test_raise_not_ok_blocks_ready_even_when_all_ticked(app, client):
+    new_id = store_export(app.config["DATABASE"], export_doc(raise_ok=False))
     base = f"/api/deployments/{new_id}/checks"
     for item in CHECKLIST:
         client.put(f"{base}/{item['id']}", json=ack())
@@ -235,23 +237,30 @@ def test_checklist_csv(client, planned):
     assert rows[2]["text"].startswith("'=")
 
 
-def test_export_import_round_trip_loses_nothing(client, planned, tmp_path):
+def test_export_import_round_trip_loses_nothing(client, plan_board, tmp_path):
     from fieldkit.service import create_app
 
+    # a deployment planned here (a real plan of the small two-tree site), its real items ticked
+    planned = create(client, {**SMALL_PLAN, "name": "Round trip"}).json["id"]
     base = f"/api/deployments/{planned}/checks"
-    client.put(f"{base}/pre-weather", json=ack(by="AB", at="2026-12-01T14:05:00Z"))
-    client.put(f"{base}/pre-weather", json=ack(done=False, by="CD", at="2026-12-01T14:06:00+01:00"))
-    client.put(f"{base}/pre-power-line-0", json=ack(by="ÉÑ 🙂"))
+    first, second = [i["id"] for i in client.get(base).json["items"]][:2]
+    client.put(f"{base}/{first}", json=ack(by="AB", at="2026-12-01T14:05:00Z"))
+    client.put(f"{base}/{first}", json=ack(done=False, by="CD", at="2026-12-01T14:06:00+01:00"))
+    client.put(f"{base}/{second}", json=ack(by="ÉÑ 🙂"))
     exported = client.get(f"/api/deployments/{planned}/export")
     assert exported.status_code == 200
     assert "attachment" in exported.headers["Content-Disposition"]
     doc = exported.json
     assert len(doc["acknowledgements"]) == 3
 
-    other = create_app({"DATA_DIR": tmp_path / "other", "DEMO": False}).test_client()
+    other = create_app(
+        {"DATA_DIR": tmp_path / "other", "DEMO": False, "PLAN_BOARD": plan_board}
+    ).test_client()
     imported = other.post("/api/deployments/import", json=doc)
     assert imported.status_code == 201, imported.json
     assert imported.json["id"] == planned
+    # the other laptop re-planned the input and found the file's plan: nothing changed on the way
+    assert imported.json["recomputed"] is True and imported.json["stored_result_matched"] is True
     assert other.get(f"/api/deployments/{planned}/export").json == doc
     assert other.get(base).json["items"] == client.get(base).json["items"]
 
@@ -291,6 +300,7 @@ def test_import_refuses_bad_deployment_fields(client):
 
 def test_import_refuses_duplicate_client_ids_in_one_file(client):
     one = {**ack(), "item_id": "pre-weather", "received_at": "2026-12-01T14:05:01Z"}
+    # (its input is the small real site: the re-plan succeeds, the duplicate is what is refused)
     response = client.post("/api/deployments/import", json=export_doc(acks=[one, one]))
     assert response.status_code == 409
     assert client.get("/api/deployments").json["deployments"] == []  # the transaction rolled back
@@ -387,3 +397,32 @@ def test_a_tick_counts_only_for_the_wording_it_was_given_for(app, client, planne
     assert again.json["ready_to_raise"] is True
     history = client.get(f"{base}/pre-power-line-0").json["history"]
     assert len(history) == 2 and history[0]["item_text_sha256"] != history[1]["item_text_sha256"]
+
+
+def test_an_import_with_a_forged_result_makes_nothing_ready_to_raise(client):
+    """Issue 15, item 6: a stored result with raise_ok true and an empty checklist, imported, was
+    ready to raise with no ticks at all. The import re-plans its input instead."""
+    doc = export_doc()
+    doc["deployment"]["result"]["options"][0]["safety"] = {"raise_ok": True, "checklist": []}
+    response = client.post("/api/deployments/import", json=doc)
+    assert response.status_code == 201, response.json
+    assert response.json["recomputed"] is True and response.json["stored_result_matched"] is False
+    new_id = response.json["id"]
+    state = client.get(f"/api/deployments/{new_id}/checks").json
+    assert state["ready_to_raise"] is False
+    assert state["items"] and state["missing_checks"]  # the real plan's pre-raise checks
+    stored = client.get(f"/api/deployments/{new_id}").json
+    assert stored["ready_to_raise"] is False
+    checklist = stored["result"]["options"][0]["safety"]["checklist"]
+    assert [i["id"] for i in checklist] == [i["id"] for i in state["items"]] != []
+    listed = client.get("/api/deployments").json["deployments"]
+    assert [d["ready_to_raise"] for d in listed if d["id"] == new_id] == [False]
+
+
+def test_an_imported_input_the_planner_refuses_is_422_naming_it_inside_the_export(client):
+    doc = export_doc()
+    doc["deployment"]["input"]["form"] = "spiral"
+    response = client.post("/api/deployments/import", json=doc)
+    assert response.status_code == 422, response.json
+    assert response.json["field"] == "deployment.input.form"
+    assert client.get("/api/deployments").json["deployments"] == []

@@ -410,15 +410,33 @@ def test_export_import_round_trip(db, tmp_path):
     (tmp_path / "other").mkdir()
     migrate(other_path)
     other = store.connect(other_path)
+    # the importing side recomputes the plan from the input (here: the same plan, other timings)
+    recomputed = {"options": [{"x": 1.5}], "engine": {"solve_s": 0.25}}
     try:
-        assert transfer.import_deployment(other, json.loads(text)) == (new_id, True)
+        imported = transfer.import_deployment(other, json.loads(text), plan_result=recomputed)
+        assert imported == (new_id, True)
         assert transfer.export_deployment(other, new_id) == doc
         assert acknowledgements.current_state(other, new_id) == acknowledgements.current_state(
             db, new_id
         )
-        assert transfer.import_deployment(other, json.loads(text)) == (new_id, False)
+        again = transfer.import_deployment(other, json.loads(text), plan_result=recomputed)
+        assert again == (new_id, False)
     finally:
         other.close()
+
+
+def test_an_import_keeps_only_a_result_its_recomputation_confirms(db):
+    new_id = deployments.create(
+        db,
+        name="forged",
+        plan_input=PLAN_INPUT,
+        plan_result={"options": [{"safety": {"raise_ok": True, "checklist": []}}]},
+    )
+    doc = transfer.export_deployment(db, new_id)
+    deployments.delete(db, new_id)
+    honest = {"options": [{"safety": {"raise_ok": False, "checklist": [{"id": "pre-a"}]}}]}
+    transfer.import_deployment(db, doc, plan_result=honest)
+    assert deployments.get(db, new_id).plan_result == honest
 
 
 def test_csv_defuses_formulas():
