@@ -5,7 +5,8 @@ with a temporary FIELDKIT_HOME; a fixed number of requests per round, a fixed nu
 it stops by itself. Each round shuffles (seeded) a fixed mix over the clients' keep-alive
 connections:
 
-    POST /api/plan                                   a small plan, a new variant each time (no cache)
+    POST /api/plan                                   a small plan, a new variant each time (no cache);
+                                                     a 503 (plan queue full) waits Retry-After, retries
     PUT  /api/deployments/<id>/checks/<item>         an acknowledgement with a fresh client_id
     GET  /api/deployments | /<id> | /<id>/checks     reads
 
@@ -110,7 +111,9 @@ def _tasks(rng: random.Random, n: int, plans: int, deployment_id: str, round_no:
     return tasks
 
 
-def _client(port: int, tasks: list, lock: threading.Lock, out: list, acked: list) -> None:
+def _client(
+    port: int, tasks: list, lock: threading.Lock, out: list, acked: list, busy: list
+) -> None:
     conn = http.client.HTTPConnection("127.0.0.1", port, timeout=120)
     while True:
         with lock:
@@ -124,6 +127,13 @@ def _client(port: int, tasks: list, lock: threading.Lock, out: list, acked: list
             conn.request(method, path, body=data, headers=headers)
             response = conn.getresponse()
             payload = response.read()
+            if response.status == 503 and kind == "plan":  # the plan queue is full: as documented,
+                wait = min(5.0, float(response.getheader("Retry-After") or 1))  # wait and retry
+                with lock:
+                    busy.append(wait)
+                    tasks.append((kind, method, path, body))
+                time.sleep(wait)
+                continue
             ok = 200 <= response.status < 300
             if ok:
                 json.loads(payload)
@@ -167,6 +177,7 @@ def main() -> int:
         print(f"  server RSS at start: {_rss_mb(proc.pid):.1f} MB")
         all_results: list = []
         acked: list[str] = []
+        busy: list[float] = []
         rss: list[float] = []
         try:
             for round_no in range(args.rounds):
@@ -174,7 +185,7 @@ def main() -> int:
                 results: list = []
                 lock = threading.Lock()
                 threads = [
-                    threading.Thread(target=_client, args=(port, tasks, lock, results, acked))
+                    threading.Thread(target=_client, args=(port, tasks, lock, results, acked, busy))
                     for _ in range(args.clients)
                 ]
                 t0 = time.perf_counter()
@@ -216,7 +227,7 @@ def main() -> int:
     stable = growth < args.rss_slack_mb
     print(
         f"  errors: {errors}; acknowledgements answered 200: {len(acked)}, lost: {lost}; "
-        f"integrity_check: {integrity}"
+        f"integrity_check: {integrity}; plan requests told 503 (queue full) and retried: {len(busy)}"
     )
     print(
         f"  RSS by round (MB): {', '.join(f'{v:.1f}' for v in rss)}; growth after round 2: "

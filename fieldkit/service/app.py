@@ -43,6 +43,7 @@ DEFAULTS: dict[str, Any] = {
     "PLAN_WORKERS": plan_jobs.DEFAULT_WORKERS,  # worker processes running plans
     "PLAN_QUEUE": plan_jobs.DEFAULT_QUEUE,  # plans that may wait for a worker; then 503
     "PLAN_DEADLINE_S": plan_jobs.DEFAULT_DEADLINE_S,  # the longest one plan may run [s]
+    "PLAN_NICENESS": plan_jobs.DEFAULT_NICENESS,  # how much lower the plan workers run (POSIX)
     "MAX_CONTENT_LENGTH": MAX_CONTENT_LENGTH,
     "JSON_SORT_KEYS": False,
 }
@@ -109,6 +110,7 @@ def create_app(config: Mapping[str, Any] | None = None) -> Flask:
         workers=app.config["PLAN_WORKERS"],
         queue_limit=app.config["PLAN_QUEUE"],
         deadline_s=app.config["PLAN_DEADLINE_S"],
+        niceness=app.config["PLAN_NICENESS"],
     )
     app.extensions["fieldkit_planning"] = set()
     if app.config["DEMO"]:

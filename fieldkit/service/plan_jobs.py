@@ -65,6 +65,10 @@ ABANDON_S = 30.0
 # Finished jobs kept for polling: the last ones, for a while.
 RETAIN_JOBS = 32
 RETAIN_S = 600.0
+# How much lower a plan worker runs than the service [nice steps, POSIX]. A plan is batch work: with
+# the priority lowered the answers to phones and the window come first and the plan still gets every
+# idle cycle. 10 measured best on 2 cores (benchmarks/bench_service_load.py: health p95 under load).
+DEFAULT_NICENESS = 10
 # Requests that may wait for plans at once: one per running and queued plan, and one more for a
 # request that joins a job already there.
 DEFAULT_MAX_WAITERS = DEFAULT_WORKERS + DEFAULT_QUEUE + 1
@@ -168,6 +172,7 @@ class PlanBoard:
         queue_limit: int = DEFAULT_QUEUE,
         deadline_s: float = DEFAULT_DEADLINE_S,
         max_waiters: int | None = None,
+        niceness: int = DEFAULT_NICENESS,
     ) -> None:
         if workers < 1 or queue_limit < 0 or deadline_s <= 0:
             raise ValueError("a plan board needs at least one worker and a positive deadline")
@@ -176,6 +181,7 @@ class PlanBoard:
         self.queue_limit = queue_limit
         self.deadline_s = deadline_s
         self.max_waiters = max_waiters if max_waiters is not None else workers + queue_limit + 1
+        self.niceness = niceness
         self._cond = threading.Condition()
         self._queue: deque[Job] = deque()
         self._jobs: OrderedDict[str, Job] = OrderedDict()
@@ -183,6 +189,7 @@ class PlanBoard:
         self._active: dict[str, Job] = {}  # by input key: queued or running
         self._waiting = 0
         self._mean_s = FIRST_GUESS_S
+        self._finished = 0
         self._slots: list[_Slot] = []
         self._closed = False
         self._finalizer = weakref.finalize(self, _stop_slots, self._slots)
@@ -320,6 +327,7 @@ class PlanBoard:
                 "plans_running": running,
                 "plans_queued": len(self._queue),
                 "plans_waited_for": self._waiting,
+                "plans_finished": self._finished,
                 "plan_workers": self.workers,
                 "plan_queue_limit": self.queue_limit,
             }
@@ -369,6 +377,7 @@ class PlanBoard:
         if self._active.get(job.key) is job:
             del self._active[job.key]
         if state == "done" and job.started is not None:
+            self._finished += 1
             self._mean_s = 0.7 * self._mean_s + 0.3 * (job.finished_at - job.started)
             if result_text is not None:
                 self.cache.store(job.key, result_text)
@@ -410,7 +419,7 @@ class _Slot:
 
     def __init__(self, board: PlanBoard, n: int) -> None:
         self.board_ref = weakref.ref(board)
-        self.worker = WorkerProcess(f"fieldkit-plan-{n}")
+        self.worker = WorkerProcess(f"fieldkit-plan-{n}", niceness=board.niceness)
         self.warm = threading.Event()
         self.stopping = False
         self.thread = threading.Thread(target=self.loop, name=f"fieldkit-plan-{n}", daemon=True)

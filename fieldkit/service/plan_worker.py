@@ -1,6 +1,7 @@
 """The plan worker: a separate process that runs plans for the service, one at a time.
 
-Started by :mod:`fieldkit.service.plan_jobs` as ``python -m fieldkit.service.plan_worker``. A plan is
+Started by :mod:`fieldkit.service.plan_jobs` as ``python -m fieldkit.service.plan_worker [NICE]``
+(NICE: how much to lower its own scheduling priority). A plan is
 CPU-bound Python and numpy for seconds; in its own process it neither holds the service's GIL (health,
 ticks, reads and static files stay quick) nor shares its memory, and a plan past its deadline can be
 killed outright — the one stop that always works.
@@ -131,7 +132,11 @@ def warm_up() -> None:
     iri._library()
 
 
-def main() -> int:
+def main(argv: list[str] | None = None) -> int:
+    args = sys.argv[1:] if argv is None else argv
+    niceness = int(args[0]) if args else 0
+    if niceness and hasattr(os, "nice"):
+        os.nice(niceness)  # the service's own threads and the window come first
     out = os.fdopen(os.dup(sys.stdout.fileno()), "wb")  # the protocol's own descriptor
     os.dup2(sys.stderr.fileno(), sys.stdout.fileno())  # a library's print() goes to stderr
     sys.stdout = sys.stderr

@@ -43,8 +43,9 @@ def _environment() -> dict[str, str]:
 class WorkerProcess:
     """A plan worker process; :meth:`start` it (again after it died), :meth:`send`, read :attr:`messages`."""
 
-    def __init__(self, name: str) -> None:
+    def __init__(self, name: str, *, niceness: int = 0) -> None:
         self.name = name
+        self.niceness = niceness
         self.proc: subprocess.Popen | None = None
         self.messages: queue.Queue[tuple[dict[str, Any], str | None]] = queue.Queue()
         self._lock = threading.Lock()
@@ -60,7 +61,7 @@ class WorkerProcess:
                 return
             self.messages = queue.Queue()
             self.proc = subprocess.Popen(
-                [sys.executable, "-m", "fieldkit.service.plan_worker"],
+                [sys.executable, "-m", "fieldkit.service.plan_worker", str(self.niceness)],
                 stdin=subprocess.PIPE,
                 stdout=subprocess.PIPE,
                 env=_environment(),
