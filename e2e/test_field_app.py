@@ -251,7 +251,14 @@ def test_phone_newcomer_walk(open_app, service):
     # planning takes seconds: the progress bar must show (anything over 0.25 s)
     page.get_by_test_id("busy").wait_for(state="visible")
     assert "planning" in page.get_by_test_id("busy").inner_text()
+    # a real progress bar with the stage in words, from the plan job (GET /api/plans/<id>)
+    page.get_by_test_id("plan-progress").wait_for(state="attached", timeout=PLAN_TIMEOUT_MS)
+    busy_text = page.get_by_test_id("busy").inner_text()
+    assert "Saving and planning: " in busy_text, busy_text
+    assert 0 <= float(page.get_by_test_id("plan-progress").get_attribute("value") or 0) <= 1
+    shot(page, "phone-plan-progress")
     wait_plan(page)
+    assert page.get_by_test_id("plan-progress").count() == 0  # gone with the answer
     status = page.get_by_test_id("plan-status").inner_text()
     assert "T3" not in status.split("rope heights")[0], "the unsafe snag must not be used"
     assert page.get_by_test_id("site-sketch").locator("[data-testid=sketch-wire]").count() == 1

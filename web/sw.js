@@ -31,6 +31,7 @@ const SHELL = [
   "js/units.js",
   "js/wire.js",
   "js/kit.js",
+  "js/progress.js",
 ];
 const NETWORK_TIMEOUT_MS = 4000;
 
@@ -87,6 +88,7 @@ self.addEventListener("fetch", (event) => {
   if (request.method !== "GET") return;
   const url = new URL(request.url);
   if (url.origin !== self.location.origin) return;
+  if (url.pathname.startsWith("/api/plans")) return; // a plan's progress: now or not at all
   if (url.pathname.startsWith("/api/")) {
     event.respondWith(networkFirst(request, API_CACHE));
     return;

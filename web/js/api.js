@@ -1,5 +1,10 @@
 // The service API (ARCHITECTURE.md, "Contract: the service"). Same origin only.
 
+import { withPlanProgress } from "./progress.js";
+
+// A request that plans waits for its plan job: the queue and the plan's deadline (docs/service.md).
+const PLAN_TIMEOUT_MS = 300000;
+
 export class ApiError extends Error {
   constructor(status, body) {
     const detail = (body && (body.detail || body.error)) || `the service answered ${status}`;
@@ -44,8 +49,8 @@ function busyEnd() {
   }
 }
 
-export async function request(method, path, body, { label = "Working…", timeoutMs = 120000 } = {}) {
-  const init = { method, headers: { Accept: "application/json" }, credentials: "same-origin" };
+export async function request(method, path, body, { label = "Working…", timeoutMs = 120000, headers = {} } = {}) {
+  const init = { method, headers: { Accept: "application/json", ...headers }, credentials: "same-origin" };
   if (body !== undefined) {
     init.headers["Content-Type"] = "application/json";
     init.body = JSON.stringify(body);
@@ -80,15 +85,21 @@ export async function request(method, path, body, { label = "Working…", timeou
   return data;
 }
 
+/** A request that plans: its job's progress is shown while it waits (progress.js). */
+function planning(method, path, body, label) {
+  const send = (job) => request(method, path, body, { label, timeoutMs: PLAN_TIMEOUT_MS, headers: { "X-Fieldkit-Job": job } });
+  return withPlanProgress(send, label.replace(/…$/, ""));
+}
+
 export const api = {
   request,
   health: () => request("GET", "/api/health", undefined, { timeoutMs: 4000 }),
   listDeployments: () => request("GET", "/api/deployments"),
   getDeployment: (id) => request("GET", `/api/deployments/${encodeURIComponent(id)}`),
-  createDeployment: (dep) => request("POST", "/api/deployments", dep, { label: "Saving and planning…" }),
-  saveDeployment: (id, dep) => request("PUT", `/api/deployments/${encodeURIComponent(id)}`, dep, { label: "Saving and planning…" }),
+  createDeployment: (dep) => planning("POST", "/api/deployments", dep, "Saving and planning…"),
+  saveDeployment: (id, dep) => planning("PUT", `/api/deployments/${encodeURIComponent(id)}`, dep, "Saving and planning…"),
   deleteDeployment: (id) => request("DELETE", `/api/deployments/${encodeURIComponent(id)}`),
-  plan: (input) => request("POST", "/api/plan", input, { label: "Planning the antenna…" }),
+  plan: (input) => planning("POST", "/api/plan", input, "Planning the antenna…"),
   sky: (input) => request("POST", "/api/sky", input, { label: "Estimating the sky…" }),
   model: (spec) => request("POST", "/api/model", spec, { label: "Modelling the wire…" }),
   checks: (id) => request("GET", `/api/deployments/${encodeURIComponent(id)}/checks`),

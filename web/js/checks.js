@@ -124,7 +124,8 @@ function historyBox(app) {
         break;
       }
     }
-    rows.sort((a, b) => String(b.at).localeCompare(String(a.at)));
+    // newest first in the service's receipt order (pending ticks, not received yet, on top)
+    rows.sort((a, b) => String(b.received_at ?? "~").localeCompare(String(a.received_at ?? "~")));
     clear(body);
     if (!rows.length) {
       body.append(h("p", { text: "Nothing ticked yet." }));
@@ -135,7 +136,8 @@ function historyBox(app) {
     const tb = h("tbody");
     for (const r of rows) {
       const text = st.checks.find((c) => c.id === r.item_id)?.text ?? r.item_id;
-      tb.append(h("tr", {}, [h("td", { text: r.at ? new Date(r.at).toLocaleString() : "" }), h("td", { text: `${r.done === false ? "unticked: " : ""}${text}` }), h("td", { text: r.by }), h("td", { text: r.state })]));
+      const when = `${r.at ? new Date(r.at).toLocaleString() : ""}${r.received_at ? ` (received ${new Date(r.received_at).toLocaleString()})` : ""}${r.clock_ahead ? " — the phone's clock was ahead" : ""}`;
+      tb.append(h("tr", {}, [h("td", { text: when }), h("td", { text: `${r.done === false ? "unticked: " : ""}${text}` }), h("td", { text: r.by }), h("td", { text: r.state })]));
     }
     t.append(tb);
     body.append(h("div", { class: "table-wrap" }, [t]));
