@@ -49,7 +49,10 @@ from fieldkit.service.plancache import PlanCache, input_key
 from fieldkit.service.worker_process import GONE, WorkerBroken, WorkerProcess
 
 # One plan at a time per core beyond the one the service and the window need; at least one, at most
-# two (a third plan on a 4-core laptop gains little and triples the memory of worker processes).
+# two. Measured on 2 cores under the mixed load (bench_service_load.py, 2 Dec 2026): a second worker
+# finished 25 plans in 30 s against 21 (+19 %) for health p95 88 against 77 ms and twice the memory
+# (~140 MB a worker), so one. Plans in threads of the service instead finished 7 (the GIL), at the
+# same health p95, with no way to stop one at its deadline.
 DEFAULT_WORKERS = max(1, min(2, (os.cpu_count() or 2) - 1))
 # Jobs that may wait for a worker. Four demo plans are about 10-20 s of waiting on a laptop: longer
 # than that a person would rather be told to try again.
@@ -67,7 +70,9 @@ RETAIN_JOBS = 32
 RETAIN_S = 600.0
 # How much lower a plan worker runs than the service [nice steps, POSIX]. A plan is batch work: with
 # the priority lowered the answers to phones and the window come first and the plan still gets every
-# idle cycle. 10 measured best on 2 cores (benchmarks/bench_service_load.py: health p95 under load).
+# idle cycle. Measured on 2 cores (bench_service_load.py, 2 Dec 2026): health p95 77 ms against 70 ms
+# at nice 0 on an idle machine, 77 against 91 ms at load 5 — within the noise either way — for 25 %
+# fewer plans only while 20 clients saturate both cores; kept for the window's sake.
 DEFAULT_NICENESS = 10
 # Requests that may wait for plans at once: one per running and queued plan, and one more for a
 # request that joins a job already there.

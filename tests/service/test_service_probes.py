@@ -219,3 +219,39 @@ def test_loopback_writes_from_another_origin_are_refused_too(client):
     assert response.status_code == 403
     ok = client.put("/api/kit", json={}, headers={"Origin": "http://localhost"})
     assert ok.status_code == 200
+
+
+def test_a_write_that_cannot_get_the_database_is_503_not_500(app, client, planned, monkeypatch):
+    """Twenty phones ticking at once on a loaded laptop: a writer that waits past the busy timeout
+    is told to send again (503, Retry-After), the phone keeps the tick queued; nothing is written."""
+    import threading
+
+    from fieldkit import store
+    from fieldkit.store import sqlite as store_sqlite
+
+    from .service_fixtures import ack
+
+    monkeypatch.setattr(store_sqlite, "BUSY_TIMEOUT_MS", 300)
+    holding, release = threading.Event(), threading.Event()
+
+    def hold_the_write_lock() -> None:
+        conn = store.connect(app.config["DATABASE"])
+        try:
+            with store.transaction(conn):
+                holding.set()
+                release.wait(10)
+        finally:
+            conn.close()
+
+    holder = threading.Thread(target=hold_the_write_lock)
+    holder.start()
+    try:
+        assert holding.wait(10)
+        response = client.put(f"/api/deployments/{planned}/checks/pre-weather", json=ack())
+    finally:
+        release.set()
+        holder.join(10)
+    assert response.status_code == 503, response.json
+    assert response.json["error"] == "busy" and int(response.headers["Retry-After"]) >= 1
+    history = client.get(f"/api/deployments/{planned}/checks/pre-weather").json["history"]
+    assert history == []
