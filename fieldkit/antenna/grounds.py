@@ -104,6 +104,13 @@ def parse_ground(value: Any, field: str = "ground") -> Ground:
             minimum=0.0,
             maximum=10.0,
         )
+        if eps <= 1.0 and sigma == 0.0:  # a "ground" of empty space: no reflection to model
+            raise InputError(
+                join(field, "relative_permittivity"),
+                'εr = 1 with σ = 0 is empty space, not a ground: use "free-space" for no ground, '
+                "or give the soil's constants (average ground: 13 and 0.005 S/m)",
+                value=eps,
+            )
         return Ground("lossy", eps, sigma)
     raise InputError(
         field,

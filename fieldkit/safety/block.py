@@ -15,6 +15,7 @@ from fieldkit.safety.exposure import Landmark, keep_out
 from fieldkit.safety.hazards import PowerLine, Support, parse_hazards, parse_supports
 from fieldkit.safety.items import OptionFindings, option_items
 from fieldkit.safety.limits import exposure_limit, parse_limit_set
+from fieldkit.safety.low_wire import low_wire_zones
 from fieldkit.safety.oet65 import oet65_estimate
 from fieldkit.safety.plan_view import compass_word, polyline_length
 from fieldkit.safety.powerlines import Rig, RiggedSupport, line_clearances
@@ -212,7 +213,8 @@ def safety_block(
     -------
     dict
         ``limit_set``, ``keep_out_m``, ``keep_out_outline_m``, ``min_end_height_m``, ``clearances``,
-        ``raise_ok``, ``checklist``, ``cautions``; and ``reasons`` (why not to raise) and ``exposure``
+        ``raise_ok``, ``checklist``, ``cautions``; ``low_wire_zones_m`` (the ground under the wire
+        where it hangs below 3 m, to fence: :mod:`fieldkit.safety.low_wire`); and ``reasons`` (why not to raise) and ``exposure``
         (per end and height, OET 65 estimate, power for no zone, near-field points used).
     """
     limit_name = parse_limit_set(limit_set)
@@ -318,6 +320,7 @@ def safety_block(
         "limit_set": limit_name,
         "keep_out_m": round(ko.keep_out_m, 2),
         "keep_out_outline_m": ko.outline_m,
+        "low_wire_zones_m": low_wire_zones(wire),
         "min_end_height_m": round(ko.min_end_height_m, 2),
         "clearances": [c.to_json() for c in clearances],
         "raise_ok": not reasons,

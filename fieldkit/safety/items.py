@@ -17,6 +17,7 @@ from fieldkit.safety.duty import Radio
 from fieldkit.safety.exposure import PERSON_HEIGHT_M, KeepOut
 from fieldkit.safety.hazards import Path, PowerLine, Support
 from fieldkit.safety.limits import ExposureLimit
+from fieldkit.safety.low_wire import LOW_WIRE_HEIGHT_M
 from fieldkit.safety.plan_view import densify
 from fieldkit.safety.powerlines import Clearance, Rig, line_summary
 from fieldkit.safety.weather import mast_wind_limits
@@ -189,7 +190,7 @@ def _exposure_items(f: OptionFindings) -> list[ChecklistItem]:
             )
         )
     low = float(f.rig.wire_m[:, 2].min())
-    if low < REACH_HEIGHT_M or ko.touching:
+    if low < max(REACH_HEIGHT_M, LOW_WIRE_HEIGHT_M) or ko.touching:  # below 3 m: low_wire.py
         out.append(
             _item(
                 "pre-raise",

@@ -231,13 +231,15 @@ def test_rule_of_thumb_shown_and_marked():
 def test_option_that_may_not_be_raised_is_never_first():
     """Two pairs: A–B right beside a power line (fails the fall-distance rule of REFERENCES.md:
     antenna + support height + 3.05 m, 29 CFR 1910.333 / common practice), C–D well away and lower.
-    The A–B pair is higher and would score better on NVIS gain alone."""
+    The A–B pair is higher and would score better on NVIS gain alone. (C and D are 7 m: at 10 m both
+    pairs reach the 7.1 MHz optimum near 0.2 wavelength, 8–9 m, once the sweep covers the whole range,
+    and A–B would no longer be better on gain.)"""
     s = spec(
         supports=[
             {"id": "A", "kind": "tree", "height_m": 14.0, "x_m": -22, "y_m": -4},
             {"id": "B", "kind": "tree", "height_m": 14.0, "x_m": 22, "y_m": -4},
-            {"id": "C", "kind": "tree", "height_m": 10.0, "x_m": -22, "y_m": 80},
-            {"id": "D", "kind": "tree", "height_m": 10.0, "x_m": 22, "y_m": 80},
+            {"id": "C", "kind": "tree", "height_m": 7.0, "x_m": -22, "y_m": 80},
+            {"id": "D", "kind": "tree", "height_m": 7.0, "x_m": 22, "y_m": 80},
         ],
         channel_mhz=7.1,
         ground="average",
