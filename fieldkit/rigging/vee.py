@@ -1,4 +1,7 @@
-"""The inverted-V as it hangs: end height rule, the hang from an apex point, and the mast's pull.
+"""The inverted-V as it is rigged: apex on a kit mast or a tree branch, legs down to end insulators,
+ropes on to stakes. The apex and then the end height are swept; the ends are bounded by the rope in the
+kit and the clearing, the legs and ropes keep off every trunk (the legs turn until they do), and the
+stake positions are given as bearing and distance from the mast or the point under the apex.
 
 References
 ----------
@@ -8,14 +11,27 @@ References
 
 from __future__ import annotations
 
+import itertools
 import math
+from collections.abc import Callable, Mapping, Sequence
+from dataclasses import dataclass, replace
 
 import numpy as np
 
 from fieldkit.constants import STANDARD_GRAVITY_M_S2
 from fieldkit.rigging.catenary import HangError
+from fieldkit.rigging.clearing import (
+    SiteLimits,
+    Trunk,
+    bearing_deg,
+    fits_clearing,
+    mast_position,
+    nearest_trunk,
+)
 from fieldkit.rigging.hung import HungDipole, hang_inverted_v
+from fieldkit.rigging.layout import HEIGHT_STEP_M, Axis, Layout, Mechanics, height_grid
 from fieldkit.rigging.mast import Mast
+from fieldkit.rigging.supports import HALYARD_TIE_OFF_M, Support, distance_m, halyard_rope_m
 
 INVERTED_V_MIN_DROP_M = 2.0  # ends at least this far below the apex to make it a V
 # Legs no steeper than 45° below horizontal [1]_. Short legs from a high apex end higher than asked.
@@ -44,7 +60,6 @@ def local_vee(*, apex_m: float, end_m: float, leg_m: float, mech, tension_n: flo
 
 def placed(local: HungDipole, *, centre_xy: np.ndarray, axis_xy: np.ndarray) -> HungDipole:
     """A V hung at the origin along +x, moved to its apex point and turned to its leg direction."""
-    from dataclasses import replace
 
     p = np.asarray(local.points_m, dtype=float)
     u = np.asarray(axis_xy, dtype=float) / np.linalg.norm(axis_xy)
@@ -99,3 +114,265 @@ def mast_tension_n(
         else:
             t_hi = mid
     return t_lo, lightest
+
+
+# Two supports closer than this are one place (see layouts.SAME_PLACE_M)
+_SAME_PLACE_M = 0.5
+AXIS_TURN_STEP_DEG = (
+    15.0  # inverted-V legs: other directions tried when the preferred one is blocked
+)
+
+
+@dataclass(frozen=True)
+class Stake:
+    """Where an inverted-V end's rope is staked: site position, compass bearing and distance from the
+    mast (or from the point under the apex) [m], [deg]."""
+
+    x_m: float
+    y_m: float
+    bearing_deg: float
+    distance_m: float
+
+    def to_json(self) -> dict[str, float]:
+        return {
+            "x_m": round(self.x_m, 1),
+            "y_m": round(self.y_m, 1),
+            "bearing_deg": round(self.bearing_deg) % 360,
+            "distance_m": round(self.distance_m, 1),
+        }
+
+
+def stakes(hung: HungDipole) -> tuple[Stake, Stake]:
+    """The two stake positions of an inverted-V, from its hung polyline and stake distance."""
+    p = np.asarray(hung.points_m)
+    centre = p[int(np.argmin(np.abs(np.cumsum(np.r_[0.0, _seg(p)]) - hung.feed_distance_m)))][:2]
+    out = []
+    for end in (p[0, :2], p[-1, :2]):
+        d = end - centre
+        n = float(np.hypot(*d))
+        u = d / n if n > 1e-9 else np.array([1.0, 0.0])
+        xy = centre + u * float(hung.stake_distance_m or n)
+        out.append(Stake(float(xy[0]), float(xy[1]), bearing_deg(u), float(hung.stake_distance_m)))
+    return out[0], out[1]
+
+
+def _seg(p: np.ndarray) -> np.ndarray:
+    return np.linalg.norm(np.diff(p, axis=0), axis=1)
+
+
+def _stake_rope_m(hung: HungDipole, reach_m: float) -> float:
+    """Rope from one end insulator down to its stake, with the tie-off [m]."""
+    run = float(hung.stake_distance_m) - reach_m
+    return math.hypot(run, hung.end_heights_m[0]) + HALYARD_TIE_OFF_M
+
+
+def _axes_in_order(preferred: tuple[float, float]) -> list[np.ndarray]:
+    """The preferred leg direction first, then turned by 15°, 30°, … either way (half a turn)."""
+    base = math.atan2(preferred[1], preferred[0])
+    turns = [0.0]
+    k = 1
+    while k * AXIS_TURN_STEP_DEG < 90.0 + 1e-9:
+        turns += [k * AXIS_TURN_STEP_DEG, -k * AXIS_TURN_STEP_DEG]
+        k += 1
+    return [
+        np.array([math.cos(base + math.radians(t)), math.sin(base + math.radians(t))])
+        for t in turns[:-1]
+    ]
+
+
+def _vee_builder(
+    *,
+    apex_of: Callable[[np.ndarray], np.ndarray],
+    preferred: tuple[float, float],
+    mech: Mechanics,
+    limits: SiteLimits,
+    mast: Mast | None,
+    apex_tree: Trunk | None,
+) -> Callable[[dict[str, float], float], HungDipole]:
+    """Hang an inverted-V; turn the legs until the ropes and stakes fit the site."""
+    directions = _axes_in_order(preferred)
+
+    def build(setting: dict[str, float], leg_m: float) -> HungDipole:
+        apex = setting["apex"]
+        end = end_height_m(setting["ends"], apex, leg_m)
+        if end < limits.min_end_height_m - 1e-6:
+            raise HangError(f"the ends would hang below the {limits.min_end_height_m:g} m minimum")
+        if apex - end < INVERTED_V_MIN_DROP_M - 1e-6:
+            raise HangError(
+                f"the ends must hang at least {INVERTED_V_MIN_DROP_M:g} m below the apex"
+            )
+        if mast is not None:
+            _, local = mast_tension_n(mast, apex_m=apex, end_m=end, leg_m=leg_m, mech=mech)
+        else:
+            local = local_vee(
+                apex_m=apex, end_m=end, leg_m=leg_m, mech=mech, tension_n=mech.tension_n
+            )
+        reach = float(np.asarray(local.points_m)[-1, 0])
+        rope = 2 * _stake_rope_m(local, reach)
+        if mast is None:
+            rope += halyard_rope_m(rope_height_m=apex, span_rope_m=0.0)
+        if limits.rope_length_m is not None and rope > limits.rope_length_m + 1e-6:
+            raise HangError(
+                f"with the apex at {apex:.1f} m and the ends at {end:.1f} m the V needs about "
+                f"{rope:.0f} m of rope (stake ropes{'' if mast is not None else ' and the apex halyard'}), "
+                f"the kit has {limits.rope_length_m:g} m"
+            )
+        why = "no direction fits"
+        for u in directions:
+            centre = apex_of(u)
+            stake = float(local.stake_distance_m)
+            tips = (centre - u * stake, centre + u * stake)
+            if not all(fits_clearing(t, limits) for t in (*tips, centre)):
+                why = (
+                    f"the stakes would stand {stake:.0f} m from the "
+                    f"{'mast' if mast is not None else 'apex'}, outside the clearing "
+                    f"({limits.clearing_radius_m:g} m from the site origin)"
+                )
+                continue
+            others = [t for t in limits.trunks if apex_tree is None or t.id != apex_tree.id]
+            clash = [
+                (t, d)
+                for tip in tips
+                for t, d in [nearest_trunk((centre, tip), others) or (None, math.inf)]
+                if t is not None and d < t.radius_m + limits.trunk_clearance_m
+            ]
+            if clash:
+                t, d = clash[0]
+                why = (
+                    f"every direction of the legs passes near a trunk (e.g. {t.id}: "
+                    f"{max(d - t.radius_m, 0.0):.1f} m, keep {limits.trunk_clearance_m:g} m)"
+                )
+                continue
+            return placed(local, centre_xy=centre, axis_xy=u)
+        raise HangError(why)
+
+    return build
+
+
+def _vee_axes(top_m: float, lowest: float, top_why: str) -> tuple[Axis, ...]:
+    return (
+        Axis("apex", min(lowest + INVERTED_V_MIN_DROP_M, top_m), top_m, top_m, "the apex", top_why),
+        Axis("ends", lowest, max(top_m - INVERTED_V_MIN_DROP_M, lowest), lowest, "the ends"),
+    )
+
+
+def _longest_line(safe: Sequence[Support]) -> tuple[float, float]:
+    """Direction of the longest line between two safe supports (east–west without a pair)."""
+    if len(safe) < 2:
+        return (1.0, 0.0)
+    a, b = max(itertools.combinations(safe, 2), key=lambda p: distance_m(*p))
+    d = distance_m(a, b)
+    if d < _SAME_PLACE_M:
+        return (1.0, 0.0)
+    return ((b.x_m - a.x_m) / d, (b.y_m - a.y_m) / d)
+
+
+def _vee_layout(
+    *,
+    apex_id: str,
+    top_m: float,
+    apex_of: Callable[[np.ndarray], np.ndarray],
+    preferred: tuple[float, float],
+    mech: Mechanics,
+    limits: SiteLimits,
+    mast: Mast | None,
+    apex_tree: Trunk | None,
+    top_why: str,
+    note: str,
+    mast_xy: tuple[float, float] | None = None,
+) -> Layout | None:
+    lowest = limits.min_end_height_m
+    if top_m - INVERTED_V_MIN_DROP_M < lowest:
+        return None
+    build = _vee_builder(
+        apex_of=apex_of,
+        preferred=preferred,
+        mech=mech,
+        limits=limits,
+        mast=mast,
+        apex_tree=apex_tree,
+    )
+
+    def setting_for(values: Mapping[str, float]) -> dict[str, float]:
+        return {apex_id: values["apex"], "ends": values["ends"]}
+
+    axes = _vee_axes(top_m, lowest, top_why)
+    return Layout(
+        form="inverted-v",
+        supports_used=(apex_id,),
+        settings=tuple(
+            {apex_id: top_m, "ends": h}
+            for h in height_grid(lowest, min(axes[1].high_m, lowest + 3 * HEIGHT_STEP_M))
+        ),
+        build=lambda s, leg: build({"apex": s[apex_id], "ends": s["ends"]}, leg),
+        mast=mast,
+        mast_xy=mast_xy,
+        notes=(note,),
+        axes=axes,
+        setting_for=setting_for,
+        min_end_height_m=lowest,
+    )
+
+
+def _mast_layout(
+    mast: Mast, safe: Sequence[Support], mech: Mechanics, limits: SiteLimits
+) -> Layout | None:
+    xy, where = mast_position(mast, safe, limits)
+    centre = np.asarray(xy, dtype=float)
+    return _vee_layout(
+        apex_id=mast.id,
+        top_m=mast.height_m,
+        apex_of=lambda u: centre,
+        preferred=_longest_line(safe),
+        mech=mech,
+        limits=limits,
+        mast=mast,
+        apex_tree=None,
+        top_why=f"{mast.id} extends no higher",
+        note=where + "; tie each end's rope to a stake (see the stake positions)",
+        mast_xy=(float(xy[0]), float(xy[1])),
+    )
+
+
+def _branch_layout(safe: Sequence[Support], mech: Mechanics, limits: SiteLimits) -> Layout | None:
+    """An inverted-V with its apex on the highest safe branch (a tree as the centre support)."""
+    trees = [s for s in safe if s.kind == "tree"]
+    if not trees:
+        return None
+    tree = max(trees, key=lambda s: s.height_m)
+    trunk = limits.trunk(tree)
+    base = np.array([tree.x_m, tree.y_m])
+    toward = -base if np.hypot(*base) > 1e-6 else np.array([0.0, -1.0])
+    off = trunk.radius_m + limits.trunk_clearance_m
+
+    def apex_of(u: np.ndarray) -> np.ndarray:
+        # the apex hangs off the trunk, on the side toward the site origin, legs at right angles
+        n = np.array([-u[1], u[0]])
+        return base + off * (n if float(n @ toward) >= 0 else -n)
+
+    return _vee_layout(
+        apex_id=tree.id,
+        top_m=tree.height_m,
+        apex_of=apex_of,
+        preferred=_longest_line(safe),
+        mech=mech,
+        limits=limits,
+        mast=None,
+        apex_tree=trunk,
+        top_why=f"no higher branch on {tree.id}",
+        note=(
+            f"apex on a {tree.id} branch, {off:.1f} m out from the trunk; the branch carries the "
+            "feedpoint and both legs' pull: choose a sound branch; tie each end's rope to a stake "
+            "(see the stake positions)"
+        ),
+    )
+
+
+def vee_site_layouts(
+    supports: Sequence[Support], masts: Sequence[Mast], mech: Mechanics, *, limits: SiteLimits
+) -> list[Layout]:
+    """An inverted-V on each kit mast and from the highest safe branch."""
+    safe = [s for s in supports if not s.unsafe]
+    out = [lay for m in masts if (lay := _mast_layout(m, safe, mech, limits)) is not None]
+    branch = _branch_layout(safe, mech, limits)
+    return out if branch is None else [*out, branch]
