@@ -156,6 +156,11 @@ def summary(bands: Sequence[WorkingBand], distances_km=None) -> dict:
         text = f"{head}: about {lo:.1f}–{hi:.1f} MHz would cover {zone} then ({sky}"
         if reliable >= lo:
             text += f"; up to {reliable:.1f} MHz on most days, the FOT"
+        else:
+            text += (
+                f"; all of it above the FOT, {out['fot_mhz']:.1f} MHz: on some days the layer will "
+                "not return it"
+            )
         out["words"] = text + ")"
     elif lows:
         each = "; ".join(
