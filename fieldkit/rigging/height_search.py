@@ -183,10 +183,24 @@ def _refine(done, at, start: float, fine: float, coarse: float) -> float:
                 break
             at(v)
         else:
+            # best at an edge: when the parabola through the three edge points peaks between the
+            # edge and its neighbour, look there; when it still climbs at the edge, the edge is
+            # the best the range allows and its slope comes from the same parabola (no solve)
             other = hs[1] if i == 0 else hs[-2]
-            if abs(other - hs[i]) <= max(fine, 0.5 * coarse) + 1e-9:
+            if abs(other - hs[i]) <= fine + 1e-9:
                 break
-            at(0.5 * (hs[i] + other))
+            if len(valid) < 3:
+                if abs(other - hs[i]) <= 0.5 * coarse + 1e-9:
+                    break
+                at(0.5 * (hs[i] + other))
+                continue
+            trio = valid[:3] if i == 0 else valid[-3:]
+            x, y = tuple(h for h, _ in trio), tuple(p.nvis_dbi for _, p in trio)
+            v = _vertex(x, y)
+            lo, hi = sorted((hs[i], other))
+            if v is None or not lo + fine < v < hi - fine:
+                break
+            at(v)
     return h_best
 
 
@@ -210,9 +224,10 @@ def search(
 
     Notes
     -----
-    When the best point is at an edge of the range, one more point halfway to its neighbour gives the
-    slope there ("more height would help" is said only when that slope is worth it). Engine cost:
-    the coarse grid (2 points for a range under 0.05 wavelength) plus 1–3 refinement points.
+    When the best point is at an edge of the range and the figure still climbs there (the parabola
+    through the three edge points has no maximum short of the edge), no more points are solved: the
+    edge is the best the range allows. Engine cost: the coarse grid (2 points for a range under 0.05
+    wavelength) plus 0–3 refinement points.
     """
     done: dict[float, HeightPoint | None] = {}
 

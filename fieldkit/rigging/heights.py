@@ -48,6 +48,19 @@ LOWEST_END_HEIGHT_M = 1.5
 ZENITH_NULL_WAVELENGTHS = (0.4, 0.65)
 
 
+def low_end_words(lowest_m: float, min_end_height_m: float) -> str | None:
+    """Why a wire lower than 3 m is risky, in plain words (None at 3 m and above)."""
+    if lowest_m >= MIN_END_HEIGHT_M - 1e-6:
+        return None
+    return (
+        f"the wire comes down to {lowest_m:.1f} m (the site allows ends down to "
+        f"{min_end_height_m:g} m): below {MIN_END_HEIGHT_M:g} m a raised hand, a carried pole or a "
+        "head walking under it reaches the wire, and touching a wire that is transmitting burns even "
+        "at low power — fence or flag the low parts (the safety block's low-wire zone) and never "
+        "transmit while anyone is near them"
+    )
+
+
 def nvis_elevations_deg(step_deg: float = 3.0) -> np.ndarray:
     """Elevations from the take-off angle of a 300 km hop to the zenith [deg]."""
     try:
@@ -230,6 +243,19 @@ def _worse_because(
     return words
 
 
+def top_slope_db_per_m(points: Sequence[HeightPoint]) -> float:
+    """How fast the figure climbs at the top of a sweep [dB/m]: the derivative at the top of the
+    parabola through the three highest points (the secant of the last two when there are only two)."""
+    pts = sorted(points, key=lambda q: q.height_m)[-3:]
+    (x1, y1), (x2, y2) = ((q.height_m, q.nvis_dbi) for q in pts[-2:])
+    secant = (y2 - y1) / max(x2 - x1, 1e-9)
+    if len(pts) < 3:
+        return secant
+    x0, y0 = pts[0].height_m, pts[0].nvis_dbi
+    a = (secant - (y1 - y0) / max(x1 - x0, 1e-9)) / max(x2 - x0, 1e-9)  # half the 2nd derivative
+    return secant + a * (x2 - x1)
+
+
 def recommend(
     points: Sequence[HeightPoint],
     *,
@@ -299,8 +325,7 @@ def recommend(
             + _worse_because(q, p, wavelength_m, ground_name)
         )
     if not above and below:
-        q = below[-1]
-        slope = (p.nvis_dbi - q.nvis_dbi) / max(p.height_m - q.height_m, 1e-9)
+        slope = top_slope_db_per_m([points[i] for i in order])
         limit = top_why or "the supports allow no higher"
         more = "higher ends" if p.axis == "ends" else "more height"
         if slope >= MORE_HEIGHT_DB_PER_M:

@@ -376,3 +376,38 @@ def vee_site_layouts(
     out = [lay for m in masts if (lay := _mast_layout(m, safe, mech, limits)) is not None]
     branch = _branch_layout(safe, mech, limits)
     return out if branch is None else [*out, branch]
+
+
+def no_apex_reason(
+    supports: Sequence[Support], masts: Sequence[Mast], min_end_height_m: float
+) -> str:
+    """Why no inverted-V can be hung here: which support kinds can be its apex, and what the site has."""
+    need = min_end_height_m + INVERTED_V_MIN_DROP_M
+    head = (
+        "an inverted-V needs its apex on a kit mast (kit.masts) or on a tree's branch (a support of "
+        f'kind "tree") at least {need:g} m high — the ends hang {INVERTED_V_MIN_DROP_M:g} m or more '
+        f"below the apex and no lower than the {min_end_height_m:g} m minimum end height"
+    )
+    safe = [s for s in supports if not s.unsafe]
+    trees = [s for s in safe if s.kind == "tree"]
+    low_masts = [m for m in masts if m.height_m < need]
+    if masts and len(low_masts) == len(masts):
+        head += "; " + ", ".join(f"{m.id} extends to {m.height_m:g} m" for m in masts)
+    elif not masts:
+        head += "; the kit has no mast"
+    if trees:
+        t = max(trees, key=lambda s: s.height_m)
+        head += f"; the highest safe tree, {t.id}, reaches {t.height_m:g} m"
+    kinds: dict[str, list[str]] = {}
+    for s in safe:
+        if s.kind != "tree":
+            kinds.setdefault(s.kind, []).append(s.id)
+    for kind, ids in kinds.items():
+        names = " and ".join([", ".join(ids[:-1]), ids[-1]] if len(ids) > 1 else ids)
+        verb = "are" if len(ids) > 1 else "is a"
+        plural = "s" if len(ids) > 1 else ""
+        head += (
+            f"; {names} {verb} {kind}{plural}: an apex hangs only from a kit mast (its top load is "
+            "rated) or a tree branch"
+        )
+    return head

@@ -185,3 +185,26 @@ def nvis_ceiling(ctx) -> tuple[float, int]:
     fof2 = np.asarray(ctx.sky.fof2_mhz, dtype=float)
     i = int(np.argmax(fof2))
     return float(fof2[i]), int(ctx.sky.hours_utc[i])
+
+
+def above_nvis_words(frequency_mhz: float, ceiling: tuple[float, int] | None) -> str | None:
+    """A warning when a channel lies above the NVIS range: above the day's largest foF2 (with a sky
+    estimate), or above the frequencies NVIS normally uses (without one); None otherwise."""
+    f = frequency_mhz
+    if ceiling is not None:
+        top, hour = ceiling
+        if f <= top:
+            return None
+        return (
+            f"{f:g} MHz is above the NVIS range of this day: the highest frequency that comes back "
+            f"from straight overhead is about {top:.1f} MHz (foF2 at {clock_text(hour)} UTC, sky "
+            "estimate); on this channel the wave goes through the ionosphere overhead and returns only "
+            f"beyond a skip zone, if at all — choose a channel below {top:.1f} MHz for 0–300 km"
+        )
+    if f <= COMMON_NVIS_TOP_MHZ:
+        return None
+    return (
+        f"{f:g} MHz is above the frequencies NVIS normally uses (about 2–{COMMON_NVIS_TOP_MHZ:g} MHz, "
+        "common practice): it rarely comes back from straight overhead; give a sky block (the site's "
+        "position and the date) for the highest NVIS frequency of the day"
+    )

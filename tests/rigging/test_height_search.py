@@ -21,6 +21,7 @@ from fieldkit.rigging.heights import (
     HeightPoint,
     choose,
     recommend,
+    top_slope_db_per_m,
 )
 from tests.rigging.sweeps import swept
 
@@ -110,17 +111,32 @@ def test_search_refines_the_lower_of_two_equal_peaks(second_db):
     assert pick.swept_m < 0.5 * lam  # and the choice is on it: the lower of two equal peaks
 
 
-def test_search_at_an_edge_adds_one_point_for_the_slope():
+def test_search_at_an_edge_solves_nothing_more_while_the_figure_climbs():
     lam = 83.3  # 3.6 MHz: the supports are well below the optimum
     calls = []
 
     def evaluate(h):
         calls.append(h)
-        return _point(h, 0.4 * h)
+        return _point(h, 4.0 - 0.02 * (h - 20.0) ** 2)  # still climbing at 12 m
 
     pts = search(Range(5.0, 12.0), evaluate, wavelength_m=lam)
     assert max(p.swept_m for p in pts) == 12.0
-    assert len(calls) == math.ceil(7.0 / coarse_step_m(lam)) + 1 + 1
+    assert len(calls) == math.ceil(7.0 / coarse_step_m(lam)) + 1
+    # the slope at the top from the parabola through the top three: d/dh = −0.04 (12 − 20) = 0.32
+    assert top_slope_db_per_m(pts) == pytest.approx(0.32, abs=1e-9)  # computed (exact parabola)
+
+
+def test_search_looks_between_the_edge_and_its_neighbour_when_the_peak_is_there():
+    lam = 83.3
+    calls = []
+
+    def evaluate(h):
+        calls.append(h)
+        return _point(h, 4.0 - 0.02 * (h - 11.0) ** 2)  # peak at 11 m, between 8.5 and 12
+
+    pts = search(Range(5.0, 12.0), evaluate, wavelength_m=lam)
+    best = max(pts, key=lambda p: p.nvis_dbi)
+    assert abs(best.swept_m - 11.0) <= fine_step_m(lam)
 
 
 def test_choice_prefers_the_match_within_0_3_db_then_the_lower():
