@@ -16,17 +16,19 @@ from fieldkit.errors import InputError, array, check_keys, join, number, require
 
 SUPPORT_KINDS = ("tree", "mast", "pole", "building", "vehicle", "other")
 DEFAULT_SUPPORT_KIND = "tree"  # a support drawn without a kind is a tree: the usual case
-SUPPORT_FIELDS = ("id", "kind", "height_m", "x_m", "y_m", "unsafe", "note")
+SUPPORT_FIELDS = ("id", "kind", "height_m", "x_m", "y_m", "unsafe", "trunk_radius_m", "note")
 SUPPORT_REQUIRED = ("id", "height_m", "x_m", "y_m")
 MAX_SUPPORTS = 40
 MAX_ID_LENGTH = 20
 HEIGHT_RANGE_M = (0.5, 60.0)  # a rope height a throw line or a pole reaches
 POSITION_RANGE_M = (-5000.0, 5000.0)  # within 5 km of the sketch's origin
+TRUNK_RADIUS_RANGE_M = (0.0, 10.0)  # a trunk, a pole, or a canopy the wire must keep off
 
 
 @dataclass(frozen=True)
 class Support:
-    """One support: id, kind, usable rope height [m], position x (east), y (north) [m], unsafe flag."""
+    """One support: id, kind, usable rope height [m], position x (east), y (north) [m], unsafe flag,
+    and the radius the wire and ropes must keep off (trunk or canopy; None: the kind's default) [m]."""
 
     id: str
     kind: str
@@ -34,6 +36,7 @@ class Support:
     x_m: float
     y_m: float
     unsafe: bool = False
+    trunk_radius_m: float | None = None
 
 
 def _kind(obj: Mapping[str, Any], field: str) -> str:
@@ -76,6 +79,11 @@ def parse_support(
         x_m=_metres(obj, field, "x_m", POSITION_RANGE_M),
         y_m=_metres(obj, field, "y_m", POSITION_RANGE_M),
         unsafe=unsafe,
+        trunk_radius_m=(
+            _metres(obj, field, "trunk_radius_m", TRUNK_RADIUS_RANGE_M)
+            if "trunk_radius_m" in obj
+            else None
+        ),
     )
 
 

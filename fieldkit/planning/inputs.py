@@ -9,11 +9,14 @@ parser). Nothing downstream validates the input again.
 from __future__ import annotations
 
 from collections.abc import Mapping
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from typing import Any
 
 from fieldkit.errors import InputError, array, check_keys, choice, join, number, require_mapping
 from fieldkit.planning.kit_input import parse_kit
+from fieldkit.planning.site_input import ROOM_FIELDS, parse_site_limits
+from fieldkit.planning.sky_input import parse_plan_sky
+from fieldkit.rigging.clearing import SiteLimits
 from fieldkit.rigging.mast import Mast
 from fieldkit.rigging.options import Kit
 from fieldkit.safety import parse_hazards, parse_limit_set, parse_radio
@@ -24,7 +27,7 @@ from fieldkit.sky.inputs import (  # one HF range for plan and sky
     MAX_CHANNEL_MHZ,
     MIN_CHANNEL_MHZ,
     SkySpec,
-    parse_sky_spec,
+    parse_date,
     window,
 )
 from fieldkit.sky.inputs import Schedule as SkySchedule
@@ -42,6 +45,7 @@ PLAN_FIELDS = (
     "schedule",
     "limit_set",
     "retrim",
+    "date",
 )
 PLAN_REQUIRED = ("site", "channels_mhz", "kit", "radio")
 SITE_FIELDS = (
@@ -53,6 +57,7 @@ SITE_FIELDS = (
     "ground",
     "supports",
     "hazards",
+    *ROOM_FIELDS,
 )
 SCHEDULE_FIELDS = ("start_utc", "end_utc")
 RETRIM_FIELDS = ("frequency_mhz", "form", "leg_now_m", "dip_mhz", "at_mhz", "r_ohm", "x_ohm")
@@ -115,13 +120,16 @@ class PlanInput:
     channels_hz : the channels [Hz], as given
     form : one of :data:`FORMS`
     kit : what the rigging needs (wire, mechanics, coax, rope, wrap, ground)
-    mast_xy : where a centre mast stands: the centroid of the safe supports [m]
+    mast_xy : the centroid of the safe supports [m] (a computed centre mast stands as near it as
+        the trunks allow: ``limits``)
     radio : power, mode, transmit fraction
     limit_set : the RF exposure limit set
     sky : the sky layer's decoded input (channels and schedule from the plan), or None
     schedule : the plan's operating window, or None
     retrim : a measured dip or analyser reading, or None
     warnings : defaults used and supports left out, in plain words
+    limits : the room the site gives: minimum end height, clearing, the mast's point, trunks, rope
+    date : the plan's UTC day, or None
     """
 
     name: str | None
@@ -138,6 +146,8 @@ class PlanInput:
     schedule: PlanSchedule | None
     retrim: Retrim | None
     warnings: tuple[str, ...]
+    limits: SiteLimits = SiteLimits()
+    date: Any = None
 
 
 def _ground(value: Any):
@@ -154,6 +164,7 @@ class _Site:
     ground_name: str
     supports: tuple[Support, ...]
     hazards: tuple[PowerLine | Path, ...]
+    raw: Mapping[str, Any]
 
 
 def _site(value: Any) -> _Site:
@@ -167,7 +178,7 @@ def _site(value: Any) -> _Site:
     ground, name = _ground(site["ground"])
     supports = tuple(parse_supports(site.get("supports", []), "site.supports"))
     hazards = tuple(parse_hazards(site.get("hazards", []), "site.hazards"))
-    return _Site(ground, name, supports, hazards)
+    return _Site(ground, name, supports, hazards, site)
 
 
 def _channels(value: Any) -> tuple[float, ...]:
@@ -271,22 +282,6 @@ def _retrim(value: Any, channels: tuple[float, ...]) -> Retrim | None:
     return Retrim(target, form, leg, **_retrim_reading(obj))
 
 
-def _sky(value: Any, channels: tuple[float, ...], schedule: PlanSchedule | None) -> SkySpec | None:
-    """The sky block, decoded by the sky layer on the plan's channels (and window, unless the block
-    has its own); its errors are named under ``sky``."""
-    if value is None:
-        return None
-    sky = dict(require_mapping(value, "sky"))
-    sky["channels_mhz"] = [round(f / 1e6, 6) for f in channels]
-    try:
-        parsed = parse_sky_spec(sky)
-    except InputError as e:
-        raise InputError(join("sky", e.field), e.detail, value=e.value) from None
-    if schedule is not None and "schedule" not in sky:
-        parsed = replace(parsed, schedule=schedule.for_sky())
-    return parsed
-
-
 def parse_plan(spec: Any) -> PlanInput:
     """Decode and check a `fieldkit plan` input (ARCHITECTURE.md), once.
 
@@ -311,6 +306,16 @@ def parse_plan(spec: Any) -> PlanInput:
     schedule = _schedule(obj.get("schedule"))
     mast_xy, unsafe_words = _usable(site.supports)
     retrim = _retrim(obj.get("retrim"), channels)
+    date = parse_date(obj["date"], "date") if obj.get("date") is not None else None
+    limits = parse_site_limits(site.raw, site.supports, rope_length_m=kit.kit.rope_length_m)
+    sky = parse_plan_sky(
+        obj.get("sky"),
+        site=site.raw,
+        date=date,
+        radio=radio,
+        channels_mhz=[round(f / 1e6, 6) for f in channels],
+        schedule=schedule,
+    )
     return PlanInput(
         name=obj.get("name"),
         supports=site.supports,
@@ -322,8 +327,10 @@ def parse_plan(spec: Any) -> PlanInput:
         mast_xy=mast_xy,
         radio=radio,
         limit_set=limit_set,
-        sky=_sky(obj.get("sky"), channels, schedule),
+        sky=sky,
         schedule=schedule,
         retrim=retrim,
         warnings=(*kit.warnings, *unsafe_words),
+        limits=limits,
+        date=date,
     )

@@ -75,11 +75,11 @@ class SiteLimits:
     def for_supports(
         cls, supports: Sequence[Support], *, radii: Mapping[str, float] | None = None, **kw
     ) -> SiteLimits:
-        """Limits with every support as a trunk (radius from ``radii`` by id, else the default)."""
+        """Limits with every support as a trunk (radius from ``radii`` by id, else the support's own,
+        else the kind's default)."""
         radii = radii or {}
         trunks = tuple(
-            Trunk(s.id, s.x_m, s.y_m, float(radii.get(s.id, default_radius_m(s.kind))))
-            for s in supports
+            Trunk(s.id, s.x_m, s.y_m, float(radii.get(s.id, _radius(s)))) for s in supports
         )
         return cls(trunks=trunks, **kw)
 
@@ -87,7 +87,12 @@ class SiteLimits:
         for t in self.trunks:
             if t.id == support.id:
                 return t
-        return Trunk(support.id, support.x_m, support.y_m, default_radius_m(support.kind))
+        return Trunk(support.id, support.x_m, support.y_m, _radius(support))
+
+
+def _radius(support: Support) -> float:
+    r = support.trunk_radius_m
+    return default_radius_m(support.kind) if r is None else float(r)
 
 
 def segment_distance_m(point: np.ndarray, a: np.ndarray, b: np.ndarray) -> float:

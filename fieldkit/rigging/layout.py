@@ -78,6 +78,9 @@ class Layout:
     setting_for : axis values -> setting (rope height per support id, "ends")
     blocked : why this layout cannot be rigged on this site (None when it can)
     min_end_height_m : the lowest the wire may come [m]
+    hang : like ``build``, but lets the rope and the clearing be exceeded a little (the exact cut);
+        None: the same as ``build``
+    advice : the finished hang -> warnings about the site's limits it meets (None: none)
     """
 
     form: str
@@ -92,6 +95,8 @@ class Layout:
     setting_for: Callable[[Mapping[str, float]], dict[str, float]] | None = None
     blocked: str | None = None
     min_end_height_m: float = MIN_END_HEIGHT_M
+    hang: Callable[[dict[str, float], float], HungDipole] | None = None
+    advice: Callable[[HungDipole], tuple[str, ...]] | None = None
 
     def start(self) -> dict[str, float]:
         """Axis values before any sweep."""

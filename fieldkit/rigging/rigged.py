@@ -20,7 +20,8 @@ from fieldkit.rigging.heights import HeightPoint, sweep_json
 from fieldkit.rigging.hung import HungDipole
 from fieldkit.rigging.layouts import Layout
 from fieldkit.rigging.mast import MastLoad
-from fieldkit.rigging.supports import halyard_rope_m
+from fieldkit.rigging.supports import HALYARD_TIE_OFF_M, halyard_rope_m
+from fieldkit.rigging.vee import stakes
 
 LINKED_NOTE = (
     "with a link open, the wire beyond it still hangs there and lowers that channel's resonance by "
@@ -108,7 +109,11 @@ def rope_needed_m(layout: Layout, hung: HungDipole, setting: dict[str, float]) -
 
 
 def _end_rope_m(hung: HungDipole, setting: dict[str, float]) -> float:
-    return math.hypot(hung.stake_distance_m - _reach(hung), setting["ends"]) + 1.5
+    """One stake rope: from the end insulator (as it hangs) down its leg's line to the stake, with
+    the tie-off [m]."""
+    return (
+        math.hypot(hung.stake_distance_m - _reach(hung), hung.end_heights_m[0]) + HALYARD_TIE_OFF_M
+    )
 
 
 def _apex_rope_m(hung: HungDipole) -> float:
@@ -130,6 +135,12 @@ def _inverted_v_json(r: RiggedOption, kit) -> dict[str, Any]:
         "end_rope_m": round(rope_each, 1),
         "rope_needed_m": round(rope_needed_m(layout, hung, r.chosen), 1),
         "top_load_kg": round(hung.top_load_n / g, 3),
+        "stakes_m": [st.to_json() for st in stakes(hung)],
+        "stakes_from": (
+            f"bearing and distance from {layout.mast.id}"
+            if layout.mast is not None
+            else f"bearing and distance from the point under the apex on {layout.supports_used[0]}"
+        ),
     }
     if layout.mast is None:  # apex hauled up over a branch on its own halyard
         out["apex_halyard_rope_m"] = round(_apex_rope_m(hung), 1)
@@ -191,7 +202,7 @@ def _mast_json(r: RiggedOption) -> dict[str, Any] | None:
     if r.mast is None:
         return None
     mast = r.mast.to_json()
-    mast["x_m"], mast["y_m"] = r.layout.mast_xy
+    mast["x_m"], mast["y_m"] = (round(float(v), 2) + 0.0 for v in r.layout.mast_xy)
     return mast
 
 

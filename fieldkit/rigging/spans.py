@@ -43,7 +43,7 @@ def _span_builder(
         if min(hung.end_heights_m) < lowest - 1e-6 or hung.feedpoint_height_m < lowest:
             raise HangError(
                 f"the wire would come down to {min(hung.end_heights_m + (hung.feedpoint_height_m,)):.1f} m, "
-                f"below the {lowest:g} m minimum"
+                f"below the {lowest:g} m minimum end height (site.min_end_height_m)"
             )
         if hung.tail_m > 0 and others:  # drooping ends run on past the supports toward stakes
             p = np.asarray(hung.points_m)[:, :2]

@@ -189,10 +189,15 @@ def _vee_builder(
     mast: Mast | None,
     apex_tree: Trunk | None,
 ) -> Callable[[dict[str, float], float], HungDipole]:
-    """Hang an inverted-V; turn the legs until the ropes and stakes fit the site."""
+    """Hang an inverted-V; turn the legs until the ropes and stakes fit the site.
+
+    ``strict=False`` (the exact cut, a percent or so longer or shorter than the screening leg) lets
+    the rope and the clearing be exceeded a little rather than lose the option: the finished option
+    then says so (``rope short``, :func:`clearing_words`). Trunks are kept off either way.
+    """
     directions = _axes_in_order(preferred)
 
-    def build(setting: dict[str, float], leg_m: float) -> HungDipole:
+    def build(setting: dict[str, float], leg_m: float, strict: bool = True) -> HungDipole:
         apex = setting["apex"]
         end = end_height_m(setting["ends"], apex, leg_m)
         if end < limits.min_end_height_m - 1e-6:
@@ -211,42 +216,60 @@ def _vee_builder(
         rope = 2 * _stake_rope_m(local, reach)
         if mast is None:
             rope += halyard_rope_m(rope_height_m=apex, span_rope_m=0.0)
-        if limits.rope_length_m is not None and rope > limits.rope_length_m + 1e-6:
+        if strict and limits.rope_length_m is not None and rope > limits.rope_length_m + 1e-6:
             raise HangError(
                 f"with the apex at {apex:.1f} m and the ends at {end:.1f} m the V needs about "
                 f"{rope:.0f} m of rope (stake ropes{'' if mast is not None else ' and the apex halyard'}), "
                 f"the kit has {limits.rope_length_m:g} m"
             )
         why = "no direction fits"
-        for u in directions:
-            centre = apex_of(u)
-            stake = float(local.stake_distance_m)
-            tips = (centre - u * stake, centre + u * stake)
-            if not all(fits_clearing(t, limits) for t in (*tips, centre)):
-                why = (
-                    f"the stakes would stand {stake:.0f} m from the "
-                    f"{'mast' if mast is not None else 'apex'}, outside the clearing "
-                    f"({limits.clearing_radius_m:g} m from the site origin)"
-                )
-                continue
-            others = [t for t in limits.trunks if apex_tree is None or t.id != apex_tree.id]
-            clash = [
-                (t, d)
-                for tip in tips
-                for t, d in [nearest_trunk((centre, tip), others) or (None, math.inf)]
-                if t is not None and d < t.radius_m + limits.trunk_clearance_m
-            ]
-            if clash:
-                t, d = clash[0]
-                why = (
-                    f"every direction of the legs passes near a trunk (e.g. {t.id}: "
-                    f"{max(d - t.radius_m, 0.0):.1f} m, keep {limits.trunk_clearance_m:g} m)"
-                )
-                continue
-            return placed(local, centre_xy=centre, axis_xy=u)
+        for clearing in (True, False) if not strict else (True,):
+            for u in directions:
+                centre = apex_of(u)
+                stake = float(local.stake_distance_m)
+                tips = (centre - u * stake, centre + u * stake)
+                if clearing and not all(fits_clearing(t, limits) for t in (*tips, centre)):
+                    why = (
+                        f"the stakes would stand {stake:.0f} m from the "
+                        f"{'mast' if mast is not None else 'apex'}, outside the clearing "
+                        f"({limits.clearing_radius_m:g} m from the site origin)"
+                    )
+                    continue
+                clash = _trunk_clash(centre, tips, limits, apex_tree)
+                if clash:
+                    why = clash
+                    continue
+                return placed(local, centre_xy=centre, axis_xy=u)
         raise HangError(why)
 
     return build
+
+
+def _trunk_clash(centre, tips, limits: SiteLimits, apex_tree: Trunk | None) -> str | None:
+    """Why a leg or stake rope passes too near a trunk, or None."""
+    others = [t for t in limits.trunks if apex_tree is None or t.id != apex_tree.id]
+    for tip in tips:
+        near = nearest_trunk((centre, tip), others)
+        if near is not None and near[1] < near[0].radius_m + limits.trunk_clearance_m:
+            t, d = near
+            return (
+                f"every direction of the legs passes near a trunk (e.g. {t.id}: "
+                f"{max(d - t.radius_m, 0.0):.1f} m, keep {limits.trunk_clearance_m:g} m)"
+            )
+    return None
+
+
+def clearing_words(hung: HungDipole, limits: SiteLimits) -> list[str]:
+    """A warning when a stake of the finished V stands outside the clearing (the exact cut is a
+    little longer than the one the ends were swept with)."""
+    out = [st for st in stakes(hung) if not fits_clearing((st.x_m, st.y_m), limits)]
+    if not out:
+        return []
+    far = max(math.hypot(st.x_m, st.y_m) for st in out)
+    return [
+        f"a stake would stand {far:.1f} m from the site origin, just outside the "
+        f"{limits.clearing_radius_m:g} m clearing: lower the ends a little or shorten the stake ropes"
+    ]
 
 
 def _vee_axes(top_m: float, lowest: float, top_why: str) -> tuple[Axis, ...]:
@@ -305,6 +328,8 @@ def _vee_layout(
             for h in height_grid(lowest, min(axes[1].high_m, lowest + 3 * HEIGHT_STEP_M))
         ),
         build=lambda s, leg: build({"apex": s[apex_id], "ends": s["ends"]}, leg),
+        hang=lambda s, leg: build({"apex": s[apex_id], "ends": s["ends"]}, leg, strict=False),
+        advice=lambda hung: tuple(clearing_words(hung, limits)),
         mast=mast,
         mast_xy=mast_xy,
         notes=(note,),

@@ -16,7 +16,7 @@ from fieldkit.sky import path_geometry
 from fieldkit.sky.gain import ElevationGain, elevation_gains
 from fieldkit.sky.inputs import SkySpec, parse_sky_spec
 from fieldkit.sky.iri import sky_estimate
-from fieldkit.sky.ranking import best_by_hour, clock_text, recommend
+from fieldkit.sky.ranking import best_by_hour, clock_text, recommend, schedule_hours, table_row
 from fieldkit.sky.reach import DISTANCES_KM, EXCESS_LOSS_DB, HourReach, Radio, channel_reach
 from fieldkit.sky.solar import sunspot_from_f107
 from fieldkit.sky.sounding import SOUNDING_SPAN_H, apply_sounding
@@ -285,6 +285,32 @@ def _schedule(ctx: SkyContext, per_channel, gains) -> dict[str, Any]:
         )
         out["when_none_works"] = summary(bands, sched.distances_km)
     return out
+
+
+def schedule_fit(ctx: SkyContext, gains: Mapping[float, ElevationGain]) -> dict[str, Any]:
+    """The schedule's table and recommendation with the given antenna gain per channel [MHz] (and,
+    at hours no channel works, what would); the channels without a gain use the spec's antenna or
+    the default dipole."""
+    gains = dict(gains)
+    missing = [f for f in ctx.spec.channels_mhz if f not in gains]
+    if missing:
+        found = elevation_gains(
+            frequencies_mhz=missing, antenna=ctx.spec.antenna, ground=ctx.spec.ground
+        )
+        gains.update(zip(missing, found, strict=True))
+    per_channel = [(f, ctx.reach(f, gains[f])) for f in ctx.spec.channels_mhz]
+    return _schedule(ctx, per_channel, gains)
+
+
+def schedule_row(
+    ctx: SkyContext, frequency_mhz: float, gain: ElevationGain
+) -> dict[str, Any] | None:
+    """One channel's row of the schedule table with this antenna gain (None without a window)."""
+    sched = ctx.spec.schedule
+    idx = schedule_hours(sched, ctx.sky.hours_utc) if sched is not None else []
+    if not idx:
+        return None
+    return table_row(sched, frequency_mhz, ctx.reach(frequency_mhz, gain), idx)
 
 
 def _ceiling(ctx: SkyContext) -> tuple[float, int]:

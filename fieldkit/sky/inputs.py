@@ -99,7 +99,8 @@ TOP_KEYS = (
 DEFAULTS = {"power_w": 100.0, "mode": "ssb", "noise_environment": "rural"}
 
 
-def _date(value: Any, field: str) -> dt.date:
+def parse_date(value: Any, field: str) -> dt.date:
+    """A UTC day as YYYY-MM-DD, between the years the sky estimate covers."""
     if not isinstance(value, str) or not re.fullmatch(r"\d{4}-\d{2}-\d{2}", value):
         raise InputError(field, f"expected a date as YYYY-MM-DD, got {value!r}", value=value)
     try:
@@ -256,7 +257,7 @@ def parse_sky_spec(spec: Any) -> SkySpec:
         if key not in spec:
             raise InputError(key, "required field is missing")
     lat, lon, offset, ground = _site(spec["site"])
-    day = _date(spec["date"], "date")
+    day = parse_date(spec["date"], "date")
     f107, r12, solar_given = _solar(spec["solar"])
     channels = _channels(spec["channels_mhz"])
     sounding = _sounding(spec["sounding"]) if "sounding" in spec else None

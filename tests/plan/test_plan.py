@@ -291,10 +291,14 @@ def test_one_tall_tree_makes_an_inverted_v_apex():
     )
     opt = plan(s)["options"][0]
     assert opt["form"] == "inverted-v" and opt["supports_used"] == ["A"] and opt["mast"] is None
-    assert opt["feedpoint_height_m"] == pytest.approx(12.0)
+    # the apex on the branch is swept too (issue 13): it hangs no higher than the 12 m branch, at the
+    # rope height the option gives for A (over perfect ground the figure is best low: NEC-2 over
+    # perfect ground, REFERENCES.md, 0.08 wavelength 8.88 dBi against 0.24 wavelength 7.62 dBi)
+    assert opt["feedpoint_height_m"] <= 12.0 + 1e-9
+    assert opt["feedpoint_height_m"] == pytest.approx(opt["rope_heights_m"]["A"], abs=0.01)
     assert min(opt["end_heights_m"]) >= 3.0  # the end minimum (common practice)
     # apex angle from the chord geometry of the hung polyline
     p = np.asarray(opt["hung_wire_m"])
     reach = np.hypot(*(p[-1, :2] - p[len(p) // 2, :2]))
-    drop = 12.0 - p[-1, 2]
+    drop = opt["feedpoint_height_m"] - p[-1, 2]
     assert opt["apex_angle_deg"] == pytest.approx(2 * np.degrees(np.arctan2(reach, drop)), abs=0.2)
