@@ -14,6 +14,7 @@ const SHELL = [
   "icons/icon-192.png",
   "icons/icon-512.png",
   "icons/icon-maskable-512.png",
+  "js/advice.js",
   "js/api.js",
   "js/app.js",
   "js/card.js",

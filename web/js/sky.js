@@ -1,6 +1,7 @@
 // Sky: the channel day (hours × channels, coloured by reach), sunrise and sunset, the sounding entry, and
 // the recommended channel for the schedule window.
 
+import { noChannelBanner } from "./advice.js";
 import { ApiError, UnreachableError } from "./api.js";
 import { clear, h } from "./dom.js";
 import { field, numberField } from "./fields.js";
@@ -113,6 +114,8 @@ export function refresh(app, panel) {
     return;
   }
   const hours = scheduleHours(st.dep);
+  const banner = noChannelBanner(st);
+  if (banner) body.append(banner);
   const rise = hourOf(sky.sunrise_utc);
   const set = hourOf(sky.sunset_utc);
   body.append(recommendation(sky, units));

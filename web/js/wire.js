@@ -1,6 +1,7 @@
 // Wire: the ranked options; for the chosen one the cut list in big type, the trim steps, the SWR curve
 // from the model of the hung wire, and the re-trim from a measured SWR dip.
 
+import { noChannelBanner } from "./advice.js";
 import { ApiError } from "./api.js";
 import { clear, h, linePlot } from "./dom.js";
 import { numberField } from "./fields.js";
@@ -36,6 +37,8 @@ export function render(app, panel) {
   const st = app.state;
   clear(panel);
   panel.append(h("h2", { text: "Wire — what to cut" }));
+  const banner = noChannelBanner(st);
+  if (banner) panel.append(banner);
   const options = st.plan?.options ?? [];
   if (!options.length) {
     panel.append(h("p", { class: "note warn", text: st.planError || "No plan yet: add the supports in Site." }));
