@@ -148,7 +148,11 @@ def fit_options_to_sky(
         if f_mhz not in best or o.score_db > best[f_mhz][0]:
             best[f_mhz] = (o.score_db, gain)
     sched = schedule_fit(ctx, {f: g for f, (_, g) in best.items() if f in ctx.spec.channels_mhz})
-    return tuple(out), _sky_fit(ctx, sched, sky.ceiling) or sky
+    fit = _sky_fit(ctx, sched, sky.ceiling) or sky
+    for o in out:  # the channel's place in the table worked out with the planned antennas
+        if o.sky_row is not None:
+            o.sky_row["rank"] = fit.rank_of(o.frequency_hz)
+    return tuple(out), fit
 
 
 def plan_warnings(inp: PlanInput, sky: SkyFit | None) -> tuple[str, ...]:

@@ -332,6 +332,8 @@ def sweep_layout(
                 hung = build(s)
             except HangError:
                 return None
+            if "ends" in s:  # the ends as they hang (a steep leg's are higher than asked)
+                s = {**s, "ends": round(min(hung.end_heights_m), 3)}
             return point_from_solution(
                 solve(hung),
                 rope_heights_m=s,

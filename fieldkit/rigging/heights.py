@@ -195,10 +195,12 @@ def describe(q: HeightPoint, wavelength_m: float | None = None) -> str:
     if q.axis == "ends":
         return f"ends at {q.height_m:.1f} m"
     if q.axis == "apex":
+        wl = f"{q.height_m / wavelength_m:.2f} wavelength, " if wavelength_m else ""
+        ends = q.rope_heights_m.get("ends")
         return (
-            f"the apex at {q.height_m:.1f} m ({q.height_m / wavelength_m:.2f} wavelength)"
-            if wavelength_m
-            else f"the apex at {q.height_m:.1f} m"
+            f"the apex at {q.height_m:.1f} m ({wl}ends at {ends:.1f} m)"
+            if ends
+            else (f"the apex at {q.height_m:.1f} m")
         )
     if q.axis == "ropes":
         return f"both ropes at {q.height_m:.1f} m ({feed})"
