@@ -33,7 +33,7 @@ MIN_COARSE_STEP_M = 1.0  # never finer than a metre on the coarse grid (high cha
 FINE_STEP_WAVELENGTHS = 0.01  # the peak is known to 0.01 wavelength: hundredths of a dB
 # a halyard is set to about half a metre by eye from the ground (common practice, no single source)
 MIN_FINE_STEP_M = 0.5
-BOUND_TOLERANCE_M = 0.05  # the edges of the range, from the hang alone (cheap: no engine)
+BOUND_TOLERANCE_M = 0.1  # the edges of the range, from the hang alone (no engine), to 10 cm
 MAX_REFINE_STEPS = 4  # parabolic steps after the coarse grid (1–2 are usual)
 # a coarse point sits up to about this much below its peak (0.025 wavelength off a peak whose figure
 # falls ~0.3 dB over 0.05 wavelength: measured on the engine's height sweeps, 7.1 MHz, poor ground)
@@ -99,7 +99,7 @@ def feasible_range(
     ----------
     low_m, high_m : the asked bounds of the swept height [m]
     refuses : height [m] -> None when the wire hangs there as required, else why not (plain words)
-    probe_step_m : spacing of the first probes [m]; the edges are then bisected to 5 cm
+    probe_step_m : spacing of the first probes [m]; the edges are then bisected to 10 cm
 
     Returns
     -------
@@ -295,6 +295,19 @@ def sweep_layout(
     from fieldkit.rigging.heights import point_from_solution, recommend
 
     values = layout.start()
+    hangs: dict[tuple, Any] = {}  # each setting hung once: probed for the range, then solved
+
+    def hung_at(s: dict[str, float]):
+        key = tuple(sorted((k, round(v, 4)) for k, v in s.items()))
+        if key not in hangs:
+            try:
+                hangs[key] = build(s)
+            except HangError as e:
+                hangs[key] = e
+        if isinstance(hangs[key], HangError):
+            raise hangs[key]
+        return hangs[key]
+
     points: list[HeightPoint] = []
     whys: list[str] = []
     ranges: dict[str, Range] = {}
@@ -306,7 +319,7 @@ def sweep_layout(
 
         def refuses(v: float) -> str | None:
             try:
-                build(setting(v))
+                hung_at(setting(v))
             except HangError as e:
                 return str(e)
             return None
@@ -319,7 +332,7 @@ def sweep_layout(
                 raise HangError(rng)
             continue  # a later axis that cannot move keeps its start value
         if axis.key == "ends":  # ends asked lower than the steepest leg allows hang higher
-            low_hung = build(setting(rng.low_m))
+            low_hung = hung_at(setting(rng.low_m))
             rng = Range(
                 max(rng.low_m, min(low_hung.end_heights_m)), rng.high_m, rng.low_why, rng.high_why
             )
@@ -329,7 +342,7 @@ def sweep_layout(
         def evaluate(v: float, key: str = axis.key) -> HeightPoint | None:
             s = setting(v, key)
             try:
-                hung = build(s)
+                hung = hung_at(s)
             except HangError:
                 return None
             if "ends" in s:  # the ends as they hang (a steep leg's are higher than asked)
