@@ -33,7 +33,8 @@ MIN_COARSE_STEP_M = 1.0  # never finer than a metre on the coarse grid (high cha
 FINE_STEP_WAVELENGTHS = 0.01  # the peak is known to 0.01 wavelength: hundredths of a dB
 # a halyard is set to about half a metre by eye from the ground (common practice, no single source)
 MIN_FINE_STEP_M = 0.5
-BOUND_TOLERANCE_M = 0.1  # the edges of the range, from the hang alone (no engine), to 10 cm
+# the edges of the range, from the hang alone (no engine): half the 0.5 m a halyard is set to by eye
+BOUND_TOLERANCE_M = 0.25
 MAX_REFINE_STEPS = 4  # parabolic steps after the coarse grid (1–2 are usual)
 # a coarse point sits up to about this much below its peak (0.025 wavelength off a peak whose figure
 # falls ~0.3 dB over 0.05 wavelength: measured on the engine's height sweeps, 7.1 MHz, poor ground)
@@ -99,7 +100,7 @@ def feasible_range(
     ----------
     low_m, high_m : the asked bounds of the swept height [m]
     refuses : height [m] -> None when the wire hangs there as required, else why not (plain words)
-    probe_step_m : spacing of the first probes [m]; the edges are then bisected to 10 cm
+    probe_step_m : spacing of the first probes [m]; the edges are then bisected to 25 cm
 
     Returns
     -------

@@ -64,8 +64,8 @@ def test_feasible_range_edges_and_reasons():
         return None
 
     rng = feasible_range(2.0, 12.0, refuses, probe_step_m=2.0)
-    assert rng.low_m == pytest.approx(3.37, abs=0.1) and rng.low_why == "too low"
-    assert rng.high_m == pytest.approx(8.12, abs=0.1) and rng.high_why == "too high"
+    assert rng.low_m == pytest.approx(3.37, abs=0.25) and rng.low_why == "too low"
+    assert rng.high_m == pytest.approx(8.12, abs=0.25) and rng.high_why == "too high"
     assert feasible_range(2.0, 12.0, lambda h: "never", probe_step_m=2.0) == "never"
     whole = feasible_range(2.0, 12.0, lambda h: None, probe_step_m=2.0)
     assert (whole.low_m, whole.high_m, whole.low_why, whole.high_why) == (2.0, 12.0, None, None)
