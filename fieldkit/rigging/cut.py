@@ -20,7 +20,9 @@ from typing import Any
 
 import numpy as np
 
+from fieldkit.readable import tape_imperial, tape_metric
 from fieldkit.rigging.hung import HungDipole
+from fieldkit.rigging.instruction import cut_instruction
 from fieldkit.rigging.wire import KitWire
 
 RULE_OF_THUMB_M_MHZ = 143.0  # half-wave ≈ 143/f m (468/f ft): common practice, not a physical law
@@ -351,10 +353,14 @@ def cut_json(
         "total_wire_m": round(2 * (leg + 2 * wrap), 3),
         "cut_long_m": round(spare, 3),
         "cut_long_advice": (
-            f"cut each leg {spare * 100:.0f} cm long ({leg + 2 * wrap + spare:.2f} m) and fold the spare back at "
-            "the end insulator: nearby trees, the real soil and the coax usually pull resonance a percent or "
-            "two below any model, and wire cannot be added back in the field; trim after the first SWR check"
+            f"the length to cut includes {tape_metric(spare)} ({tape_imperial(spare)}) of spare at the outer "
+            "end of each leg: fold it back at the end insulator, because nearby trees, the real soil and "
+            "the coax usually pull resonance a percent or two below any model, and wire cannot be added "
+            "back in the field; trim after the first SWR check"
         ),
+        "instruction": cut_instruction(
+            legs_m=[leg, leg], wrap_allowance_m=wrap, spare_m=spare
+        ).to_json(),
         "cut_with_spare_total_m": round(2 * (leg + 2 * wrap + spare), 3),
         "rule_of_thumb": {
             "leg_m": round(rule, 3),

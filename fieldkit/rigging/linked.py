@@ -14,6 +14,7 @@ from typing import Any
 
 from fieldkit.rigging.cut import EngineCounter, resonate, swr_curve
 from fieldkit.rigging.hung import truncate_about_feed
+from fieldkit.rigging.instruction import cut_instruction
 from fieldkit.rigging.layouts import Layout
 from fieldkit.rigging.options import Kit, Refusal, Warm, evaluate
 
@@ -92,6 +93,12 @@ def linked_option(
         opt["form"] = "linked"
         opt["links"] = links
         opt["cut"]["sections_m"] = first["sections_m"]
+        opt["cut"]["instruction"] = cut_instruction(
+            legs_m=opt["cut"]["leg_m"],
+            wrap_allowance_m=opt["cut"]["wrap_allowance_m"],
+            spare_m=opt["cut"]["cut_long_m"],
+            sections_m=first["sections_m"],
+        ).to_json()
         opt["cut"]["sections_note"] = (
             "per leg, feedpoint outward; add the wrap allowance at each link and the end insulator"
         )
