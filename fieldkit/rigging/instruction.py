@@ -122,7 +122,11 @@ class CutInstruction:
         return {
             "pieces": [p.to_json() for p in self.pieces],
             "total": {"metric": self.total_metric, "imperial": self.total_imperial},
-            "text": {"metric": self.text("metric"), "imperial": self.text("imperial")},
+            "text": {
+                "metric": self.text("metric"),
+                "imperial": self.text("imperial"),
+                "both": self.text_both,
+            },
             "rounding": "metres to 1 cm, feet and inches to ¼ in (what a tape measure reads)",
             "measured_from": "the feedpoint end of each piece",
             "electrical_is": "the model's figure: the length that resonates at the channel as it hangs",

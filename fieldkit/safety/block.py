@@ -12,9 +12,9 @@ from fieldkit.errors import InputError, array, choice, join, number, require_map
 from fieldkit.safety.checklists import slug
 from fieldkit.safety.duty import Radio, parse_radio
 from fieldkit.safety.exposure import Landmark, keep_out
-from fieldkit.safety.hazards import PowerLine, Support, parse_hazards, parse_supports
+from fieldkit.safety.hazards import PowerLine, Support, hazard_names, parse_hazards, parse_supports
 from fieldkit.safety.items import OptionFindings, option_items
-from fieldkit.safety.limits import exposure_limit, parse_limit_set
+from fieldkit.safety.limits import LIMIT_SET_WORDS, exposure_limit, parse_limit_set
 from fieldkit.safety.oet65 import oet65_estimate
 from fieldkit.safety.plan_view import compass_word, polyline_length
 from fieldkit.safety.powerlines import Rig, RiggedSupport, line_clearances
@@ -260,7 +260,8 @@ def safety_block(
         if isinstance(hz, PowerLine)
         for c in line_clearances(i, hz, rig)
     ]
-    reasons = [f"power line {c.hazard}: {c.why}" for c in clearances if not c.ok]
+    names = hazard_names(hazards)
+    reasons = [f"{names[c.hazard]}: {c.why}" for c in clearances if not c.ok]
     used = {r.id for r in rig.supports}
     reasons += [
         f"support {s.id} is marked unsafe and must not be used"
@@ -316,10 +317,11 @@ def safety_block(
     }
     return {
         "limit_set": limit_name,
+        "limit_set_name": LIMIT_SET_WORDS[limit_name],
         "keep_out_m": round(ko.keep_out_m, 2),
         "keep_out_outline_m": ko.outline_m,
         "min_end_height_m": round(ko.min_end_height_m, 2),
-        "clearances": [c.to_json() for c in clearances],
+        "clearances": [{**c.to_json(), "hazard_name": names[c.hazard]} for c in clearances],
         "raise_ok": not reasons,
         "reasons": reasons,
         "checklist": [it.to_json() for it in checklist],

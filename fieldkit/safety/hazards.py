@@ -34,6 +34,7 @@ class PowerLine:
     voltage_kv: float | None = None
     note: str = ""
     kind: str = "power_line"
+    id: str = ""  # the operator's name for it, if any
 
 
 @dataclass(frozen=True)
@@ -43,6 +44,7 @@ class Path:
     points_m: np.ndarray
     note: str = ""
     kind: str = "path"
+    id: str = ""  # the operator's name for it, if any
 
 
 @dataclass(frozen=True)
@@ -78,6 +80,25 @@ def _plan_points(value: Any, field: str) -> np.ndarray:
 
 def _note(obj: Mapping[str, Any], field: str) -> str:
     return text(obj["note"], join(field, "note"), max_length=500) if "note" in obj else ""
+
+
+def _id(obj: Mapping[str, Any], field: str) -> str:
+    return text(obj["id"], join(field, "id"), max_length=40).strip() if "id" in obj else ""
+
+
+#: How a hazard without a name of its own is called, numbered from 1 within its kind.
+KIND_WORDS = {"power_line": "power line", "path": "path"}
+
+
+def hazard_names(hazards: list[PowerLine | Path]) -> list[str]:
+    """The name each hazard goes by in every text: the id the operator gave, else its kind numbered
+    from 1 within that kind ("power line 1", "path 1")."""
+    seen: dict[str, int] = {}
+    out = []
+    for hz in hazards:
+        seen[hz.kind] = seen.get(hz.kind, 0) + 1
+        out.append(hz.id or f"{KIND_WORDS[hz.kind]} {seen[hz.kind]}")
+    return out
 
 
 def parse_hazards(value: Any, field: str = "site.hazards") -> list[PowerLine | Path]:
@@ -135,13 +156,21 @@ def parse_hazards(value: Any, field: str = "site.hazards") -> list[PowerLine | P
                     maximum=1000.0,
                 )
             out.append(
-                PowerLine(points_m=pts, height_m=height, voltage_kv=volts, note=_note(obj, f))
+                PowerLine(
+                    points_m=pts,
+                    height_m=height,
+                    voltage_kv=volts,
+                    note=_note(obj, f),
+                    id=_id(obj, f),
+                )
             )
         else:
             check_keys(obj, f, ("kind", "points_m", "note", "id"))
             out.append(
                 Path(
-                    points_m=_plan_points(obj["points_m"], join(f, "points_m")), note=_note(obj, f)
+                    points_m=_plan_points(obj["points_m"], join(f, "points_m")),
+                    note=_note(obj, f),
+                    id=_id(obj, f),
                 )
             )
     return out

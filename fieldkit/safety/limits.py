@@ -30,6 +30,14 @@ LIMIT_SETS: tuple[str, ...] = (
     "icnirp-occupational",
 )
 
+#: The limit sets in the words every text uses (the codes stay in the JSON's ``limit_set``).
+LIMIT_SET_WORDS = {
+    "fcc-uncontrolled": "US general public limits (47 CFR 1.1310)",
+    "fcc-controlled": "US occupational limits (47 CFR 1.1310)",
+    "icnirp-public": "ICNIRP 2020 general public limits",
+    "icnirp-occupational": "ICNIRP 2020 occupational limits",
+}
+
 #: Impedance of free space [ohm] (CODATA: μ0·c, 376.730 Ω) — plane-wave equivalent power density S = E²/η0.
 FREE_SPACE_IMPEDANCE_OHM = 376.730313668
 #: 1 mW/cm² in W/m² (unit conversion).
