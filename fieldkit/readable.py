@@ -29,6 +29,8 @@ QUARTERS_PER_INCH = (
 INCHES_PER_FOOT = 12
 _FRACTIONS = {0: "", 1: "¼", 2: "½", 3: "¾"}
 _EPS = 1e-9  # absorbs binary representation error at exact halves
+#: No-break space inside a tape reading: "67 ft 4½ in" never breaks across lines on a phone or a card.
+NBSP = "\u00a0"
 
 
 def _half_up(x: float) -> int:
@@ -46,12 +48,13 @@ def tape_quarter_inches(length_m: float) -> int:
 
 
 def metric_from_cm(cm: int) -> str:
-    """ "59 cm" below one metre, "19.80 m" from one metre on (centimetres as an integer)."""
+    """59 cm below one metre, 19.80 m from one metre on (centimetres as an integer; the space is a
+    no-break space)."""
     if abs(cm) < CM_BELOW_M * 100:
-        return f"{cm} cm"
+        return f"{cm}{NBSP}cm"
     sign = "-" if cm < 0 else ""
     cm = abs(cm)
-    return f"{sign}{cm // 100}.{cm % 100:02d} m"
+    return f"{sign}{cm // 100}.{cm % 100:02d}{NBSP}m"
 
 
 def imperial_from_quarters(quarters: int) -> str:
@@ -61,10 +64,10 @@ def imperial_from_quarters(quarters: int) -> str:
     feet, rest = divmod(q, INCHES_PER_FOOT * QUARTERS_PER_INCH)
     inches, quarter = divmod(rest, QUARTERS_PER_INCH)
     frac = _FRACTIONS[quarter]
-    inch_text = f"{frac} in" if inches == 0 and frac else f"{inches}{frac} in"
+    inch_text = f"{frac}{NBSP}in" if inches == 0 and frac else f"{inches}{frac}{NBSP}in"
     if feet == 0:
         return f"{sign}{inch_text}"
-    return f"{sign}{feet} ft {inch_text}"
+    return f"{sign}{feet}{NBSP}ft{NBSP}{inch_text}"
 
 
 def tape_metric(length_m: float) -> str:

@@ -20,7 +20,6 @@ from typing import Any
 
 import numpy as np
 
-from fieldkit.readable import tape_imperial, tape_metric
 from fieldkit.rigging.hung import HungDipole
 from fieldkit.rigging.instruction import cut_instruction
 from fieldkit.rigging.wire import KitWire
@@ -342,6 +341,9 @@ def cut_json(
     diff = (leg - rule) / rule * 100
     sens = res.dfres_dleg_hz_per_m  # Hz per metre, negative
 
+    instruction = cut_instruction(legs_m=[leg, leg], wrap_allowance_m=wrap, spare_m=spare)
+    spare_read = instruction.pieces[-1].spare  # the spare as the marks give it, in both units
+
     def step_cm(shift_hz: float) -> float:
         return round(-shift_hz / sens * 100, 1)
 
@@ -353,14 +355,12 @@ def cut_json(
         "total_wire_m": round(2 * (leg + 2 * wrap), 3),
         "cut_long_m": round(spare, 3),
         "cut_long_advice": (
-            f"the length to cut includes {tape_metric(spare)} ({tape_imperial(spare)}) of spare at the outer "
-            "end of each leg: fold it back at the end insulator, because nearby trees, the real soil and "
-            "the coax usually pull resonance a percent or two below any model, and wire cannot be added "
-            "back in the field; trim after the first SWR check"
+            f"the length to cut includes {spare_read.both} of spare at the outer end of each leg: fold "
+            "it back at the end insulator, because nearby trees, the real soil and the coax usually pull "
+            "resonance a percent or two below any model, and wire cannot be added back in the field; "
+            "trim after the first SWR check"
         ),
-        "instruction": cut_instruction(
-            legs_m=[leg, leg], wrap_allowance_m=wrap, spare_m=spare
-        ).to_json(),
+        "instruction": instruction.to_json(),
         "cut_with_spare_total_m": round(2 * (leg + 2 * wrap + spare), 3),
         "rule_of_thumb": {
             "leg_m": round(rule, 3),

@@ -157,6 +157,14 @@ def _piece_sentence(p: Piece, units: str) -> str:
     return f"Cut {many} of {_say(p.cut, units)}{each}, marked from the feedpoint end at {marks}"
 
 
+def _between(a: TapeLength, b: TapeLength) -> TapeLength:
+    """The length between two marks as the tape reads it: the difference of the two readings, so the
+    parts of a piece add up to its cut length in either unit."""
+    cm = tape_cm(b.m) - tape_cm(a.m)
+    quarters = tape_quarter_inches(b.m) - tape_quarter_inches(a.m)
+    return TapeLength(b.m - a.m, metric_from_cm(cm), imperial_from_quarters(quarters))
+
+
 def _piece(
     *,
     name: str,
@@ -167,18 +175,27 @@ def _piece(
     inner: str,
     outer: str,
 ) -> Piece:
-    """One piece: wrap at the inner end, the electrical length, wrap at the outer end, the spare."""
+    """One piece: wrap at the inner end, the electrical length, wrap at the outer end, the spare.
+
+    The positions along the piece are rounded (not the parts), and each part is the difference of two
+    rounded positions: the reader who adds the parts gets the marks and the cut length shown.
+    """
+    start = TapeLength(0.0, "0 cm", "0 in")
+    inner_fold = TapeLength.of(wrap_m)
+    outer_fold = TapeLength.of(wrap_m + electrical_m)
+    wire_end = TapeLength.of(2 * wrap_m + electrical_m)
+    cut = TapeLength.of(2 * wrap_m + electrical_m + spare_m)
     marks = [
         Mark(
             inner,
-            TapeLength.of(wrap_m),
+            inner_fold,
             "fold here through the centre insulator or balun terminal"
             if inner == "feedpoint"
             else "fold here through the link",
         ),
         Mark(
             outer,
-            TapeLength.of(wrap_m + electrical_m),
+            outer_fold,
             "pass through the end insulator here and fold back"
             if outer == "end insulator"
             else "fold here through the link",
@@ -186,11 +203,11 @@ def _piece(
     ]
     spare = None
     if spare_m > 0:
-        spare = TapeLength.of(spare_m)
+        spare = _between(wire_end, cut)
         marks.append(
             Mark(
                 "spare",
-                TapeLength.of(2 * wrap_m + electrical_m),
+                wire_end,
                 f"the last {spare.metric} ({spare.imperial}) is the spare: fold it back along the wire "
                 "and tape it; cut it off only after the SWR check says so",
             )
@@ -198,9 +215,9 @@ def _piece(
     return Piece(
         name=name,
         legs=legs,
-        cut=TapeLength.of(electrical_m + 2 * wrap_m + spare_m),
-        electrical=TapeLength.of(electrical_m),
-        wrap=TapeLength.of(wrap_m),
+        cut=cut,
+        electrical=_between(inner_fold, outer_fold),
+        wrap=_between(start, inner_fold),
         spare=spare,
         marks=tuple(marks),
     )

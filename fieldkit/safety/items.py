@@ -207,7 +207,7 @@ def _exposure_items(f: OptionFindings) -> list[ChecklistItem]:
                 key,
                 f"Keep people {distance_text(d)} from the {name} while transmitting {label} "
                 f"(under the {limit}); mark the zone with tape or flags.",
-                title=f"Keep-out {distance_text(d)} from the {name} marked",
+                title=f"Keep-out zone around the {name} marked",
             )
         )
     if zones:
@@ -251,7 +251,7 @@ def _exposure_items(f: OptionFindings) -> list[ChecklistItem]:
                 None,
                 f"The wire comes down to {height_text(low)}, within reach of a standing person: fence or flag "
                 "that part, and never transmit while anyone is near it.",
-                title=f"Low wire ({height_text(low)}) fenced or flagged",
+                title="Low part of the wire fenced or flagged",
             )
         )
     names = hazard_names(f.hazards)

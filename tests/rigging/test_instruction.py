@@ -6,6 +6,7 @@ NIST Handbook 44, Appendix C); conversions below are computed from those definit
 
 from __future__ import annotations
 
+import json
 import re
 from fractions import Fraction
 
@@ -25,11 +26,16 @@ from fieldkit.rigging.instruction import cut_instruction
 
 INCH_M = Fraction(254, 10000)  # exact by definition (NIST Handbook 44, App. C)
 FRACTION_VALUE = {"": 0, "¼": Fraction(1, 4), "½": Fraction(1, 2), "¾": Fraction(3, 4)}
+NBSP = "\u00a0"  # tape readings keep number and unit together with no-break spaces
+
+
+def plain(text: str) -> str:
+    return text.replace(NBSP, " ")
 
 
 def parse_imperial(text: str) -> Fraction:
     """Metres from "67 ft 4½ in" / "23¼ in" / "2 ft ¾ in", exactly."""
-    m = re.fullmatch(r"(?:(\d+) ft )?(\d*)([¼½¾]?) in", text)
+    m = re.fullmatch(r"(?:(\d+) ft )?(\d*)([¼½¾]?) in", plain(text))
     assert m, text
     feet = int(m.group(1) or 0)
     inches = int(m.group(2) or 0) + FRACTION_VALUE[m.group(3)]
@@ -37,7 +43,7 @@ def parse_imperial(text: str) -> Fraction:
 
 
 def parse_metric(text: str) -> Fraction:
-    m = re.fullmatch(r"(\d+)\.(\d\d) m|(\d+) cm", text)
+    m = re.fullmatch(r"(\d+)\.(\d\d) m|(\d+) cm", plain(text))
     assert m, text
     if m.group(3) is not None:
         return Fraction(int(m.group(3)), 100)
@@ -66,9 +72,11 @@ def parse_metric(text: str) -> Fraction:
     ],
 )
 def test_tape_readings(metres, metric, imperial):
-    assert tape_metric(metres) == metric
-    assert tape_imperial(metres) == imperial
-    assert tape_both(metres) == f"{metric} ({imperial})"
+    assert plain(tape_metric(metres)) == metric
+    assert plain(tape_imperial(metres)) == imperial
+    assert plain(tape_both(metres)) == f"{metric} ({imperial})"
+    # the reading never breaks across lines: no ordinary space inside it
+    assert " " not in tape_metric(metres) + tape_imperial(metres)
 
 
 @given(st.floats(min_value=0.0, max_value=200.0, allow_nan=False))
@@ -98,24 +106,51 @@ def test_dipole_instruction_is_one_length_per_piece():
     assert piece.legs == ("A", "B") and piece.count == 2
     # cut = leg + wrap at both ends + spare = 19.645 + 0.30 + 0.589 = 20.534 m (computed)
     assert piece.cut.m == pytest.approx(20.534)
-    assert piece.cut.metric == "20.53 m"
-    assert piece.electrical.metric == "19.65 m"  # the model's figure stays visible
+    assert plain(piece.cut.metric) == "20.53 m"
+    assert plain(piece.electrical.metric) == "19.65 m"  # the model's figure stays visible
     # marks from the feedpoint end: feedpoint fold 0.15, end insulator 19.795, spare start 19.945
-    assert [(mk.kind, mk.at.metric) for mk in piece.marks] == [
+    assert [(mk.kind, plain(mk.at.metric)) for mk in piece.marks] == [
         ("feedpoint", "15 cm"),
         ("end insulator", "19.80 m"),
         ("spare", "19.95 m"),
     ]
-    assert ci.total_metric == "41.06 m"  # two pieces as cut, 2 × 20.53 m
-    text = ci.text("metric")
-    assert "20.53 m" in text and "19.80 m" in text and "59 cm spare" in text
-    assert "67 ft 4½ in" in ci.text("imperial") and "67 ft 4½ in" in ci.text_both
+    assert plain(ci.total_metric) == "41.06 m"  # two pieces as cut, 2 × 20.53 m
+    text = plain(ci.text("metric"))
+    # the spare is what lies between the last mark and the cut end, as the tape reads them:
+    # 20.53 m − 19.95 m = 58 cm (the exact 0.589 m would read 59 cm on its own; the marks win)
+    assert "20.53 m" in text and "19.80 m" in text and "58 cm spare" in text
+    assert "67 ft 4½ in" in plain(ci.text("imperial")) and "67 ft 4½ in" in plain(ci.text_both)
     # one number to cut: the instruction names no other length for the whole piece
     assert re.findall(r"Cut \d pieces \([^)]*\) of ([^,]+?) each", text) == ["20.53 m"]
 
 
+@given(
+    st.floats(min_value=2.0, max_value=40.0),
+    st.floats(min_value=0.0, max_value=0.5),
+    st.floats(min_value=0.0, max_value=2.0),
+)
+def test_the_parts_add_up_to_the_cut_in_either_unit(leg, wrap, spare):
+    # a reader who adds the parts as shown gets the cut length as shown (positions are rounded, parts
+    # are differences of positions)
+    (piece,) = cut_instruction(legs_m=[leg, leg], wrap_allowance_m=wrap, spare_m=spare).pieces
+    parts = [piece.wrap, piece.electrical, piece.wrap]
+    parts_m = [parse_metric(p.metric) for p in parts]
+    parts_in = [parse_imperial(p.imperial) for p in parts]
+    # the outer wrap is read from the marks too: end insulator → start of the spare (or the cut end)
+    marks_m = [parse_metric(mk.at.metric) for mk in piece.marks]
+    marks_in = [parse_imperial(mk.at.imperial) for mk in piece.marks]
+    assert marks_m[0] == parts_m[0] and marks_m[1] == parts_m[0] + parts_m[1]
+    assert marks_in[0] == parts_in[0] and marks_in[1] == parts_in[0] + parts_in[1]
+    if piece.spare is not None:
+        assert marks_m[2] + parse_metric(piece.spare.metric) == parse_metric(piece.cut.metric)
+        assert marks_in[2] + parse_imperial(piece.spare.imperial) == parse_imperial(
+            piece.cut.imperial
+        )
+
+
 def test_json_carries_both_unit_strings_made_once():
-    out = cut_instruction(legs_m=[10.0, 10.0], wrap_allowance_m=0.15, spare_m=0.3).to_json()
+    made = cut_instruction(legs_m=[10.0, 10.0], wrap_allowance_m=0.15, spare_m=0.3).to_json()
+    out = json.loads(plain(json.dumps(made, ensure_ascii=False)))
     piece = out["pieces"][0]
     assert piece["cut"] == {"m": 10.6, "metric": "10.60 m", "imperial": "34 ft 9¼ in"}
     # 10.6 m = 417.32 in (computed) → 417¼ in = 34 ft 9¼ in
@@ -131,8 +166,8 @@ def test_linked_dipole_pieces_by_section():
     inner, outer = ci.pieces
     assert inner.count == outer.count == 2
     assert inner.spare is None and outer.spare is not None
-    assert inner.cut.metric == "10.10 m"  # 9.8 + 2 × 0.15
-    assert outer.cut.metric == "10.73 m"  # 9.845 + 0.30 + 0.589 = 10.734
+    assert plain(inner.cut.metric) == "10.10 m"  # 9.8 + 2 × 0.15
+    assert plain(outer.cut.metric) == "10.73 m"  # 9.845 + 0.30 + 0.589 = 10.734
     assert [mk.kind for mk in inner.marks] == ["feedpoint", "link"]
     assert [mk.kind for mk in outer.marks] == ["link", "end insulator", "spare"]
 

@@ -119,7 +119,7 @@ def test_the_cut_instruction_is_a_checklist_item(block):
     item = next(it for it in block["checklist"] if it["id"] == "pre-cut-wire")
     assert item["stage"] == "pre-raise" and item["required"] is False
     assert item["text"].startswith(FLAT["cut"]["instruction"]["text"]["both"])
-    assert "20.53 m (67 ft 4½ in)" in item["text"]
+    assert "20.53 m (67 ft 4½ in)" in item["text"].replace("\u00a0", " ")
 
 
 def test_every_item_has_a_short_title(block):
