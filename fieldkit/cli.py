@@ -22,7 +22,7 @@ EXIT_INTERNAL = 3
 CALCULATORS = {
     "model": ("fieldkit.antenna", "model_json"),
     "sky": ("fieldkit.sky", "sky_json"),
-    "plan": ("fieldkit.plan", "plan"),
+    "plan": ("fieldkit.planning", "plan"),
 }
 
 

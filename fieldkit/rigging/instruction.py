@@ -111,7 +111,7 @@ class CutInstruction:
 
     def text(self, units: str) -> str:
         """The whole instruction in one unit: "Cut 2 pieces of 20.53 m (legs A and B); ..."."""
-        return "; ".join(_piece_sentence(p, units) for p in self.pieces) + "."
+        return ". ".join(_piece_sentence(p, units) for p in self.pieces) + "."
 
     @property
     def text_both(self) -> str:
@@ -154,7 +154,8 @@ def _piece_sentence(p: Piece, units: str) -> str:
     many = f"{p.count} pieces ({p.name})" if p.count > 1 else f"1 piece ({p.name})"
     each = " each" if p.count > 1 else ""
     marks = _and([_mark_words(mk, p, units) for mk in p.marks])
-    return f"Cut {many} of {_say(p.cut, units)}{each}, marked from the feedpoint end at {marks}"
+    end = "the feedpoint end" if p.marks[0].kind == "feedpoint" else "the end nearer the feedpoint"
+    return f"Cut {many} of {_say(p.cut, units)}{each}, marked from {end} at {marks}"
 
 
 def _between(a: TapeLength, b: TapeLength) -> TapeLength:
