@@ -378,6 +378,17 @@ def wire_needed_m(*, leg_m: float, wrap_allowance_m: float) -> tuple[float, floa
     )
 
 
+def spare_m(*, leg_m: float, wrap_allowance_m: float, spool_m: float | None) -> float:
+    """The deliberate spare per leg: ``CUT_LONG_FRACTION`` of the leg, or what the spool leaves once
+    both legs and their wraps are cut (never below 0) [m]. The cut instruction uses it, so a spool
+    that cannot hold the full spare gives one length to cut, not a second competing one."""
+    spare = CUT_LONG_FRACTION * leg_m
+    if spool_m is None:
+        return spare
+    left = (spool_m - 2 * (leg_m + 2 * wrap_allowance_m)) / 2
+    return max(0.0, min(spare, left))
+
+
 def trim_cm_per_leg(res: Resonance, shift_hz: float) -> float:
     """Leg change that moves the resonance by ``shift_hz``, as shown (mm) [cm]."""
     return round(-shift_hz / res.dfres_dleg_hz_per_m * 100, 1)
@@ -405,6 +416,12 @@ def cut_json(
     if instruction is None:
         instruction = cut_instruction(legs_m=[leg, leg], wrap_allowance_m=wrap, spare_m=spare)
     spare_read = instruction.pieces[-1].spare  # the spare as the marks give it, in both units
+    spare_words = (
+        f"the length to cut includes {spare_read.both} of spare at the outer end of each leg: fold "
+        "it back at the end insulator, because"
+        if spare_read is not None and spare_read.m > 0
+        else "the spool leaves no spare: cut to the marks and trim carefully, because"
+    )
 
     def step_cm(shift_hz: float) -> float:
         return round(-shift_hz / sens * 100, 1)
@@ -417,10 +434,9 @@ def cut_json(
         "total_wire_m": total,
         "cut_long_m": round(spare, 3),
         "cut_long_advice": (
-            f"the length to cut includes {spare_read.both} of spare at the outer end of each leg: fold "
-            "it back at the end insulator, because nearby trees, the real soil and the coax usually pull "
-            "resonance a percent or two below any model, and wire cannot be added back in the field; "
-            "trim after the first SWR check"
+            f"{spare_words} nearby trees, the real soil and the coax usually pull resonance a percent "
+            "or two below any model, and wire cannot be added back in the field; trim after the first "
+            "SWR check"
         ),
         "instruction": instruction.to_json(),
         "cut_with_spare_total_m": with_spare,

@@ -14,7 +14,7 @@ from typing import Any
 import numpy as np
 
 from fieldkit.constants import SPEED_OF_LIGHT_M_S, STANDARD_GRAVITY_M_S2
-from fieldkit.rigging.cut import CUT_LONG_FRACTION, Resonance, SwrCurve, cut_json
+from fieldkit.rigging.cut import Resonance, SwrCurve, cut_json, spare_m
 from fieldkit.rigging.feedline import feedline_json
 from fieldkit.rigging.heights import HeightPoint, sweep_json
 from fieldkit.rigging.hung import HungDipole
@@ -211,11 +211,11 @@ def _nvis_json(r: RiggedOption) -> dict[str, Any]:
 
 def option_cut_instruction(r: RiggedOption, kit) -> CutInstruction:
     """The option's one cut instruction: what the cut block, the Card and the checklist item say."""
-    leg = r.resonance.leg_m
+    leg, wrap = r.resonance.leg_m, kit.wrap_allowance_m
     return cut_instruction(
         legs_m=[leg, leg],
-        wrap_allowance_m=kit.wrap_allowance_m,
-        spare_m=CUT_LONG_FRACTION * leg,
+        wrap_allowance_m=wrap,
+        spare_m=spare_m(leg_m=leg, wrap_allowance_m=wrap, spool_m=kit.wire.spool_m),
         sections_m=None if r.linked is None else r.linked.sections_m,
     )
 
