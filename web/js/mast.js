@@ -123,7 +123,7 @@ export function sideView(dep, o, units) {
   for (const e of ends) svg.append(s("rect", { x: X(ax.along(e)) - 2.5, y: Z(e[2]) - 2.5, width: 5, height: 5, class: "insulator" }));
   svg.append(s("line", { x1: X(feedS), y1: Z(feed[2]), x2: X(feedS), y2: Z(0), class: "coax" }));
   svg.append(s("circle", { cx: X(feedS), cy: Z(feed[2]), r: 4, class: "feedpoint" }));
-  svg.append(s("text", { x: X(feedS) + 6, y: Z(feed[2]) + 14, class: "small-label", text: `feed ${formatLength(feed[2], { units, digits: 1 })}` }));
+  svg.append(s("text", { x: X(feedS) + 6, y: Z(feed[2]) + 14, class: "small-label", text: `feed ${formatLength(o.feedpoint_height_m, { units, digits: 1 })}` })); // the plan's figure, as in the table
   // a 1.8 m person for scale
   const px = X(personS);
   const u = scale;
@@ -253,10 +253,11 @@ function polarPattern(res, elevation) {
   const gmax = res.max_gain_dbi;
   const r = (g) => (Math.max(0, g - gmax + RANGE_DB) / RANGE_DB) * R;
   const svg = s("svg", { viewBox: `0 0 ${W} ${H}`, class: "plot polar", role: "img", "aria-label": "Elevation pattern in two planes", "data-testid": "pattern-plot" });
+  const rings = []; // ring labels go on top of the curves (drawn last)
   for (let dB = 0; dB < RANGE_DB; dB += 10) {
     const rr = r(gmax - dB);
     svg.append(s("path", { d: `M${cx - rr} ${cy}A${rr} ${rr} 0 0 1 ${cx + rr} ${cy}`, class: "grid" }));
-    svg.append(s("text", { x: cx + 3, y: cy - rr + 12, class: "tick", text: dB === 0 ? `${gmax.toFixed(1)} dBi` : `−${dB} dB` }));
+    rings.push(s("text", { x: cx + 3, y: cy - rr + 12, class: "tick", text: dB === 0 ? `${gmax.toFixed(1)} dBi` : `−${dB} dB` }));
   }
   for (const e of [0, 30, 60, 90, 120, 150, 180]) {
     const t = (e * Math.PI) / 180;
@@ -277,6 +278,7 @@ function polarPattern(res, elevation) {
   };
   curve(0, 1, "series");
   curve(2, 3, "series2");
+  svg.append(...rings);
   svg.append(s("text", { x: 6, y: cy + 18, class: "tick", text: "horizon" }));
   svg.append(s("text", { x: W - 6, y: cy + 18, class: "tick", "text-anchor": "end", text: "horizon" }));
   return svg;

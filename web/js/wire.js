@@ -202,7 +202,7 @@ function retrim(app, o) {
   const box = h("div", { class: "card", "data-testid": "retrim" });
   box.append(h("h3", { text: "Re-trim after raising" }));
   box.append(h("p", { class: "hint", text: "Measure the SWR across the channel with a low-power analyser at the feedpoint or through the coax, and type the frequency of the lowest SWR." }));
-  const out = h("p", { class: "result big-result", "data-testid": "retrim-result", text: "—" });
+  const out = h("p", { class: "result big-result", "data-testid": "retrim-result", text: "Type the measured dip: fieldkit says how much to cut off or add to each leg." });
   const show = (dip) => {
     st.extra.dipMHz = dip;
     let change;
