@@ -215,13 +215,24 @@ def _worst_case_input() -> dict:
     return spec
 
 
+def _linked_input() -> dict:
+    """The demo as a linked dipole for 3.605 and 7.055 MHz: two pieces per leg to cut and mark."""
+    spec = copy.deepcopy(json.loads(DEMO.read_text()))
+    spec["name"] = "Larch Basin, linked dipole"
+    spec["form"] = "linked"
+    spec["channels_mhz"] = spec["sky"]["channels_mhz"] = [3.605, 7.055]
+    return spec
+
+
 def test_the_printed_card_is_one_page(open_app, service, demo_planned):
     worst = post(service, "/api/deployments", _worst_case_input())
+    linked = post(service, "/api/deployments", _linked_input())
     cases = [
         ("phone", demo_planned["id"], "metric", "A4"),
         ("laptop", demo_planned["id"], "imperial", "Letter"),
         ("phone", worst["id"], "imperial", "Letter"),
         ("laptop", worst["id"], "metric", "A4"),
+        ("phone", linked["id"], "imperial", "Letter"),
     ]
     for kind, dep, units, fmt in cases:
         page = open_app(kind, f"?deployment={dep}#card")
@@ -229,7 +240,7 @@ def test_the_printed_card_is_one_page(open_app, service, demo_planned):
         go(page, "card")
         page.get_by_test_id("field-card").wait_for()
         page.get_by_test_id("card-qr").wait_for()
-        tag = "worst" if dep == worst["id"] else "demo"
+        tag = {worst["id"]: "worst", linked["id"]: "linked"}.get(dep, "demo")
         shot(page, f"card-{tag}-{kind}-{units}")
         text = page.get_by_test_id("field-card").inner_text()
         assert "Cut and mark" in text and "Rope heights" in text and "Keep clear" in text
@@ -241,6 +252,13 @@ def test_the_printed_card_is_one_page(open_app, service, demo_planned):
             # the stake positions of the inverted-V are on the card
             assert page.get_by_test_id("card-stake-0").is_visible()
             assert "Open required checks" in text
+        if tag == "linked":
+            ins = instruction_of(service, dep)
+            assert len(ins["pieces"]) == 2  # each leg: inner and outer section
+            assert (
+                page.get_by_test_id("card-cut-length-1").inner_text()
+                == ins["pieces"][1]["cut"][units]
+            )
         pages = pdf_pages(print_pdf(page, fmt), f"card-{tag}-{kind}-{units}-{fmt}")
         assert pages == 1, f"the {tag} card in {units} prints on {pages} {fmt} pages"
 

@@ -8,7 +8,7 @@ import { qrSvg } from "./qr.js";
 import { readiness } from "./checks.js";
 import { cutInstruction, supportsById } from "./shapes.js";
 import { formatLength, formatMHz, formatTape, pick } from "./units.js";
-import { electricalLegs, markWords, pieceWords } from "./wire.js";
+import { electricalLegs, linkWords, markWords, pieceWords } from "./wire.js";
 import { count, formWord, kindWord, limitSetWord, modeWord } from "./words.js";
 
 const COMPASS = ["N", "NNE", "NE", "ENE", "E", "ESE", "SE", "SSE", "S", "SSW", "SW", "WSW", "W", "WNW", "NW", "NNW"];
@@ -35,20 +35,36 @@ export function stakeRows(o, units) {
   return [];
 }
 
-/** The essentials as plain text: a phone camera shows it with no network at all. */
+/** The essentials as plain text: a phone camera shows it with no network at all (short: a QR code
+ * holds about 400 bytes at the error level the encoder uses). */
 export function cardText(dep, o, units) {
   const f = (m) => formatLength(m, { units, digits: 1 });
   const ins = cutInstruction(o);
-  const lines = ["fieldkit field card", dep.name, `${formatMHz(o.frequency_mhz)} ${formWord(o.form)} dipole, ${o.supports_used.join(" to ")}`];
+  const lines = [`fieldkit card: ${dep.name}`, `${channelWords(o)} ${formWord(o.form)}, ${o.supports_used.join("-")}`];
   for (const p of ins?.pieces ?? []) {
-    const marks = p.marks.map((mk) => `${pick(mk.from_feedpoint_end, units)} ${mk.kind === "spare" ? "spare" : mk.kind}`).join(", ");
-    lines.push(`Cut ${p.count} x ${pick(p.cut, units)} (${p.name}); marks from feed end: ${marks}`);
+    const marks = p.marks.map((mk) => `${pick(mk.from_feedpoint_end, units)}${mk.kind === "spare" ? " spare" : ""}`).join(", ");
+    lines.push(`Cut ${p.count}x ${pick(p.cut, units)}, marks ${marks}`);
   }
-  lines.push(`Ropes: ${Object.entries(o.rope_heights_m).map(([id, m]) => `${id} ${f(m)}`).join(", ")}; feedpoint ${f(o.feedpoint_height_m)}`);
+  lines.push(`Ropes ${Object.entries(o.rope_heights_m).map(([id, m]) => `${id} ${f(m)}`).join(", ")}; feed ${f(o.feedpoint_height_m)}`);
   for (const r of stakeRows(o, units)) lines.push(`${r.label}: ${r.value}`);
-  lines.push(`Keep-out ${(o.safety?.keep_out_m ?? 0) > 0 ? f(o.safety.keep_out_m) : "none"} while sending`);
-  if (Number.isFinite(o.safety?.min_end_height_m)) lines.push(`Ends at least ${f(o.safety.min_end_height_m)} high`);
-  return lines.join("\n");
+  const keep = (o.safety?.keep_out_m ?? 0) > 0 ? f(o.safety.keep_out_m) : "none";
+  lines.push(`Keep-out ${keep}${Number.isFinite(o.safety?.min_end_height_m) ? `; ends at least ${f(o.safety.min_end_height_m)}` : ""}`);
+  return lines.join("\n").replaceAll("\u00a0", " "); // plain spaces: fewer bytes in the code
+}
+
+/** "3.605 MHz", or a linked dipole's channels "3.605 / 7.055 MHz". */
+function channelWords(o) {
+  const list = o.form === "linked" && Array.isArray(o.channels_mhz) ? o.channels_mhz : [o.frequency_mhz];
+  return `${list.map((c) => formatMHz(c).replace(" MHz", "")).join(" / ")} MHz`;
+}
+
+/** The QR code of the card text; a text too long for the encoder's largest symbol says so instead. */
+function cardQr(text) {
+  try {
+    return [qrSvg(text, { label: "QR code of the field card", testid: "card-qr" }), h("p", { class: "fc-note", text: "Scan: the card as text, no network needed." })];
+  } catch {
+    return [h("p", { class: "fc-note", "data-testid": "card-qr", text: "This card is too long for a QR code: print it or use the app." })];
+  }
 }
 
 /** Per hazard, the clearance with the least margin (the one that decides). */
@@ -82,8 +98,10 @@ function cutBlock(o, units) {
     ]));
     const ol = h("ol", { class: "fc-marks" });
     for (const mk of piece.marks) ol.append(h("li", {}, [h("b", { text: pick(mk.from_feedpoint_end, units) }), ` ${markWords(mk, piece, units)}`]));
-    parts.push(h("p", { class: "fc-label", text: "Marks, measured from the feedpoint end of each piece:" }), ol);
+    parts.push(h("p", { class: "fc-label", text: `Marks, measured from ${piece.marks[0].kind === "feedpoint" ? "the feedpoint end" : "the end nearer the feedpoint"} of each piece:` }), ol);
   });
+  const links = linkWords(o);
+  if (links) parts.push(h("p", { class: "fc-links", "data-testid": "card-links", text: links }));
   const legs = [...new Set(electricalLegs(o, units))].join(" / ");
   parts.push(h("p", { class: "fc-note" }, [`Wire off the spool ${pick(ins.total, units)}. Between the feedpoint fold and the end insulator: ${legs} (the model's electrical leg). Wrap ${pick(ins.pieces[0].wrap_each_end, units)} at each end.`]));
   return block("fc-cut", "Cut and mark", parts);
@@ -160,9 +178,9 @@ export function render(app, panel) {
   const schedule = st.dep.schedule ? ` · schedule ${st.dep.schedule.start_utc}–${st.dep.schedule.end_utc} UTC` : "";
   cardEl.append(h("header", { class: "fc-head" }, [
     h("h2", { text: st.dep.name }),
-    h("p", { class: "fc-sub", text: `${formatMHz(o.frequency_mhz)} · ${formWord(o.form)} dipole · ${o.supports_used.join(" to ")}${schedule}` }),
+    h("p", { class: "fc-sub", text: `${channelWords(o)} · ${formWord(o.form)} dipole · ${o.supports_used.join(" to ")}${schedule}` }),
   ]));
-  const qr = h("section", { class: "fc-block fc-qr" }, [qrSvg(cardText(st.dep, o, units), { label: "QR code of the field card", testid: "card-qr" }), h("p", { class: "fc-note", text: "Scan: the card as text, no network needed." })]);
+  const qr = h("section", { class: "fc-block fc-qr" }, cardQr(cardText(st.dep, o, units)));
   const cautions = (o.safety?.cautions ?? []).slice(0, 5);
   cardEl.append(h("div", { class: "fc-grid" }, [
     cutBlock(o, units),

@@ -99,6 +99,16 @@ export function electricalLegs(o, units) {
   });
 }
 
+/** A linked dipole: which links to open for which channel (from the plan's `links`). */
+export function linkWords(o) {
+  if (o.form !== "linked" || !Array.isArray(o.links) || !o.links.length) return null;
+  const low = o.frequency_mhz;
+  // the links sit between the sections, innermost first: name them by section, not by a second length
+  const byDistance = [...o.links].sort((a, b) => a.link_from_feed_m - b.link_from_feed_m);
+  const parts = byDistance.map((lk, k) => `for ${formatMHz(lk.frequency_mhz)} open the links after section ${k + 1} (and close any nearer the feedpoint)`);
+  return `Links: for ${formatMHz(low)} close every link; ${parts.join("; ")}.`;
+}
+
 /** "2 pieces, legs A and B" / "1 piece, leg A, section 2 of 2". */
 export function pieceWords(piece) {
   return `${piece.count} ${piece.count === 1 ? "piece" : "pieces"}, ${piece.name}`;
@@ -118,7 +128,7 @@ function cutCard(o, units) {
         h("span", { class: "cut-what", text: `Cut ${pieceWords(piece)}, each` }),
         h("span", { class: "cut-length", "data-testid": k === 0 ? "cut-length" : `cut-length-${k}`, text: pick(piece.cut, units) }),
       ]));
-      block.append(h("p", { class: "label", text: "Mark each piece, measured from its feedpoint end:" }));
+      block.append(h("p", { class: "label", text: `Mark each piece, measured from ${piece.marks[0].kind === "feedpoint" ? "its feedpoint end" : "its end nearer the feedpoint"}:` }));
       const marks = h("ol", { class: "marks" });
       for (const mk of piece.marks) {
         marks.append(h("li", { "data-kind": mk.kind }, [h("span", { class: "mark-at", text: pick(mk.from_feedpoint_end, units) }), h("span", { class: "mark-what", text: markWords(mk, piece, units) })]));
@@ -126,6 +136,8 @@ function cutCard(o, units) {
       block.append(marks);
       box.append(block);
     });
+    const links = linkWords(o);
+    if (links) box.append(h("p", { class: "note", "data-testid": "links", text: links }));
     box.append(h("p", { class: "spool" }, ["Wire off the spool: ", h("b", { "data-testid": "total-wire", text: pick(ins.total, units) })]));
   }
   // The model's figure stays visible, marked as such: the electrical leg between the marks.
