@@ -7,7 +7,7 @@ ends with exit code 2 and one line on stderr naming the field and what is expect
 from __future__ import annotations
 
 import argparse
-import importlib
+import os
 import sys
 from collections.abc import Callable, Sequence
 from typing import Any
@@ -15,32 +15,35 @@ from typing import Any
 from fieldkit import __version__
 from fieldkit.errors import InputError
 
+# One OpenBLAS thread for the whole process, set before anything imports numpy: the engine's systems
+# are small, and BLAS worker threads only add start-up and spin-wait time (docs/engine.md).
+os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
+
 EXIT_BAD_INPUT = 2
 EXIT_INTERNAL = 3
 
-# subcommand -> (module, function); imported only when used so `fieldkit model` starts fast
-CALCULATORS = {
-    "model": ("fieldkit.antenna", "model_json"),
-    "sky": ("fieldkit.sky", "sky_json"),
-    "plan": ("fieldkit.plan", "plan"),
-}
+
+# Each command imports only the layer it runs, when it runs: `fieldkit model` pays for numpy and the
+# engine, never for the sky model, Flask or the desktop window.
+def _model(spec: Any) -> Any:
+    from fieldkit.antenna import model_json
+
+    return model_json(spec)
 
 
-class LayerMissing(RuntimeError):
-    """A layer of fieldkit that this command needs is not part of this build."""
+def _sky(spec: Any) -> Any:
+    from fieldkit.sky import sky_json
+
+    return sky_json(spec)
 
 
-def _load(module: str, name: str) -> Callable[..., Any]:
-    try:
-        mod = importlib.import_module(module)
-    except ModuleNotFoundError as exc:
-        if exc.name and (exc.name == module or module.startswith(exc.name + ".")):
-            raise LayerMissing(f"{module} is not available in this build of fieldkit") from None
-        raise
-    fn = getattr(mod, name, None)
-    if fn is None:
-        raise LayerMissing(f"{module}.{name} is not available in this build of fieldkit")
-    return fn
+def _plan(spec: Any) -> Any:
+    from fieldkit.plan import plan
+
+    return plan(spec)
+
+
+CALCULATORS: dict[str, Callable[[Any], Any]] = {"model": _model, "sky": _sky, "plan": _plan}
 
 
 def _parser() -> argparse.ArgumentParser:
@@ -83,26 +86,26 @@ def _parser() -> argparse.ArgumentParser:
 def _calculate(command: str, path: str) -> int:
     from fieldkit import jsonio
 
-    module, name = CALCULATORS[command]
-    spec = jsonio.read(path)  # input errors are reported even where a layer is missing
-    fn = _load(module, name)
-    result = fn(spec)
+    spec = jsonio.read(path)
+    result = CALCULATORS[command](spec)
     # indented for a person at a terminal; compact (and fast) when piped to a script
     sys.stdout.write(jsonio.dumps(result, pretty=sys.stdout.isatty()) + "\n")
     return 0
 
 
 def _serve(args: argparse.Namespace) -> int:
-    serve = _load("fieldkit.service", "serve")
     if not 0 < args.port < 65536:
         raise InputError("--port", f"expected a port number 1-65535, got {args.port}")
     host = args.host or ("0.0.0.0" if args.lan else "127.0.0.1")
+    from fieldkit.service import serve
+
     serve(host=host, port=args.port, data_dir=args.data_dir, lan=args.lan)
     return 0
 
 
 def _desktop(args: argparse.Namespace) -> int:
-    run = _load("fieldkit.desktop", "run")
+    from fieldkit.desktop import run
+
     return int(run(data_dir=getattr(args, "data_dir", None)) or 0)
 
 
@@ -116,9 +119,6 @@ def main(argv: Sequence[str] | None = None) -> int:
             return _serve(args)
         return _desktop(args)
     except InputError as exc:
-        print(f"fieldkit {command}: {exc}", file=sys.stderr)
-        return EXIT_BAD_INPUT
-    except LayerMissing as exc:
         print(f"fieldkit {command}: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
     except KeyboardInterrupt:
