@@ -1,4 +1,8 @@
-"""Where fieldkit keeps its data: the platform's user data directory, or FIELDKIT_HOME."""
+"""Where fieldkit keeps its files.
+
+Data (deployments): the platform's user data directory, or FIELDKIT_HOME. Caches (tables rebuilt
+from installed packages whenever missing): the user cache directory, or FIELDKIT_CACHE_DIR.
+"""
 
 from __future__ import annotations
 
@@ -17,6 +21,23 @@ def data_dir() -> Path:
         import platformdirs
 
         path = Path(platformdirs.user_data_dir(APP_NAME, appauthor=False))
+    path.mkdir(parents=True, exist_ok=True)
+    return path
+
+
+def cache_dir() -> Path:
+    """The cache directory, created if missing. FIELDKIT_CACHE_DIR overrides the platform default.
+
+    Only derived files live here (e.g. the compact IRI tables, :mod:`fieldkit.sky.iri_tables`):
+    deleting it costs one rebuild on next use, never data.
+    """
+    override = os.environ.get("FIELDKIT_CACHE_DIR")
+    if override:
+        path = Path(override).expanduser()
+    else:
+        import platformdirs
+
+        path = Path(platformdirs.user_cache_dir(APP_NAME, appauthor=False))
     path.mkdir(parents=True, exist_ok=True)
     return path
 
