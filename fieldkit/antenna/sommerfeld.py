@@ -384,24 +384,35 @@ def _pair_layout(mesh: Mesh) -> _PairLayout:
 
 def lossy_ground_matrix(mesh: Mesh, ground: Ground, frequency_hz: float) -> np.ndarray:
     """Contribution of the lossy half-space to the moment-method matrix (M, M) [ohm]."""
+    return lossy_ground_matrices([mesh], ground, frequency_hz)[0]
+
+
+def lossy_ground_matrices(meshes, ground: Ground, frequency_hz: float) -> np.ndarray:
+    """:func:`lossy_ground_matrix` of translated copies of one mesh (a sweep), (n, M, M) [ohm].
+
+    The copies share the pair layout; only ζ moves with the height, so the image sums of all
+    copies are formed together.
+    """
     im = _images_for(ground, frequency_hz)
     omega = 2 * math.pi * frequency_hz
     k = im.k0
-    lay = _pair_layout(mesh)
+    lay = _pair_layout(meshes[0])
     beta, a_h, a_v, a_d, a_c = _all_images(im)
-    zeta = lay.zeta_rel + 2 * mesh.start[0, 2]
-    sums = _image_sums(k, lay.rho2, zeta, beta, a_h, a_v, a_d, a_c)[lay.rows]
+    n = len(lay.rho2)
+    zeta = np.concatenate([lay.zeta_rel + 2 * m.start[0, 2] for m in meshes])
+    rho2 = np.tile(lay.rho2, len(meshes)) if len(meshes) > 1 else lay.rho2
+    sums = _image_sums(k, rho2, zeta, beta, a_h, a_v, a_d, a_c)[lay.rows]
     coef = lay.factors
     if lay.k2_row.any():
         coef = np.where(lay.k2_row, k * k, 1.0)[:, None] * coef
-    per_pair = np.take(sums, lay.inverse, axis=1)
+    per_pair = np.take(sums.reshape(len(sums), len(meshes), n), lay.inverse, axis=2)
     vals = coef[0] * per_pair[0]
     for r in range(1, len(coef)):
         vals += coef[r] * per_pair[r]
     # reciprocity: the coupling matrix is symmetric, so only the upper triangle is computed
-    t = np.empty((lay.n_points, lay.n_points), dtype=complex)
-    t[lay.iu, lay.ju] = vals
-    t[lay.ju, lay.iu] = vals
+    t = np.empty((len(meshes), lay.n_points, lay.n_points), dtype=complex)
+    t[:, lay.iu, lay.ju] = vals
+    t[:, lay.ju, lay.iu] = vals
     c = lay.weights
     # Z_mn = −∫ f_m · E[f_n] with E = Ê / (4π jωε0)
     return -(c.T @ t @ c) / (4 * math.pi * 1j * omega * EPS0)
