@@ -18,7 +18,8 @@ from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq, root
+
+from fieldkit.rigging.roots import brent, hybrid_system, newton_system
 
 
 @dataclass(frozen=True)
@@ -197,14 +198,19 @@ def hang_between(
             out = np.array([(u - span_m) / span_m, (z - rise_m) / span_m, tmax / t - 1.0])
         return np.where(np.isfinite(out), out, 1e6)
 
+    starts = [
+        np.array([np.log(guess_h), -0.15 + 0.5 * rise_m / max(span_m, 1e-9), free_guess / span_m])
+        for guess_h in (0.97, 0.8, 0.5)
+    ]
     best = None
-    for guess_h in (0.97, 0.8, 0.5):
-        x0 = np.array(
-            [np.log(guess_h), -0.15 + 0.5 * rise_m / max(span_m, 1e-9), free_guess / span_m]
-        )
-        sol = root(residual, x0, method="hybr", options={"xtol": 1e-11})
-        if sol.success and np.max(np.abs(residual(sol.x))) < 1e-8:
-            best = sol.x
+    # Newton first (no scipy import); MINPACK's hybrid method only if Newton finds nothing
+    for solver in (newton_system, hybrid_system):
+        for x0 in starts:
+            x = solver(residual, x0, xtol=1e-11)
+            if x is not None and np.max(np.abs(residual(x))) < 1e-8:
+                best = x
+                break
+        if best is not None:
             break
     if best is None:
         raise HangError("no hang found at this tension")
@@ -246,7 +252,7 @@ def hang_to_height(
     lo, hi = t * 1e-4, t * (1 - 1e-12)
     if f(lo) * f(hi) > 0:
         raise HangError("the pull cannot hold the leg at that angle")
-    h = brentq(f, lo, hi, xtol=1e-12 * t)
+    h = brent(f, lo, hi, xtol=1e-12 * t)
     v0 = z_end(h)[1]
     shape = integrate_chain(pieces, horizontal_tension_n=h, start_vertical_n=v0)
     return shape, float(shape.u_m[-1])

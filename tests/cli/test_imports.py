@@ -57,8 +57,9 @@ def test_model_loads_numpy_and_the_engine_only():
 
 
 @pytest.mark.parametrize("command", ["sky", "plan"])
-def test_sky_and_plan_do_not_load_pyiri_or_the_service(command):
+def test_sky_and_plan_do_not_load_pyiri_scipy_or_the_service(command):
     _imported("sky", str(DEMO / "sky.json"))  # builds the IRI tables in the test cache if needed
     name = "sky.json" if command == "sky" else "larch-basin-plan.json"
     mods = _imported(command, str(DEMO / name))
-    assert not _packages(mods) & set(NEVER)
+    # scipy.optimize alone costs ~0.3 s of CPU to import: the hung-wire roots no longer need it
+    assert not _packages(mods) & {*NEVER, "scipy"}
