@@ -46,6 +46,16 @@ def _plan(spec: Any) -> Any:
 CALCULATORS: dict[str, Callable[[Any], Any]] = {"model": _model, "sky": _sky, "plan": _plan}
 
 
+def _keep_fits_across_runs() -> None:
+    """Fitted ground images persist in the cache directory: a scripted run pays each fit once."""
+    from fieldkit import disk_cache, paths
+    from fieldkit.antenna import sommerfeld
+
+    sommerfeld.keep_images_in(
+        disk_cache.ArrayDir(paths.cache_dir() / f"complex-images-{sommerfeld.IMAGE_FIT_ID}")
+    )
+
+
 def _parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
         prog="fieldkit",
@@ -87,6 +97,7 @@ def _calculate(command: str, path: str) -> int:
     from fieldkit import jsonio
 
     spec = jsonio.read(path)
+    _keep_fits_across_runs()
     result = CALCULATORS[command](spec)
     # indented for a person at a terminal; compact (and fast) when piped to a script
     sys.stdout.write(jsonio.dumps(result, pretty=sys.stdout.isatty()) + "\n")
@@ -99,6 +110,7 @@ def _serve(args: argparse.Namespace) -> int:
     host = args.host or ("0.0.0.0" if args.lan else "127.0.0.1")
     from fieldkit.service import serve
 
+    _keep_fits_across_runs()
     serve(host=host, port=args.port, data_dir=args.data_dir, lan=args.lan)
     return 0
 
@@ -106,6 +118,7 @@ def _serve(args: argparse.Namespace) -> int:
 def _desktop(args: argparse.Namespace) -> int:
     from fieldkit.desktop import run
 
+    _keep_fits_across_runs()
     return int(run(data_dir=getattr(args, "data_dir", None)) or 0)
 
 

@@ -16,7 +16,6 @@ this format, so another PyIRI installation builds its own table; a damaged file 
 from __future__ import annotations
 
 import importlib.util
-import os
 import threading
 import zlib
 from dataclasses import dataclass
@@ -24,7 +23,7 @@ from pathlib import Path
 
 import numpy as np
 
-from fieldkit import paths
+from fieldkit import disk_cache, paths
 
 FORMAT = "iri-tables-1"  # change when the layout below changes
 MONTHS = 12
@@ -94,19 +93,9 @@ def read_with_pyiri(coeff_dir: Path | None = None) -> np.ndarray:
     return rec
 
 
-def _write(path: Path, rec: np.ndarray) -> None:
-    tmp = path.with_name(f"{path.name}.{os.getpid()}.{threading.get_ident()}.tmp")
-    with open(tmp, "wb") as fh:
-        np.save(fh, rec, allow_pickle=False)
-    os.replace(tmp, path)  # atomic: a reader sees the old file, none, or the whole new one
-
-
 def _read(path: Path) -> np.ndarray | None:
-    try:
-        rec = np.load(path, allow_pickle=False)
-    except (OSError, ValueError, EOFError):
-        return None
-    return rec if rec.dtype == DTYPE and rec.shape == () else None
+    rec = disk_cache.read_array(path)
+    return rec if rec is not None and rec.dtype == DTYPE and rec.shape == () else None
 
 
 def _unpack(rec: np.ndarray) -> IriTables:
@@ -130,6 +119,6 @@ def load() -> IriTables:
             rec = _read(path) if path.exists() else None
             if rec is None:
                 rec = read_with_pyiri()
-                _write(path, rec)
+                disk_cache.write_array(path, rec)
             _tables = _unpack(rec)
         return _tables
