@@ -2,7 +2,7 @@
 
 Issue 5's speed target: a whole plan of the demo scenario (all support pairs, forms and channels, with
 the height sweep) should cost no more than one NEC-2 height sweep. Printed side by side: the demo plan
-(`fieldkit.plan.plan` on assets/demo/larch-basin-plan.json, in-process, safety blocks and the sky
+(`fieldkit.planning.plan` on assets/demo/larch-basin-plan.json, in-process, safety blocks and the sky
 estimate included and also shown without the sky), and NEC-2 on 47 heights (3–26 m) of a 3.79 MHz
 copper dipole of the demo's 1.6 mm wire over the demo's poor ground (GN 2 Sommerfeld, LD 5, 41
 segments, impedance and a 0–90° elevation cut in two planes), plus the ratios and the engine solves
@@ -25,7 +25,7 @@ import numpy as np
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
-from fieldkit.plan import plan  # noqa: E402
+from fieldkit.planning import plan  # noqa: E402
 
 FREQUENCY_MHZ = 3.79
 HEIGHTS_M = np.linspace(3.0, 26.0, 47)

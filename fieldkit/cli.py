@@ -38,7 +38,7 @@ def _sky(spec: Any) -> Any:
 
 
 def _plan(spec: Any) -> Any:
-    from fieldkit.plan import plan
+    from fieldkit.planning import plan
 
     return plan(spec)
 

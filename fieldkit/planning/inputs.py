@@ -1,48 +1,143 @@
-"""Validation of the `fieldkit plan` input: every field checked at the edge, named in every error."""
+"""The `fieldkit plan` input decoded once, at the edge, into typed records.
+
+:func:`parse_plan` checks every field and names it in every error (``site.supports[2].height_m``):
+the site (supports, hazards, ground), the channels and form, the kit (:mod:`.kit_input`), the radio,
+the limit set, the schedule, the re-trim reading and the sky block (decoded by the sky layer's own
+parser). Nothing downstream validates the input again.
+"""
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from collections.abc import Mapping
+from dataclasses import dataclass, replace
 from typing import Any
 
-from fieldkit.constants import STANDARD_GRAVITY_M_S2
 from fieldkit.errors import InputError, array, check_keys, choice, join, number, require_mapping
-from fieldkit.rigging.cut import WRAP_ALLOWANCE_M
-from fieldkit.rigging.feedline import parse_coax
-from fieldkit.rigging.layouts import Mechanics
-from fieldkit.rigging.mast import Mast, parse_masts
+from fieldkit.planning.kit_input import parse_kit
+from fieldkit.rigging.mast import Mast
 from fieldkit.rigging.options import Kit
-from fieldkit.rigging.supports import Support, parse_supports
-from fieldkit.rigging.wire import parse_wire
-from fieldkit.sky.inputs import MAX_CHANNEL_MHZ, MIN_CHANNEL_MHZ  # one HF range for plan and sky
+from fieldkit.safety import parse_hazards, parse_limit_set, parse_radio
+from fieldkit.safety.duty import Radio
+from fieldkit.safety.hazards import Path, PowerLine
+from fieldkit.site import Support, parse_supports
+from fieldkit.sky.inputs import (  # one HF range for plan and sky
+    MAX_CHANNEL_MHZ,
+    MIN_CHANNEL_MHZ,
+    SkySpec,
+    parse_sky_spec,
+    window,
+)
+from fieldkit.sky.inputs import Schedule as SkySchedule
 
 FORMS = ("flat", "inverted-v", "sloping", "linked", "auto")
-# Laid rope of polyester/nylon: about 0.8 × the fibre density over the rope's circle, 4 mm ≈ 10 g/m
-# (from memory, typical maker tables 9–12 g/m).
-ROPE_PACKED_DENSITY_KG_M3 = 800.0
-DEFAULT_TENSION_N = (
-    50.0  # a firm two-hand pull on a halyard (common practice); said in the warnings
+RETRIM_FORMS = ("flat", "sloping", "inverted-v")
+PLAN_FIELDS = (
+    "name",
+    "site",
+    "channels_mhz",
+    "form",
+    "kit",
+    "radio",
+    "sky",
+    "schedule",
+    "limit_set",
+    "retrim",
 )
-DEFAULT_ROPE_DIAMETER_MM = 4.0
-
-
+PLAN_REQUIRED = ("site", "channels_mhz", "kit", "radio")
+SITE_FIELDS = (
+    "name",
+    "lat_deg",
+    "lon_deg",
+    "elevation_m",
+    "utc_offset_h",
+    "ground",
+    "supports",
+    "hazards",
+)
+SCHEDULE_FIELDS = ("start_utc", "end_utc")
+RETRIM_FIELDS = ("frequency_mhz", "form", "leg_now_m", "dip_mhz", "at_mhz", "r_ohm", "x_ohm")
+DEFAULT_LIMIT_SET = "fcc-uncontrolled"
+MAX_CHANNELS = 12
 # every pair of usable supports is screened with the engine (~0.4 s a pair on a 2-core laptop):
 # 10 supports = 45 pairs keeps a plan within about 30 s (measured: 20 supports took 70 s)
 MAX_USABLE_SUPPORTS = 10
 
 
 @dataclass(frozen=True)
+class PlanSchedule:
+    """The operating window (UTC): "HH:MM" as given and in hours; either end may be missing."""
+
+    start_text: str | None
+    end_text: str | None
+    start_h: float | None
+    end_h: float | None
+
+    def for_sky(self) -> SkySchedule:
+        """The window as the sky layer's schedule (both ends needed).
+
+        Raises
+        ------
+        fieldkit.errors.InputError
+            When an end is missing.
+        """
+        for key, text in (("start_utc", self.start_text), ("end_utc", self.end_text)):
+            if text is None:
+                raise InputError(
+                    join("schedule", key), "required with a sky block: a UTC time as HH:MM"
+                )
+        return window(self.start_h, self.end_h, None, self.start_text, self.end_text)
+
+
+@dataclass(frozen=True)
+class Retrim:
+    """A measurement after raising: the channel to re-trim for [Hz] and the SWR dip [Hz], or an
+    analyser reading R + jX [Ω] at a frequency [Hz]; ``form`` restricts it to one form."""
+
+    target_hz: float
+    form: str | None = None
+    leg_now_m: float | None = None
+    dip_hz: float | None = None
+    at_hz: float | None = None
+    r_ohm: float | None = None
+    x_ohm: float | None = None
+
+
+@dataclass(frozen=True)
 class PlanInput:
+    """The whole plan input, decoded (SI units).
+
+    Attributes
+    ----------
+    name : the deployment's name, or None
+    supports : the site's supports (unsafe ones included, never used)
+    hazards : power lines and paths on the sketch
+    masts : the kit's masts
+    channels_hz : the channels [Hz], as given
+    form : one of :data:`FORMS`
+    kit : what the rigging needs (wire, mechanics, coax, rope, wrap, ground)
+    mast_xy : where a centre mast stands: the centroid of the safe supports [m]
+    radio : power, mode, transmit fraction
+    limit_set : the RF exposure limit set
+    sky : the sky layer's decoded input (channels and schedule from the plan), or None
+    schedule : the plan's operating window, or None
+    retrim : a measured dip or analyser reading, or None
+    warnings : defaults used and supports left out, in plain words
+    """
+
     name: str | None
-    supports: list[Support]
-    masts: list[Mast]
-    channels_hz: list[float]
+    supports: tuple[Support, ...]
+    hazards: tuple[PowerLine | Path, ...]
+    masts: tuple[Mast, ...]
+    channels_hz: tuple[float, ...]
     form: str
     kit: Kit
     mast_xy: tuple[float, float]
+    radio: Radio
     limit_set: str
-    retrim: dict[str, Any] | None
-    warnings: list[str]
+    sky: SkySpec | None
+    schedule: PlanSchedule | None
+    retrim: Retrim | None
+    warnings: tuple[str, ...]
 
 
 def _ground(value: Any):
@@ -53,176 +148,78 @@ def _ground(value: Any):
     return g, name
 
 
-def parse_plan(spec: Any) -> PlanInput:
-    obj = require_mapping(spec, "")
-    check_keys(
-        obj,
-        "",
-        (
-            "name",
-            "site",
-            "channels_mhz",
-            "form",
-            "kit",
-            "radio",
-            "sky",
-            "schedule",
-            "limit_set",
-            "retrim",
-        ),
-    )
-    warnings: list[str] = []
-    for key in ("site", "channels_mhz", "kit", "radio"):
-        if key not in obj:
-            raise InputError(key, "required")
-    site = require_mapping(obj["site"], "site")
-    check_keys(
-        site,
-        "site",
-        (
-            "name",
-            "lat_deg",
-            "lon_deg",
-            "elevation_m",
-            "utc_offset_h",
-            "ground",
-            "supports",
-            "hazards",
-        ),
-    )
+@dataclass(frozen=True)
+class _Site:
+    ground: Any
+    ground_name: str
+    supports: tuple[Support, ...]
+    hazards: tuple[PowerLine | Path, ...]
+
+
+def _site(value: Any) -> _Site:
+    site = require_mapping(value, "site")
+    check_keys(site, "site", SITE_FIELDS)
     if "ground" not in site:
         raise InputError(
             "site.ground",
             "required: a ground preset name or {relative_permittivity, conductivity_s_m}",
         )
-    ground, ground_name = _ground(site["ground"])
-    supports = parse_supports(site.get("supports", []), "site.supports")
-    try:
-        from fieldkit.safety import parse_hazards
-    except ImportError:
-        array(site.get("hazards", []), "site.hazards")
-    else:
-        parse_hazards(site.get("hazards", []), "site.hazards")
-    chans = array(obj["channels_mhz"], "channels_mhz", min_items=1, max_items=12)
-    channels = []
-    for i, c in enumerate(chans):
-        f = number(
+    ground, name = _ground(site["ground"])
+    supports = tuple(parse_supports(site.get("supports", []), "site.supports"))
+    hazards = tuple(parse_hazards(site.get("hazards", []), "site.hazards"))
+    return _Site(ground, name, supports, hazards)
+
+
+def _channels(value: Any) -> tuple[float, ...]:
+    chans = array(value, "channels_mhz", min_items=1, max_items=MAX_CHANNELS)
+    channels = tuple(
+        number(
             c, join("channels_mhz", i), unit="MHz", minimum=MIN_CHANNEL_MHZ, maximum=MAX_CHANNEL_MHZ
         )
-        channels.append(f * 1e6)
+        * 1e6
+        for i, c in enumerate(chans)
+    )
     if len(set(channels)) != len(channels):
         raise InputError("channels_mhz", "each channel once, please")
+    return channels
+
+
+def _form(obj: Mapping[str, Any], channels: tuple[float, ...]) -> str:
     form = choice(obj.get("form", "auto"), "form", FORMS)
     if form == "linked" and len(channels) < 2:
         raise InputError("channels_mhz", "a linked dipole needs at least two channels")
+    return form
 
-    kit_obj = require_mapping(obj["kit"], "kit")
-    check_keys(
-        kit_obj,
-        "kit",
-        (
-            "wire",
-            "coax",
-            "feedpoint_mass_kg",
-            "masts",
-            "rope",
-            "throw_lines",
-            "tension_n",
-            "wrap_allowance_m",
-            "note",
-        ),
+
+def _utc_hours(value: Any, field: str) -> float:
+    """A schedule time "HH:MM" (UTC, 00:00-24:00) -> hours after midnight."""
+    ok = isinstance(value, str) and len(value) == 5 and value[2] == ":"
+    if ok and value[:2].isdigit() and value[3:].isdigit():
+        h, m = int(value[:2]), int(value[3:])
+        if (h < 24 and m < 60) or (h == 24 and m == 0):
+            return h + m / 60.0
+    raise InputError(field, f'expected a UTC time "HH:MM" from 00:00 to 24:00, got {value!r}')
+
+
+def _schedule(value: Any) -> PlanSchedule | None:
+    if value is None:
+        return None
+    sched = require_mapping(value, "schedule")
+    check_keys(sched, "schedule", SCHEDULE_FIELDS)
+    hours = {k: _utc_hours(sched[k], join("schedule", k)) for k in SCHEDULE_FIELDS if k in sched}
+    return PlanSchedule(
+        sched.get("start_utc"), sched.get("end_utc"), hours.get("start_utc"), hours.get("end_utc")
     )
-    if "wire" not in kit_obj:
-        raise InputError(
-            "kit.wire", "required: the antenna wire (diameter_mm, conductor, insulation)"
-        )
-    if "coax" not in kit_obj:
-        raise InputError("kit.coax", "required: coax class and length_m, or explicit loss and mass")
-    wire = parse_wire(kit_obj["wire"], "kit.wire")
-    coax = parse_coax(kit_obj["coax"], "kit.coax")
-    masts = parse_masts(kit_obj.get("masts", []), "kit.masts")
-    if "feedpoint_mass_kg" not in kit_obj:
-        raise InputError(
-            "kit.feedpoint_mass_kg", "required: balun (or centre insulator) mass in kg"
-        )
-    balun = number(
-        kit_obj["feedpoint_mass_kg"], "kit.feedpoint_mass_kg", unit="kg", minimum=0, maximum=10
-    )
-    if "tension_n" in kit_obj:
-        tension = number(kit_obj["tension_n"], "kit.tension_n", unit="N", minimum=5, maximum=2000)
-    else:
-        tension = DEFAULT_TENSION_N
-        warnings.append(
-            f"kit.tension_n not given: planned for {DEFAULT_TENSION_N:g} N, a firm hand pull"
-        )
-    rope_len = None
-    rope_w = (
-        ROPE_PACKED_DENSITY_KG_M3 * 3.141592653589793 * (DEFAULT_ROPE_DIAMETER_MM * 1e-3 / 2) ** 2
-    )
-    if "rope" in kit_obj:
-        rope = require_mapping(kit_obj["rope"], "kit.rope")
-        check_keys(rope, "kit.rope", ("length_m", "diameter_mm", "mass_kg_per_m", "note"))
-        if "length_m" in rope:
-            rope_len = number(
-                rope["length_m"], "kit.rope.length_m", unit="m", minimum=1, maximum=2000
-            )
-        if "mass_kg_per_m" in rope:
-            rope_w = number(
-                rope["mass_kg_per_m"], "kit.rope.mass_kg_per_m", unit="kg/m", minimum=0, maximum=1
-            )
-        elif "diameter_mm" in rope:
-            d = number(
-                rope["diameter_mm"], "kit.rope.diameter_mm", unit="mm", minimum=1, maximum=30
-            )
-            rope_w = ROPE_PACKED_DENSITY_KG_M3 * 3.141592653589793 * (d * 1e-3 / 2) ** 2
-    if rope_len is None:
-        warnings.append("kit.rope.length_m not given: rope length is not checked")
-    if "throw_lines" in kit_obj:
-        array(kit_obj["throw_lines"], "kit.throw_lines")
-    wrap = WRAP_ALLOWANCE_M
-    if "wrap_allowance_m" in kit_obj:
-        wrap = number(
-            kit_obj["wrap_allowance_m"], "kit.wrap_allowance_m", unit="m", minimum=0, maximum=1
-        )
-    g = STANDARD_GRAVITY_M_S2
-    mech = Mechanics(
-        wire_weight_n_per_m=wire.mass_kg_per_m * g,
-        rope_weight_n_per_m=rope_w * g,
-        balun_n=balun * g,
-        coax_weight_n_per_m=coax.mass_kg_per_m * g,
-        coax_length_m=coax.length_m,
-        tension_n=tension,
-    )
-    kit = Kit(
-        wire=wire,
-        mech=mech,
-        coax=coax,
-        rope_length_m=rope_len,
-        wrap_allowance_m=wrap,
-        ground=ground,
-        ground_name=ground_name,
-    )
-    try:
-        from fieldkit.safety import parse_radio
-    except ImportError:
-        require_mapping(obj["radio"], "radio")
-    else:
-        parse_radio(obj["radio"], "radio")
-    limit_set = obj.get("limit_set", "fcc-uncontrolled")
-    try:
-        from fieldkit.safety import parse_limit_set
-    except ImportError:
-        pass
-    else:
-        limit_set = parse_limit_set(limit_set, "limit_set")
-    if obj.get("sky") is not None:
-        require_mapping(obj["sky"], "sky")
-    if obj.get("schedule") is not None:
-        sched = require_mapping(obj["schedule"], "schedule")
-        check_keys(sched, "schedule", ("start_utc", "end_utc"))
-        for key in ("start_utc", "end_utc"):
-            if key in sched:
-                _parse_utc_time(sched[key], join("schedule", key))
+
+
+def _usable(supports: tuple[Support, ...]) -> tuple[tuple[float, float], list[str]]:
+    """Where a centre mast stands, and the warnings about unsafe supports.
+
+    Raises
+    ------
+    fieldkit.errors.InputError
+        When more supports are usable than a plan works out at once.
+    """
     safe = [s for s in supports if not s.unsafe]
     if len(safe) > MAX_USABLE_SUPPORTS:
         raise InputError(
@@ -234,81 +231,99 @@ def parse_plan(spec: Any) -> PlanInput:
     mast_xy = (0.0, 0.0)
     if safe:
         mast_xy = (sum(s.x_m for s in safe) / len(safe), sum(s.y_m for s in safe) / len(safe))
-    for s in supports:
-        if s.unsafe:
-            warnings.append(f"{s.id} is marked unsafe and is not used")
-    return PlanInput(
-        name=obj.get("name"),
-        supports=supports,
-        masts=masts,
-        channels_hz=channels,
-        form=form,
-        kit=kit,
-        mast_xy=mast_xy,
-        limit_set=limit_set,
-        retrim=_parse_retrim(obj.get("retrim"), channels),
-        warnings=warnings,
+    return mast_xy, [f"{s.id} is marked unsafe and is not used" for s in supports if s.unsafe]
+
+
+def _retrim_number(obj: Mapping[str, Any], key: str, unit: str, lo: float, hi: float) -> float:
+    return number(obj[key], join("retrim", key), unit=unit, minimum=lo, maximum=hi)
+
+
+def _retrim_reading(obj: Mapping[str, Any]) -> dict[str, float]:
+    """The measured dip, or the analyser's R + jX at a frequency."""
+    if "dip_mhz" in obj:
+        return {"dip_hz": _retrim_number(obj, "dip_mhz", "MHz", 1.0, 40) * 1e6}
+    if "at_mhz" in obj and "x_ohm" in obj:
+        out = {
+            "at_hz": _retrim_number(obj, "at_mhz", "MHz", 1.0, 40) * 1e6,
+            "x_ohm": _retrim_number(obj, "x_ohm", "ohm", -5000, 5000),
+        }
+        if "r_ohm" in obj:
+            out["r_ohm"] = _retrim_number(obj, "r_ohm", "ohm", 0, 5000)
+        return out
+    raise InputError(
+        "retrim.dip_mhz", "give the measured SWR dip (dip_mhz), or at_mhz with r_ohm and x_ohm"
     )
 
 
-def _parse_retrim(value: Any, channels: list[float]) -> dict[str, Any] | None:
-    """``{"frequency_mhz": target, "form"?, "leg_now_m"?, "dip_mhz"}`` or ``{..., "at_mhz", "r_ohm", "x_ohm"}``."""
+def _retrim(value: Any, channels: tuple[float, ...]) -> Retrim | None:
+    """``{"frequency_mhz", "form"?, "leg_now_m"?, "dip_mhz"}`` or ``{..., "at_mhz", "r_ohm", "x_ohm"}``."""
     if value is None:
         return None
-    f = "retrim"
-    obj = require_mapping(value, f)
-    check_keys(
-        obj, f, ("frequency_mhz", "form", "leg_now_m", "dip_mhz", "at_mhz", "r_ohm", "x_ohm")
-    )
+    obj = require_mapping(value, "retrim")
+    check_keys(obj, "retrim", RETRIM_FIELDS)
     if "frequency_mhz" not in obj:
-        raise InputError(join(f, "frequency_mhz"), "required: the channel to re-trim for")
-    target = (
-        number(
-            obj["frequency_mhz"],
-            join(f, "frequency_mhz"),
-            unit="MHz",
-            minimum=MIN_CHANNEL_MHZ,
-            maximum=MAX_CHANNEL_MHZ,
-        )
-        * 1e6
-    )
+        raise InputError("retrim.frequency_mhz", "required: the channel to re-trim for")
+    target = _retrim_number(obj, "frequency_mhz", "MHz", MIN_CHANNEL_MHZ, MAX_CHANNEL_MHZ) * 1e6
     if all(abs(target - c) > 1.0 for c in channels):
-        raise InputError(join(f, "frequency_mhz"), "expected one of channels_mhz")
-    out: dict[str, Any] = {"target_hz": target}
-    if "form" in obj:
-        out["form"] = choice(obj["form"], join(f, "form"), ("flat", "sloping", "inverted-v"))
-    if "leg_now_m" in obj:
-        out["leg_now_m"] = number(
-            obj["leg_now_m"], join(f, "leg_now_m"), unit="m", minimum=0.5, maximum=200
-        )
-    if "dip_mhz" in obj:
-        out["dip_hz"] = (
-            number(obj["dip_mhz"], join(f, "dip_mhz"), unit="MHz", minimum=1.0, maximum=40) * 1e6
-        )
-    elif "at_mhz" in obj and "x_ohm" in obj:
-        out["at_hz"] = (
-            number(obj["at_mhz"], join(f, "at_mhz"), unit="MHz", minimum=1.0, maximum=40) * 1e6
-        )
-        out["x_ohm"] = number(
-            obj["x_ohm"], join(f, "x_ohm"), unit="ohm", minimum=-5000, maximum=5000
-        )
-        if "r_ohm" in obj:
-            out["r_ohm"] = number(
-                obj["r_ohm"], join(f, "r_ohm"), unit="ohm", minimum=0, maximum=5000
-            )
-    else:
-        raise InputError(
-            join(f, "dip_mhz"),
-            "give the measured SWR dip (dip_mhz), or at_mhz with r_ohm and x_ohm",
-        )
-    return out
+        raise InputError("retrim.frequency_mhz", "expected one of channels_mhz")
+    form = choice(obj["form"], "retrim.form", RETRIM_FORMS) if "form" in obj else None
+    leg = _retrim_number(obj, "leg_now_m", "m", 0.5, 200) if "leg_now_m" in obj else None
+    return Retrim(target, form, leg, **_retrim_reading(obj))
 
 
-def _parse_utc_time(value: Any, field: str) -> int:
-    """A schedule time "HH:MM" (UTC, 00:00-24:00) -> minutes after midnight."""
-    ok = isinstance(value, str) and len(value) == 5 and value[2] == ":"
-    if ok and value[:2].isdigit() and value[3:].isdigit():
-        h, m = int(value[:2]), int(value[3:])
-        if (h < 24 and m < 60) or (h == 24 and m == 0):
-            return h * 60 + m
-    raise InputError(field, f'expected a UTC time "HH:MM" from 00:00 to 24:00, got {value!r}')
+def _sky(value: Any, channels: tuple[float, ...], schedule: PlanSchedule | None) -> SkySpec | None:
+    """The sky block, decoded by the sky layer on the plan's channels (and window, unless the block
+    has its own); its errors are named under ``sky``."""
+    if value is None:
+        return None
+    sky = dict(require_mapping(value, "sky"))
+    sky["channels_mhz"] = [round(f / 1e6, 6) for f in channels]
+    try:
+        parsed = parse_sky_spec(sky)
+    except InputError as e:
+        raise InputError(join("sky", e.field), e.detail, value=e.value) from None
+    if schedule is not None and "schedule" not in sky:
+        parsed = replace(parsed, schedule=schedule.for_sky())
+    return parsed
+
+
+def parse_plan(spec: Any) -> PlanInput:
+    """Decode and check a `fieldkit plan` input (ARCHITECTURE.md), once.
+
+    Raises
+    ------
+    fieldkit.errors.InputError
+        Naming the first bad field and what is expected.
+    """
+    obj = require_mapping(spec, "")
+    check_keys(obj, "", PLAN_FIELDS)
+    for key in PLAN_REQUIRED:
+        if key not in obj:
+            raise InputError(key, "required")
+    site = _site(obj["site"])
+    channels = _channels(obj["channels_mhz"])
+    form = _form(obj, channels)
+    kit = parse_kit(obj["kit"], ground=site.ground, ground_name=site.ground_name)
+    radio = parse_radio(obj["radio"], "radio")
+    limit_set = parse_limit_set(obj.get("limit_set", DEFAULT_LIMIT_SET), "limit_set")
+    if obj.get("sky") is not None:
+        require_mapping(obj["sky"], "sky")
+    schedule = _schedule(obj.get("schedule"))
+    mast_xy, unsafe_words = _usable(site.supports)
+    retrim = _retrim(obj.get("retrim"), channels)
+    return PlanInput(
+        name=obj.get("name"),
+        supports=site.supports,
+        hazards=site.hazards,
+        masts=kit.masts,
+        channels_hz=channels,
+        form=form,
+        kit=kit.kit,
+        mast_xy=mast_xy,
+        radio=radio,
+        limit_set=limit_set,
+        sky=_sky(obj.get("sky"), channels, schedule),
+        schedule=schedule,
+        retrim=retrim,
+        warnings=(*kit.warnings, *unsafe_words),
+    )

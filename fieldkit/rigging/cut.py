@@ -71,11 +71,13 @@ class EngineCounter:
     are counted.
     """
 
-    def __init__(self) -> None:
+    def __init__(self, on_solve: Callable[[], None] | None = None) -> None:
         self.calls = 0
         self.frequencies = 0
         self.reused = 0
         self._store: dict[tuple, Any] = {}
+        #: called before every real solve (the plan's progress report; it may raise to stop)
+        self.on_solve = on_solve
 
     @staticmethod
     def _key(hung: HungDipole, wire: KitWire, ground) -> tuple:
@@ -91,6 +93,8 @@ class EngineCounter:
         todo = [f for f in dict.fromkeys(freqs) if (key, f) not in self._store]
         self.reused += len(freqs) - len(todo)
         if todo:
+            if self.on_solve is not None:
+                self.on_solve()
             self.calls += 1
             self.frequencies += len(todo)
             try:
@@ -226,20 +230,78 @@ CURVE_OFFSETS = (-0.04, 0.04)
 CURVE_STEP_FRACTION = 0.005  # spacing of the reported curve points
 
 
-def swr_curve(res: Resonance, *, engine: EngineCounter, wire: KitWire, ground) -> dict[str, Any]:
-    """SWR from −4 % to +4 % around the channel at the cut length, and the 2:1 bandwidth [kHz].
+@dataclass(frozen=True)
+class SwrCurve:
+    """SWR around the channel at the cut length and its 2:1 band.
+
+    Attributes
+    ----------
+    points : (frequency [Hz], SWR, solved by the engine) from −4 % to +4 %
+    band_hz : (low, high) edges where SWR ≤ 2 [Hz], or None when it never falls to 2
+    band_at_edge : the band reaches the end of the curve (it is at least this wide)
+    span_fraction : half-width of the curve as a fraction of the channel
+    """
+
+    points: tuple[tuple[float, float, bool], ...]
+    band_hz: tuple[float, float] | None
+    band_at_edge: bool
+    span_fraction: float
+
+    @property
+    def width_khz(self) -> float:
+        """The 2:1 bandwidth as shown (0.1 kHz) [kHz]."""
+        if self.band_hz is None:
+            return 0.0
+        return round((self.band_hz[1] - self.band_hz[0]) / 1e3, 1)
+
+    def to_json(self) -> dict[str, Any]:
+        points = [
+            {"frequency_mhz": round(f / 1e6, 5), "swr": round(v, 3), "solved": solved}
+            for f, v, solved in self.points
+        ]
+        return {"points": points, "bandwidth_2to1": self._band_json()}
+
+    def _band_json(self) -> dict[str, Any]:
+        if self.band_hz is None:
+            return {
+                "low_mhz": None,
+                "high_mhz": None,
+                "width_khz": 0.0,
+                "note": "SWR never falls to 2 near the channel",
+            }
+        lo, hi = self.band_hz
+        bw: dict[str, Any] = {
+            "low_mhz": round(lo / 1e6, 4),
+            "high_mhz": round(hi / 1e6, 4),
+            "width_khz": self.width_khz,
+        }
+        if self.band_at_edge:
+            bw["note"] = (
+                f"SWR stays under 2 beyond ±{self.span_fraction * 100:.0f} %: the width is at least this"
+            )
+        return bw
+
+
+def _curve_solutions(res: Resonance, *, engine: EngineCounter, wire: KitWire, ground) -> list:
+    """The four solves of the curve: the resonance's two (channel, +1 %) and −4 %, +4 %."""
+    f0 = res.solution.frequency_hz
+    have = [res.solution] + ([res.step_solution] if res.step_solution is not None else [])
+    want = [f0 * (1 + o) for o in CURVE_OFFSETS]
+    if res.step_solution is None:
+        want.append(f0 * (1 + STEP_FRACTION))
+    new = engine.solve(res.hung, wire, frequencies_hz=want, ground=ground)
+    return sorted([*new, *have], key=lambda s: s.frequency_hz)
+
+
+def swr_sweep(res: Resonance, *, engine: EngineCounter, wire: KitWire, ground) -> SwrCurve:
+    """SWR from −4 % to +4 % around the channel at the cut length, and the 2:1 band.
 
     Two engine solves (−4 %, +4 %) besides the two of the resonance search; the impedance in between
     is the cubic through the four (see ``CURVE_OFFSETS``). Points the engine solved say ``solved``.
     """
     f0 = res.solution.frequency_hz
     span_fraction = max(abs(o) for o in CURVE_OFFSETS)
-    have = [res.solution] + ([res.step_solution] if res.step_solution is not None else [])
-    want = [f0 * (1 + o) for o in CURVE_OFFSETS]
-    if res.step_solution is None:
-        want.append(f0 * (1 + STEP_FRACTION))
-    new = engine.solve(res.hung, wire, frequencies_hz=want, ground=ground)
-    sols = sorted([*new, *have], key=lambda s: s.frequency_hz)
+    sols = _curve_solutions(res, engine=engine, wire=wire, ground=ground)
     freqs = np.array([s.frequency_hz for s in sols])
     z = np.array([s.impedance_ohm for s in sols])
     x = freqs / f0 - 1
@@ -252,44 +314,26 @@ def swr_curve(res: Resonance, *, engine: EngineCounter, wire: KitWire, ground) -
         return (1 + g) / np.maximum(1 - g, 1e-12)
 
     fine = np.linspace(freqs[0], freqs[-1], 401)
-    swr_fine = swr_at(fine)
-    inside = swr_fine <= 2.0
+    inside = swr_at(fine) <= 2.0
+    band, edge = None, False
     if inside.any():
         idx = np.flatnonzero(inside)
-        lo, hi = float(fine[idx[0]]), float(fine[idx[-1]])
-        edge = idx[0] == 0 or idx[-1] == len(fine) - 1
-        bw = {
-            "low_mhz": round(lo / 1e6, 4),
-            "high_mhz": round(hi / 1e6, 4),
-            "width_khz": round((hi - lo) / 1e3, 1),
-        }
-        if edge:
-            bw["note"] = (
-                f"SWR stays under 2 beyond ±{span_fraction * 100:.0f} %: the width is at least this"
-            )
-    else:
-        bw = {
-            "low_mhz": None,
-            "high_mhz": None,
-            "width_khz": 0.0,
-            "note": "SWR never falls to 2 near the channel",
-        }
+        band = (float(fine[idx[0]]), float(fine[idx[-1]]))
+        edge = bool(idx[0] == 0 or idx[-1] == len(fine) - 1)
     grid = f0 * (1 + np.arange(-span_fraction, span_fraction + 1e-9, CURVE_STEP_FRACTION))
     solved = {round(float(f), 3): float(sol.swr) for f, sol in zip(freqs, sols, strict=True)}
-    points = []
     between = [f for f in grid if min(abs(f - g) for g in solved) > 1.0]
+    points = []
     for f in sorted([*(float(f) for f in between), *solved]):
         engine_swr = solved.get(f)
-        points.append(
-            {
-                "frequency_mhz": round(f / 1e6, 5),
-                "swr": round(
-                    engine_swr if engine_swr is not None else float(swr_at(np.array(f))), 3
-                ),
-                "solved": engine_swr is not None,
-            }
-        )
-    return {"points": points, "bandwidth_2to1": bw}
+        value = engine_swr if engine_swr is not None else float(swr_at(np.array(f)))
+        points.append((f, value, engine_swr is not None))
+    return SwrCurve(tuple(points), band, edge, span_fraction)
+
+
+def swr_curve(res: Resonance, *, engine: EngineCounter, wire: KitWire, ground) -> dict[str, Any]:
+    """:func:`swr_sweep` as the option's ``swr_curve`` JSON block."""
+    return swr_sweep(res, engine=engine, wire=wire, ground=ground).to_json()
 
 
 def bare_wire_leg_m(res: Resonance, *, engine: EngineCounter, wire: KitWire, ground) -> float:
@@ -324,6 +368,20 @@ def _rule_words(rule: float, leg: float, bare_leg: float | None) -> str:
     )
 
 
+def wire_needed_m(*, leg_m: float, wrap_allowance_m: float) -> tuple[float, float]:
+    """Wire for the cut list, and with the cut-long spare, both legs, as shown (mm) [m]."""
+    spare = CUT_LONG_FRACTION * leg_m
+    return (
+        round(2 * (leg_m + 2 * wrap_allowance_m), 3),
+        round(2 * (leg_m + 2 * wrap_allowance_m + spare), 3),
+    )
+
+
+def trim_cm_per_leg(res: Resonance, shift_hz: float) -> float:
+    """Leg change that moves the resonance by ``shift_hz``, as shown (mm) [cm]."""
+    return round(-shift_hz / res.dfres_dleg_hz_per_m * 100, 1)
+
+
 def cut_json(
     res: Resonance,
     *,
@@ -339,6 +397,7 @@ def cut_json(
     rule = rule_of_thumb_leg_m(frequency_hz)
     diff = (leg - rule) / rule * 100
     sens = res.dfres_dleg_hz_per_m  # Hz per metre, negative
+    total, with_spare = wire_needed_m(leg_m=leg, wrap_allowance_m=wrap)
 
     def step_cm(shift_hz: float) -> float:
         return round(-shift_hz / sens * 100, 1)
@@ -348,14 +407,14 @@ def cut_json(
         "wrap_allowance_m": wrap,
         "wrap_note": "per end of each leg: at the end insulator and at the feedpoint (common practice)",
         "cut_each_leg_m": round(leg + 2 * wrap, 3),
-        "total_wire_m": round(2 * (leg + 2 * wrap), 3),
+        "total_wire_m": total,
         "cut_long_m": round(spare, 3),
         "cut_long_advice": (
             f"cut each leg {spare * 100:.0f} cm long ({leg + 2 * wrap + spare:.2f} m) and fold the spare back at "
             "the end insulator: nearby trees, the real soil and the coax usually pull resonance a percent or "
             "two below any model, and wire cannot be added back in the field; trim after the first SWR check"
         ),
-        "cut_with_spare_total_m": round(2 * (leg + 2 * wrap + spare), 3),
+        "cut_with_spare_total_m": with_spare,
         "rule_of_thumb": {
             "leg_m": round(rule, 3),
             "rule": "143/f MHz metres per half-wave (468/f feet), common practice",

@@ -33,16 +33,11 @@ MIN_END_HEIGHT_M = 3.0
 
 def nvis_elevations_deg(step_deg: float = 3.0) -> np.ndarray:
     """Elevations from the take-off angle of a 300 km hop to the zenith [deg]."""
-    try:
-        from fieldkit.sky import elevation_deg
-    except ImportError:  # the sky layer is optional for rigging
-        low = 62.9  # ITU-R P.533 geometry, D = 300 km, h = 300 km (computed)
-    else:
-        low = float(
-            elevation_deg(
-                ground_range_km=NVIS_MAX_RANGE_KM, virtual_height_km=NVIS_VIRTUAL_HEIGHT_KM
-            )
-        )
+    from fieldkit.sky import elevation_deg
+
+    low = float(
+        elevation_deg(ground_range_km=NVIS_MAX_RANGE_KM, virtual_height_km=NVIS_VIRTUAL_HEIGHT_KM)
+    )
     n = max(int(np.ceil((90.0 - low) / step_deg)), 2) + 1
     return np.linspace(low, 90.0, n)
 

@@ -10,12 +10,14 @@ inside the trim the operator does at the links anyway.
 
 from __future__ import annotations
 
+from dataclasses import replace
 from typing import Any
 
 from fieldkit.rigging.cut import EngineCounter, resonate, swr_curve
 from fieldkit.rigging.hung import truncate_about_feed
 from fieldkit.rigging.layouts import Layout
-from fieldkit.rigging.options import Kit, Refusal, Warm, evaluate
+from fieldkit.rigging.options import Kit, Refusal, Refused, Warm, evaluate
+from fieldkit.rigging.rigged import LINKED_NOTE, LinkedWire, RiggedOption
 
 MAX_LINKED_LAYOUTS = 3  # longest spans first: a linked dipole is long
 
@@ -63,10 +65,21 @@ def link_sections(
     return [{"sections_m": sections}, *links]
 
 
+def _linked(rigged: RiggedOption, channels_hz: list[float], *, kit: Kit, engine) -> RiggedOption:
+    """The lowest channel's option with the link positions of the others."""
+    res = rigged.resonance
+    first, *links = link_sections(
+        res.hung, leg_full_m=res.leg_m, channels_hz=channels_hz, kit=kit, engine=engine
+    )
+    wire = LinkedWire(tuple(first["sections_m"]), tuple(links), tuple(channels_hz))
+    return replace(rigged, linked=wire, warnings=(*rigged.warnings, LINKED_NOTE))
+
+
 def linked_option(
     layouts: list[Layout], channels_hz: list[float], *, kit: Kit, engine: EngineCounter, warm: Warm
 ) -> dict[str, list]:
-    """Linked-dipole options on the longest flat spans."""
+    """Linked-dipole options on the longest flat spans: ``{"options": [RiggedOption], "refused":
+    [Refused]}``."""
     spans = sorted(
         (lay for lay in layouts if lay.form == "flat"), key=lambda lay: -(lay.span_m or 0)
     )
@@ -74,31 +87,8 @@ def linked_option(
     low = channels_hz[0]
     for lay in spans[:MAX_LINKED_LAYOUTS]:
         try:
-            opt = evaluate(lay, frequency_hz=low, kit=kit, engine=engine, warm=warm)
-            res = opt["_resonance"]
-            first, *links = link_sections(
-                res.hung, leg_full_m=res.leg_m, channels_hz=channels_hz, kit=kit, engine=engine
-            )
+            rigged = evaluate(lay, frequency_hz=low, kit=kit, engine=engine, warm=warm)
+            options.append(_linked(rigged, channels_hz, kit=kit, engine=engine))
         except Refusal as e:
-            refused.append(
-                {
-                    "form": "linked",
-                    "supports_used": list(lay.supports_used),
-                    "frequency_mhz": low / 1e6,
-                    "why": str(e),
-                }
-            )
-            continue
-        opt["form"] = "linked"
-        opt["links"] = links
-        opt["cut"]["sections_m"] = first["sections_m"]
-        opt["cut"]["sections_note"] = (
-            "per leg, feedpoint outward; add the wrap allowance at each link and the end insulator"
-        )
-        opt["channels_mhz"] = [round(f / 1e6, 6) for f in channels_hz]
-        opt["warnings"].append(
-            "with a link open, the wire beyond it still hangs there and lowers that channel's resonance by "
-            "about 0.3 % (NEC-2 check): check the SWR dip on each channel and trim at the links"
-        )
-        options.append(opt)
+            refused.append(Refused.of(lay, low, e, form="linked"))
     return {"options": options, "refused": refused}

@@ -68,6 +68,58 @@ def max_pull_for_mast(
     return max(spare, 0.0) / max(2 * apex_sin, 1e-3)
 
 
+@dataclass(frozen=True)
+class MastLoad:
+    """A kit mast carrying the apex: load against rating, guys [SI]."""
+
+    mast: Mast
+    apex_height_m: float
+    top_load_n: float
+    unbalance_n: float = 0.0
+
+    @property
+    def load_kg(self) -> float:
+        return self.top_load_n / STANDARD_GRAVITY_M_S2
+
+    @property
+    def ok(self) -> bool:
+        return (
+            self.load_kg <= self.mast.top_load_kg
+            and self.apex_height_m <= self.mast.height_m + 1e-9
+        )
+
+    @property
+    def why(self) -> str:
+        m, load_kg = self.mast, self.load_kg
+        why = (
+            f"top load {load_kg:.2f} kg within the {m.top_load_kg:g} kg rating"
+            if self.ok
+            else f"top load {load_kg:.2f} kg exceeds the {m.top_load_kg:g} kg rating: do not use {m.id}"
+        )
+        if m.guys < MIN_GUYS:
+            why += f"; {m.id} lists {m.guys} guys, use at least {MIN_GUYS}"
+        return why
+
+    def to_json(self) -> dict[str, Any]:
+        """The option's mast block."""
+        radius = GUY_RADIUS_FRACTION * self.apex_height_m
+        guy_angle = math.atan2(self.apex_height_m, radius)
+        # the guy on the pulled side takes the unbalance: T cos(angle) = unbalance
+        u = self.unbalance_n
+        guy_tension = u / math.cos(guy_angle) if u > 0 else 0.0
+        return {
+            "id": self.mast.id,
+            "height_m": round(self.apex_height_m, 2),
+            "top_load_kg": round(self.load_kg, 2),
+            "rating_kg": self.mast.top_load_kg,
+            "ok": self.ok,
+            "guys": max(self.mast.guys, MIN_GUYS),
+            "guy_radius_m": round(radius, 2),
+            "guy_tension_n": round(guy_tension, 1),
+            "why": self.why,
+        }
+
+
 def mast_json(
     mast: Mast, *, apex_height_m: float, top_load_n: float, unbalance_n: float = 0.0
 ) -> dict[str, Any]:
@@ -79,27 +131,4 @@ def mast_json(
     top_load_n : downward load at the mast head [N]
     unbalance_n : net horizontal pull at the head that the guys must hold [N]
     """
-    load_kg = top_load_n / STANDARD_GRAVITY_M_S2
-    ok = load_kg <= mast.top_load_kg and apex_height_m <= mast.height_m + 1e-9
-    radius = GUY_RADIUS_FRACTION * apex_height_m
-    guy_angle = math.atan2(apex_height_m, radius)
-    # the guy on the pulled side takes the unbalance: T cos(angle) = unbalance
-    guy_tension = unbalance_n / math.cos(guy_angle) if unbalance_n > 0 else 0.0
-    out = {
-        "id": mast.id,
-        "height_m": round(apex_height_m, 2),
-        "top_load_kg": round(load_kg, 2),
-        "rating_kg": mast.top_load_kg,
-        "ok": ok,
-        "guys": max(mast.guys, MIN_GUYS),
-        "guy_radius_m": round(radius, 2),
-        "guy_tension_n": round(guy_tension, 1),
-        "why": (
-            f"top load {load_kg:.2f} kg within the {mast.top_load_kg:g} kg rating"
-            if ok
-            else f"top load {load_kg:.2f} kg exceeds the {mast.top_load_kg:g} kg rating: do not use {mast.id}"
-        ),
-    }
-    if mast.guys < MIN_GUYS:
-        out["why"] += f"; {mast.id} lists {mast.guys} guys, use at least {MIN_GUYS}"
-    return out
+    return MastLoad(mast, apex_height_m, top_load_n, unbalance_n).to_json()

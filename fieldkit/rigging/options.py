@@ -14,7 +14,7 @@ from typing import Any
 
 import numpy as np
 
-from fieldkit.constants import SPEED_OF_LIGHT_M_S, STANDARD_GRAVITY_M_S2
+from fieldkit.constants import SPEED_OF_LIGHT_M_S
 from fieldkit.rigging.catenary import HangError
 from fieldkit.rigging.cut import (
     CURVE_OFFSETS,
@@ -22,24 +22,23 @@ from fieldkit.rigging.cut import (
     Resonance,
     ResonanceError,
     bare_wire_leg_m,
-    cut_json,
     resonate,
     rule_of_thumb_leg_m,
-    swr_curve,
+    swr_sweep,
+    wire_needed_m,
 )
-from fieldkit.rigging.feedline import Coax, feedline_json, total_loss_db
+from fieldkit.rigging.feedline import Coax, total_loss_db
 from fieldkit.rigging.heights import (
     MIN_END_HEIGHT_M,
     WITHIN_BEST_DB,
     HeightPoint,
     nvis_figure_dbi,
     recommend,
-    sweep_json,
 )
 from fieldkit.rigging.hung import HungDipole, recut
 from fieldkit.rigging.layouts import Layout, Mechanics
-from fieldkit.rigging.mast import mast_json
-from fieldkit.rigging.supports import halyard_rope_m
+from fieldkit.rigging.mast import MastLoad
+from fieldkit.rigging.rigged import RiggedOption, rope_needed_m
 from fieldkit.rigging.wire import KitWire
 
 # The insulated wire resonates a few percent shorter than bare wire; start the search there.
@@ -52,6 +51,28 @@ SCREEN_TOLERANCE = 5e-3
 
 class Refusal(Exception):
     """This layout cannot serve this channel; the message says why in plain words."""
+
+
+@dataclass(frozen=True)
+class Refused:
+    """A layout at a channel that cannot be done, and why (an entry of the plan's ``refused``)."""
+
+    form: str
+    supports_used: tuple[str, ...]
+    frequency_hz: float
+    why: str
+
+    @classmethod
+    def of(cls, layout: Layout, frequency_hz: float, e: Exception, form: str | None = None):
+        return cls(form or layout.form, tuple(layout.supports_used), frequency_hz, str(e))
+
+    def to_json(self) -> dict[str, Any]:
+        return {
+            "form": self.form,
+            "supports_used": list(self.supports_used),
+            "frequency_mhz": round(self.frequency_hz / 1e6, 6),
+            "why": self.why,
+        }
 
 
 @dataclass(frozen=True)
@@ -94,26 +115,18 @@ class Warm:
         return FIRST_GUESS_FRACTION * rule_of_thumb_leg_m(f), None
 
 
-def max_chord_m(frequency_hz: float) -> float | None:
+def max_chord_m(frequency_hz: float) -> float:
     """Longest polyline piece that the engine cuts into one segment at the highest frequency solved
-    for a channel (the top of the SWR curve) [m]; None when the engine does not say its segment rule."""
-    try:
-        from fieldkit.antenna.mesh import SEGMENTS_PER_WAVELENGTH
-    except ImportError:
-        return None
+    for a channel (the top of the SWR curve) [m]."""
+    from fieldkit.antenna.mesh import SEGMENTS_PER_WAVELENGTH
+
     f_top = frequency_hz * (1 + max(CURVE_OFFSETS))
     return SPEED_OF_LIGHT_M_S / f_top / SEGMENTS_PER_WAVELENGTH * (1 - 1e-3)
 
 
 def _build(layout: Layout, setting: dict[str, float], leg_m: float, f: float) -> HungDipole:
     """The layout hung at this leg, its polyline cut to the engine's segment length at channel f."""
-    hung = layout.build(setting, leg_m)
-    chord = max_chord_m(f)
-    return hung if chord is None else recut(hung, max_chord_m=chord)
-
-
-def _points(hung: HungDipole) -> list[list[float]]:
-    return [[round(float(v), 3) for v in p] for p in hung.points_m]
+    return recut(layout.build(setting, leg_m), max_chord_m=max_chord_m(f))
 
 
 def _resonate_at(
@@ -282,7 +295,7 @@ def _short_span_words(layout: Layout, f: float, warm: Warm) -> str | None:
 
 def evaluate(
     layout: Layout, *, frequency_hz: float, kit: Kit, engine: EngineCounter, warm: Warm
-) -> dict[str, Any]:
+) -> RiggedOption:
     """Screen and finish in one step (see :func:`screen` and :func:`finish`)."""
     return finish(
         screen(layout, frequency_hz=frequency_hz, kit=kit, engine=engine, warm=warm),
@@ -292,201 +305,135 @@ def evaluate(
     )
 
 
-def finish(sc: Screened, *, kit: Kit, engine: EngineCounter, warm: Warm) -> dict[str, Any]:
-    """The option (without its safety block): exact resonance at the chosen heights, cut list, SWR curve,
-    mast, feedline, loads and warnings.
+def _leg_guess(sc: Screened, warm: Warm) -> float:
+    """A Newton step from the screening solve at the chosen heights (its X and the known slopes),
+    so that the first engine call of the exact search usually lands within tolerance [m]."""
+    f, p = sc.frequency_hz, sc.points[sc.pick]
+    slope, (_, sens) = warm.slope(f), warm.guess(f)
+    if slope and sens and np.isfinite(p.reactance_ohm):
+        fr = f - p.reactance_ohm / slope
+        step = (f - fr) / sens
+        if abs(step) < 0.05 * sc.leg_m:
+            return sc.leg_m + step
+    return sc.leg_m
+
+
+def _bare_leg_m(res: Resonance, *, kit: Kit, engine: EngineCounter, warm: Warm) -> float | None:
+    """The leg a bare wire would need, for the jacket's share of the 143/f difference [m].
+
+    The jacket's share of the length hardly depends on the hang or the channel (it goes with ln(b/a)
+    against ln(wavelength/a)): one bare-wire solve, on the first option worked out.
+    """
+    if kit.wire.insulation_thickness_m <= 0:
+        return None
+    if not warm.jacket_ratio:
+        f = res.solution.frequency_hz
+        try:
+            bare = bare_wire_leg_m(res, engine=engine, wire=kit.wire, ground=kit.ground)
+            warm.jacket_ratio[f] = res.leg_m / bare
+        except ResonanceError:
+            warm.jacket_ratio[f] = None
+    ratio = next(iter(warm.jacket_ratio.values()))
+    return res.leg_m / ratio if ratio else None
+
+
+def _spool_words(res: Resonance, f: float, kit: Kit) -> list[str]:
+    """A warning when the spool covers the cut list but not the spare.
+
+    Raises
+    ------
+    Refusal
+        When the spool does not hold the cut list.
+    """
+    spool = kit.wire.spool_m
+    if spool is None:
+        return []
+    need, spare_need = wire_needed_m(leg_m=res.leg_m, wrap_allowance_m=kit.wrap_allowance_m)
+    if need > spool:
+        raise Refusal(
+            f"wire spool too short: the {f / 1e6:g} MHz dipole needs {need:.1f} m of wire "
+            f"({spare_need:.1f} m cut long) but the spool holds {spool:g} m"
+        )
+    if spare_need > spool:
+        return [
+            f"the spool ({spool:g} m) covers the cut list ({need:.1f} m) but not the cut-long spare "
+            f"({spare_need:.1f} m): cut to the list and trim carefully"
+        ]
+    return []
+
+
+def _rope_words(layout: Layout, hung: HungDipole, chosen: dict[str, float], kit: Kit) -> list[str]:
+    need = round(rope_needed_m(layout, hung, chosen), 1)
+    if not need or kit.rope_length_m is None or need <= kit.rope_length_m:
+        return []
+    return [
+        f"rope short: this hang needs about {need:.0f} m of rope "
+        f"({'halyards' if layout.mast is None else 'stake ropes'}), the kit has {kit.rope_length_m:g} m: "
+        "use the throw lines for the tie-offs or add rope"
+    ]
+
+
+def _droop_words(layout: Layout, res: Resonance, f: float) -> list[str]:
+    if layout.span_m is None or res.hung.tail_m <= 0:
+        return []
+    a, b = layout.supports_used
+    return [
+        f"{layout.span_m:.0f} m between {a} and {b}; a "
+        f"{f / 1e6:g} MHz dipole needs about {2 * res.leg_m:.0f} m: the ends droop toward stakes as modelled, "
+        "or use an inverted-V on a mast, or choose a higher channel"
+    ]
+
+
+def _mast_load(layout: Layout, hung: HungDipole) -> MastLoad | None:
+    """The centre mast's load.
+
+    Raises
+    ------
+    Refusal
+        When the mast cannot carry it.
+    """
+    if layout.mast is None:
+        return None
+    load = MastLoad(layout.mast, hung.feedpoint_height_m, hung.top_load_n)
+    if not load.ok:
+        raise Refusal(load.why)
+    return load
+
+
+def finish(sc: Screened, *, kit: Kit, engine: EngineCounter, warm: Warm) -> RiggedOption:
+    """The option (without its safety findings): exact resonance at the chosen heights, cut list,
+    SWR curve, mast, feedline, loads and warnings.
 
     Raises
     ------
     Refusal
         When the spool is short or the mast is too weak.
     """
-    layout, f, chosen, points, pick, why = (
-        sc.layout,
-        sc.frequency_hz,
-        sc.chosen,
-        sc.points,
-        sc.pick,
-        sc.why,
-    )
-    spool = kit.wire.spool_m
-    # Newton step from the screening solve at the chosen heights (its X and the known slopes), so
-    # that the first engine call of the search usually lands within tolerance
-    guess = sc.leg_m
-    p = points[pick]
-    slope, (_, sens) = warm.slope(f), warm.guess(f)
-    if slope and sens and np.isfinite(p.reactance_ohm):
-        fr = f - p.reactance_ohm / slope
-        step = (f - fr) / sens
-        if abs(step) < 0.05 * guess:
-            guess = sc.leg_m + step
-    res = _resonate_at(layout, chosen, f, kit, engine, warm, leg_guess_m=guess)
-    sol, hung = res.solution, res.hung
-    curve = swr_curve(res, engine=engine, wire=kit.wire, ground=kit.ground)
-    bare_leg = None
-    if kit.wire.insulation_thickness_m > 0:
-        # the jacket's share of the length hardly depends on the hang or the channel (it goes with
-        # ln(b/a) against ln(wavelength/a)): one bare-wire solve, on the first option worked out
-        if not warm.jacket_ratio:
-            try:
-                bare = bare_wire_leg_m(res, engine=engine, wire=kit.wire, ground=kit.ground)
-                warm.jacket_ratio[f] = res.leg_m / bare
-            except ResonanceError:
-                warm.jacket_ratio[f] = None
-        ratio = next(iter(warm.jacket_ratio.values()))
-        if ratio:
-            bare_leg = res.leg_m / ratio
-    cut = cut_json(
-        res,
-        frequency_hz=f,
-        wire=kit.wire,
-        wrap_allowance_m=kit.wrap_allowance_m,
-        bare_leg_m=bare_leg,
-    )
-    warnings: list[str] = list(hung.notes) + list(layout.notes)
-    if spool is not None:
-        need, spare_need = cut["total_wire_m"], cut["cut_with_spare_total_m"]
-        if need > spool:
-            raise Refusal(
-                f"wire spool too short: the {f / 1e6:g} MHz dipole needs {need:.1f} m of wire "
-                f"({spare_need:.1f} m cut long) but the spool holds {spool:g} m"
-            )
-        if spare_need > spool:
-            warnings.append(
-                f"the spool ({spool:g} m) covers the cut list ({need:.1f} m) but not the cut-long spare "
-                f"({spare_need:.1f} m): cut to the list and trim carefully"
-            )
-    rig = _rigging_json(layout, hung, chosen, kit)
-    if (
-        rig.get("rope_needed_m")
-        and kit.rope_length_m is not None
-        and rig["rope_needed_m"] > kit.rope_length_m
-    ):
-        warnings.append(
-            f"rope short: this hang needs about {rig['rope_needed_m']:.0f} m of rope "
-            f"({'halyards' if layout.mast is None else 'stake ropes'}), the kit has {kit.rope_length_m:g} m: "
-            "use the throw lines for the tie-offs or add rope"
-        )
-    if layout.span_m is not None and hung.tail_m > 0:
-        need = 2 * res.leg_m
-        warnings.insert(
-            0,
-            f"{layout.span_m:.0f} m between {layout.supports_used[0]} and {layout.supports_used[1]}; a "
-            f"{f / 1e6:g} MHz dipole needs about {need:.0f} m: the ends droop toward stakes as modelled, "
-            "or use an inverted-V on a mast, or choose a higher channel",
-        )
-    mast = None
-    if layout.mast is not None:
-        mast = mast_json(
-            layout.mast, apex_height_m=hung.feedpoint_height_m, top_load_n=hung.top_load_n
-        )
-        mast["x_m"], mast["y_m"] = layout.mast_xy
-        if not mast["ok"]:
-            raise Refusal(mast["why"])
-    swr = float(sol.swr)
-    feed = feedline_json(kit.coax, frequency_hz=f, swr=swr)
-    nvis = points[pick].nvis_dbi
-    if curve["bandwidth_2to1"]["width_khz"] == 0.0:
+    layout, f = sc.layout, sc.frequency_hz
+    res = _resonate_at(layout, sc.chosen, f, kit, engine, warm, leg_guess_m=_leg_guess(sc, warm))
+    curve = swr_sweep(res, engine=engine, wire=kit.wire, ground=kit.ground)
+    bare_leg = _bare_leg_m(res, kit=kit, engine=engine, warm=warm)
+    hung = res.hung
+    warnings = [*hung.notes, *layout.notes, *_spool_words(res, f, kit)]
+    warnings += _rope_words(layout, hung, sc.chosen, kit)
+    warnings = _droop_words(layout, res, f) + warnings
+    mast = _mast_load(layout, hung)
+    swr = float(res.solution.swr)
+    loss = total_loss_db(matched_loss_db=kit.coax.matched_loss_db(f), swr=swr)
+    if curve.width_khz == 0.0:
         warnings.append(
             "SWR stays above 2 near the channel: use a tuner or matching at the feedpoint"
         )
-    lam = SPEED_OF_LIGHT_M_S / f
-    option = {
-        "form": layout.form,
-        "frequency_mhz": round(f / 1e6, 6),
-        "supports_used": list(layout.supports_used),
-        "rope_heights_m": {k: round(v, 2) for k, v in chosen.items() if k != "ends"},
-        "end_heights_m": [round(h, 2) for h in hung.end_heights_m],
-        "hung_wire_m": _points(hung),
-        "feed_distance_m": round(hung.feed_distance_m, 3),
-        "wire": kit.wire.to_json(),
-        "cut": cut,
-        "feedpoint_height_m": round(hung.feedpoint_height_m, 2),
-        "feedpoint_height_wavelengths": round(hung.feedpoint_height_m / lam, 3),
-        "sag_m": round(hung.sag_m, 2),
-        "impedance_ohm": {
-            "r": round(sol.impedance_ohm.real, 2),
-            "x": round(sol.impedance_ohm.imag, 2),
-        },
-        "swr": round(swr, 3),
-        "swr_curve": curve,
-        "nvis": {
-            "mean_gain_dbi": round(nvis, 2),
-            "zenith_gain_dbi": round(float(sol.zenith_gain_dbi), 2),
-            "max_gain_dbi": round(float(sol.max_gain_dbi), 2),
-            "max_gain_elevation_deg": round(float(sol.max_gain_elevation_deg), 1),
-            "beamwidth_deg": {k: round(float(v), 1) for k, v in sol.beamwidth_deg().items()},
-            "radiation_efficiency": round(float(sol.radiation_efficiency), 3),
-            "figure": "mean gain over the elevations that serve 0–300 km (take-off angle to zenith)",
-        },
-        "height_sweep": sweep_json(points),
-        "height_choice": why,
-        "mast": mast,
-        "feedline": feed,
-        "rigging": rig,
-        "warnings": warnings,
-        "score_db": round(nvis - feed["total_loss_db"], 2),
-    }
-    if layout.form == "inverted-v":
-        option["apex_angle_deg"] = round(hung.apex_angle_deg, 1)
-    option["_resonance"] = res
-    return option
-
-
-def _rigging_json(
-    layout: Layout, hung: HungDipole, setting: dict[str, float], kit: Kit
-) -> dict[str, Any]:
-    """Loads and rope: tension, support loads, halyard rope per support, stakes."""
-    g = STANDARD_GRAVITY_M_S2
-    out: dict[str, Any] = {
-        "tension_n": round(max(hung.end_tension_n), 1),
-        "horizontal_tension_n": round(hung.horizontal_tension_n, 1),
-        "feedpoint_load_kg": round(kit.mech.feed_load_n(hung.feedpoint_height_m) / g, 3),
-    }
-    if layout.form == "inverted-v":
-        end = setting["ends"]
-        rope_each = math.hypot(hung.stake_distance_m - _reach(hung), end) + 1.5
-        out.update(
-            {
-                "stake_distance_m": round(hung.stake_distance_m, 1),
-                "end_rope_m": round(rope_each, 1),
-                "rope_needed_m": round(2 * rope_each, 1),
-                "top_load_kg": round(hung.top_load_n / g, 3),
-            }
-        )
-        if layout.mast is None:  # apex hauled up over a branch on its own halyard
-            apex_rope = halyard_rope_m(rope_height_m=hung.feedpoint_height_m, span_rope_m=0.0)
-            out["apex_halyard_rope_m"] = round(apex_rope, 1)
-            out["rope_needed_m"] = round(2 * rope_each + apex_rope, 1)
-        if hung.end_tension_n[0] < kit.mech.tension_n - 1e-6:
-            out["note"] = (
-                f"pull the ends to only {hung.end_tension_n[0]:.0f} N (not {kit.mech.tension_n:g} N) so the "
-                "mast head stays within its rating"
-            )
-        return out
-    supports = {}
-    total = 0.0
-    for i, sid in enumerate(layout.supports_used):
-        t = hung.end_tension_n[i]
-        v = hung.support_vertical_n[i]
-        rope = halyard_rope_m(rope_height_m=setting[sid], span_rope_m=hung.span_rope_m[i])
-        total += rope
-        # the branch carries the span pull and the downhaul along the trunk (tension t both ways)
-        branch = math.hypot(hung.horizontal_tension_n, v + t)
-        supports[sid] = {
-            "rope_tension_n": round(t, 1),
-            "branch_load_n": round(branch, 1),
-            "span_rope_m": round(hung.span_rope_m[i], 2),
-            "halyard_rope_m": round(rope, 1),
-        }
-    out["supports"] = supports
-    out["rope_needed_m"] = round(total, 1)
-    if hung.tail_m > 0:
-        out["droop_tail_m"] = round(hung.tail_m, 2)
-    return out
-
-
-def _reach(hung: HungDipole) -> float:
-    p = np.asarray(hung.points_m)
-    c = p[len(p) // 2]
-    return float(np.hypot(*(p[-1, :2] - c[:2])))
+    return RiggedOption(
+        layout=layout,
+        frequency_hz=f,
+        points=sc.points,
+        pick=sc.pick,
+        why=sc.why,
+        resonance=res,
+        bare_leg_m=bare_leg,
+        swr_curve=curve,
+        mast=mast,
+        feed_loss_db=loss,
+        warnings=tuple(warnings),
+    )

@@ -1,73 +1,29 @@
 """Supports on the site sketch, and the measuring helpers used on the spot.
 
-A support is anything that can hold a rope end at a usable rope height: a tree, a pole, a mast, a
-building corner. A support marked unsafe (dead tree, cracked branch) is never used.
+The support record and its parser live in :mod:`fieldkit.site` (shared with the safety layer).
 """
 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
-from typing import Any
 
-from fieldkit.errors import InputError, array, check_keys, join, number, require_mapping, text
+from fieldkit.errors import InputError
+from fieldkit.site import SUPPORT_KINDS, Support, parse_supports  # one Support for every layer
 
-SUPPORT_KINDS = ("tree", "mast", "pole", "building", "vehicle", "other")
+__all__ = [
+    "SUPPORT_KINDS",
+    "Support",
+    "clinometer_height_m",
+    "distance_m",
+    "halyard_rope_m",
+    "pace_distance_m",
+    "parse_supports",
+]
+
 # Rope beyond the up-and-down run at each halyard: a tie-off at the base and a bowline/knot at the
 # insulator, 1.5 m together; plus 10 % slack for the route over the branch (common practice).
 HALYARD_TIE_OFF_M = 1.5
 HALYARD_SLACK_FRACTION = 0.10
-
-
-@dataclass(frozen=True)
-class Support:
-    """One support: id, kind, usable rope height [m], position x (east), y (north) [m], unsafe flag."""
-
-    id: str
-    kind: str
-    height_m: float
-    x_m: float
-    y_m: float
-    unsafe: bool = False
-
-
-def parse_supports(value: Any, field: str = "site.supports") -> list[Support]:
-    """Validate the site's supports (ids unique; notes allowed and ignored)."""
-    items = array(value, field, max_items=40)
-    out: list[Support] = []
-    seen: set[str] = set()
-    for i, item in enumerate(items):
-        f = join(field, i)
-        obj = require_mapping(item, f)
-        check_keys(obj, f, ("id", "kind", "height_m", "x_m", "y_m", "unsafe", "note"))
-        for key in ("id", "height_m", "x_m", "y_m"):
-            if key not in obj:
-                raise InputError(join(f, key), "required")
-        sid = text(obj["id"], join(f, "id"), max_length=20)
-        if sid in seen:
-            raise InputError(join(f, "id"), f"duplicate support id {sid!r}")
-        seen.add(sid)
-        kind = obj.get("kind", "tree")
-        if kind not in SUPPORT_KINDS:
-            raise InputError(
-                join(f, "kind"), f"expected one of: {', '.join(SUPPORT_KINDS)}; got {kind!r}"
-            )
-        unsafe = obj.get("unsafe", False)
-        if not isinstance(unsafe, bool):
-            raise InputError(join(f, "unsafe"), f"expected true or false, got {unsafe!r}")
-        out.append(
-            Support(
-                id=sid,
-                kind=kind,
-                height_m=number(
-                    obj["height_m"], join(f, "height_m"), unit="m", minimum=0.5, maximum=60
-                ),
-                x_m=number(obj["x_m"], join(f, "x_m"), unit="m", minimum=-5000, maximum=5000),
-                y_m=number(obj["y_m"], join(f, "y_m"), unit="m", minimum=-5000, maximum=5000),
-                unsafe=unsafe,
-            )
-        )
-    return out
 
 
 def distance_m(a: Support, b: Support) -> float:

@@ -1,4 +1,4 @@
-"""Site hazards on the sketch (power lines, paths) and the supports, validated at the edge."""
+"""Site hazards on the sketch (power lines, paths), validated at the edge (supports: :mod:`fieldkit.site`)."""
 
 from __future__ import annotations
 
@@ -43,16 +43,6 @@ class Path:
     points_m: np.ndarray
     note: str = ""
     kind: str = "path"
-
-
-@dataclass(frozen=True)
-class Support:
-    id: str
-    kind: str
-    height_m: float
-    x_m: float
-    y_m: float
-    unsafe: bool = False
 
 
 def _plan_points(value: Any, field: str) -> np.ndarray:
@@ -144,29 +134,4 @@ def parse_hazards(value: Any, field: str = "site.hazards") -> list[PowerLine | P
                     points_m=_plan_points(obj["points_m"], join(f, "points_m")), note=_note(obj, f)
                 )
             )
-    return out
-
-
-def parse_supports(value: Any, field: str = "site.supports") -> list[Support]:
-    """The supports on the site sketch (only the fields safety uses are checked here)."""
-    out = []
-    for i, raw in enumerate(array(value, field)):
-        f = join(field, i)
-        obj = require_mapping(raw, f)
-        for key in ("id", "height_m", "x_m", "y_m"):
-            if key not in obj:
-                raise InputError(join(f, key), "missing")
-        unsafe = obj.get("unsafe", False)
-        if not isinstance(unsafe, bool):
-            raise InputError(join(f, "unsafe"), f"expected true or false, got {unsafe!r}")
-        out.append(
-            Support(
-                id=text(obj["id"], join(f, "id"), max_length=40),
-                kind=str(obj.get("kind", "support")),
-                height_m=number(obj["height_m"], join(f, "height_m"), unit="m", minimum=0.0),
-                x_m=number(obj["x_m"], join(f, "x_m"), unit="m"),
-                y_m=number(obj["y_m"], join(f, "y_m"), unit="m"),
-                unsafe=unsafe,
-            )
-        )
     return out

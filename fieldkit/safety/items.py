@@ -6,20 +6,20 @@ Each item's id comes from its rule and the object it is about (see
 
 from __future__ import annotations
 
-from collections.abc import Mapping
 from dataclasses import dataclass
-from typing import Any
 
 import numpy as np
 
+from fieldkit.safety.checked_option import CheckedOption
 from fieldkit.safety.checklists import ChecklistItem, item_id, order_items, template_items
 from fieldkit.safety.duty import Radio
 from fieldkit.safety.exposure import PERSON_HEIGHT_M, KeepOut
-from fieldkit.safety.hazards import Path, PowerLine, Support
+from fieldkit.safety.hazards import Path, PowerLine
 from fieldkit.safety.limits import ExposureLimit
 from fieldkit.safety.plan_view import densify
 from fieldkit.safety.powerlines import Clearance, Rig, line_summary
-from fieldkit.safety.weather import mast_wind_limits
+from fieldkit.safety.weather import DEFAULT_MAST_WIND_LIMIT_M_S
+from fieldkit.site import Support
 
 #: Height a standing adult reaches with a raised hand [m] (common practice, from memory: ~2.1–2.4 m).
 REACH_HEIGHT_M = 2.4
@@ -29,7 +29,7 @@ REACH_HEIGHT_M = 2.4
 class OptionFindings:
     """What the safety rules found for one option: the inputs of its checklist."""
 
-    option: Mapping[str, Any]
+    option: CheckedOption
     radio: Radio
     limit: ExposureLimit
     rig: Rig
@@ -98,35 +98,33 @@ def _support_items(f: OptionFindings) -> list[ChecklistItem]:
                 "rope, not the tree or the wire.",
             )
         )
-    mast = f.option.get("mast")
-    if isinstance(mast, Mapping) and "id" in mast:
-        (wind,) = mast_wind_limits([dict(mast)])
-        rating = (
-            "the maker's rating"
-            if wind.rated
-            else "Beaufort 6, common practice; use the maker's rating if lower"
-        )
-        guys = mast.get("guys")
-        reach = float(mast.get("height_m", f.rig.feed_m[2]))
+    mast = f.option.mast
+    if mast is not None:
+        wind_limit, rating = mast.wind_limit_m_s, "the maker's rating"
+        if wind_limit is None:
+            wind_limit = DEFAULT_MAST_WIND_LIMIT_M_S
+            rating = "Beaufort 6, common practice; use the maker's rating if lower"
+        guys = mast.guys
+        reach = mast.height_m if mast.height_m is not None else float(f.rig.feed_m[2])
         out += [
             _item(
                 "pre-raise",
                 "mast-wind",
-                wind.id,
-                f"Wind at {wind.id}: lower it if gusts exceed {wind.limit_m_s:.1f} m/s ({rating}).",
+                mast.id,
+                f"Wind at {mast.id}: lower it if gusts exceed {wind_limit:.1f} m/s ({rating}).",
             ),
             _item(
                 "pre-raise",
                 "guys-flagged",
-                wind.id,
-                f"{f'All {guys} guys' if guys else 'Guys'} of {wind.id} staked and flagged so nobody "
+                mast.id,
+                f"{f'All {guys} guys' if guys else 'Guys'} of {mast.id} staked and flagged so nobody "
                 "walks into them.",
             ),
             _item(
                 "raise",
                 "mast-walk-up",
-                wind.id,
-                f"Walk {wind.id} up with every guy attached and one person per guy; nobody within its "
+                mast.id,
+                f"Walk {mast.id} up with every guy attached and one person per guy; nobody within its "
                 f"falling reach ({reach:.1f} m).",
             ),
         ]
@@ -217,9 +215,9 @@ def _exposure_items(f: OptionFindings) -> list[ChecklistItem]:
 
 
 def _after_raise_items(f: OptionFindings) -> list[ChecklistItem]:
-    fmhz = float(f.option["frequency_mhz"])
-    swr = f.option.get("swr")
-    swr_text = f" with SWR about {float(swr):.1f}" if isinstance(swr, int | float) else ""
+    fmhz = f.option.frequency_hz / 1e6
+    swr = f.option.swr
+    swr_text = f" with SWR about {swr:.1f}" if swr is not None else ""
     out = [
         _item(
             "after-raise",
@@ -229,18 +227,7 @@ def _after_raise_items(f: OptionFindings) -> list[ChecklistItem]:
             f"{fmhz:g} MHz{swr_text}; note the dip frequency.",
         )
     ]
-    cut = f.option.get("cut") if isinstance(f.option.get("cut"), Mapping) else {}
-    steps = cut.get("trim_steps") if isinstance(cut.get("trim_steps"), list) else []
-    cm = next(
-        (
-            s["cut_cm_per_leg_to_raise"]
-            for s in steps
-            if isinstance(s, Mapping)
-            and s.get("shift_khz") == 100
-            and isinstance(s.get("cut_cm_per_leg_to_raise"), int | float)
-        ),
-        None,
-    )
+    cm = f.option.trim_cm_per_100khz
     text = (
         "If the dip is off, re-trim both legs equally with the re-trim tool and the measured dip."
     )

@@ -68,7 +68,7 @@ def warm_up() -> None:
 
     def load() -> None:
         try:
-            importlib.import_module("fieldkit.plan")
+            importlib.import_module("fieldkit.planning")
             iri = importlib.import_module("fieldkit.sky.iri")
             iri._library()
         except Exception:  # noqa: BLE001 - the request that needs the layer reports it properly

@@ -24,10 +24,10 @@ def plan_cache() -> PlanCache | None:
 
 
 def compute_plan(spec: Any, cache: PlanCache | None = None) -> Any:
-    """``fieldkit.plan.plan(spec)``, through the cache when one is given."""
+    """``fieldkit.planning.plan(spec)``, through the cache when one is given."""
 
     def compute(value: Any) -> Any:
-        return call_layer("fieldkit.plan", "plan", value)
+        return call_layer("fieldkit.planning", "plan", value)
 
     return cache.get_or_compute(spec, compute) if cache is not None else compute(spec)
 

@@ -226,8 +226,19 @@ def _schedule(value: Any) -> Schedule:
             number(d, join("schedule.distances_km", i), unit="km", minimum=0, maximum=600)
             for i, d in enumerate(items)
         )
+    return window(start, end, distances, s["start_utc"], s["end_utc"])
+
+
+def window(
+    start_h: float,
+    end_h: float,
+    distances_km: tuple[float, ...] | None,
+    start_text: str,
+    end_text: str,
+) -> Schedule:
+    """A schedule from its ends in hours (UTC, 0–24): 24:00 stays the end of the day [h]."""
     return Schedule(
-        start % 24.0, end % 24.0 if end < 24 else 24.0, distances, s["start_utc"], s["end_utc"]
+        start_h % 24.0, end_h % 24.0 if end_h < 24 else 24.0, distances_km, start_text, end_text
     )
 
 

@@ -1,4 +1,4 @@
-"""fieldkit.plan.plan(): the contract fields, the demo input, ranking, and plain answers to bad input."""
+"""fieldkit.planning.plan(): the contract fields, the demo input, ranking, and plain answers to bad input."""
 
 import copy
 import json
@@ -9,7 +9,7 @@ import pytest
 from fieldkit.antenna import model_json
 from fieldkit.errors import InputError
 from fieldkit.paths import assets_dir
-from fieldkit.plan import plan
+from fieldkit.planning import plan
 from tests.rigging.cases import BARE, spec, two_trees
 
 CONTRACT = (

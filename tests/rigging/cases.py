@@ -9,6 +9,7 @@ from fieldkit.planning.inputs import parse_plan
 from fieldkit.rigging.cut import EngineCounter
 from fieldkit.rigging.layouts import inverted_v_layouts, span_layouts
 from fieldkit.rigging.options import Warm, finish, screen
+from fieldkit.rigging.rigged import rigged_json
 
 BARE = {"diameter_mm": 2.0, "conductor": "copper"}
 JACKETED = {
@@ -63,4 +64,4 @@ def rig(spec_obj, form):
         ]
     lay = layouts[0]
     sc = screen(lay, frequency_hz=inp.channels_hz[0], kit=inp.kit, engine=engine, warm=warm)
-    return finish(sc, kit=inp.kit, engine=engine, warm=warm), engine, inp
+    return rigged_json(finish(sc, kit=inp.kit, engine=engine, warm=warm), inp.kit), engine, inp

@@ -126,7 +126,7 @@ def _inner(points, feed, leg):
 
 @pytest.mark.slow
 def test_linked_dipole_sections_resonate_in_nec2():
-    from fieldkit.plan import plan
+    from fieldkit.planning import plan
 
     s = spec(supports=two_trees(48, 12.0), channel_mhz=3.6, ground="average")
     s["channels_mhz"] = [3.6, 7.1]

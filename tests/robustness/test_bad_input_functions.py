@@ -17,7 +17,7 @@ from hypothesis import strategies as st
 
 from fieldkit.antenna import model_json
 from fieldkit.errors import InputError
-from fieldkit.plan import plan
+from fieldkit.planning import plan
 from fieldkit.sky import sky_json
 from tests.robustness import strategies as hs
 from tests.robustness.helpers import DIPOLE, SMALL_PLAN, non_finite_paths

@@ -2,7 +2,7 @@
 
 import pytest
 
-from fieldkit.plan import plan
+from fieldkit.planning import plan
 
 SPEC = {
     "site": {

@@ -70,8 +70,8 @@ def test_bad_input_is_422_naming_the_field(client, path, change, field_prefix):
 
 
 def test_plan_bad_input_is_422(client):
-    if layer_state("fieldkit.plan", "plan") != "present":
-        pytest.skip("fieldkit.plan has not landed")
+    if layer_state("fieldkit.planning", "plan") != "present":
+        pytest.skip("fieldkit.planning has not landed")
     spec = {k: v for k, v in json.loads(paths.demo_plan_path().read_text()).items() if k != "name"}
     response = client.post("/api/plan", json={**spec, "form": "spiral"})
     assert response.status_code == 422

@@ -10,7 +10,7 @@ import pytest
 
 from .service_fixtures import CHECKLIST, ack, export_doc, layer_state
 
-PLAN_STATE = layer_state("fieldkit.plan", "plan")
+PLAN_STATE = layer_state("fieldkit.planning", "plan")
 PLAN_LAYER = PLAN_STATE == "present"
 
 
@@ -18,7 +18,7 @@ def assert_plan_layer_unavailable(demo_input):
     """The service stored no result: the plan layer, called directly, must really be missing."""
     if PLAN_STATE == "absent":
         return
-    from fieldkit.plan import plan
+    from fieldkit.planning import plan
 
     with pytest.raises(ModuleNotFoundError) as caught:
         plan({k: v for k, v in demo_input.items() if k != "name"})
@@ -65,7 +65,7 @@ def test_create_read_list_replace_delete(client, demo_input):
     assert client.get("/api/deployments").json["deployments"] == []
 
 
-@pytest.mark.skipif(not PLAN_LAYER, reason="fieldkit.plan has not landed")
+@pytest.mark.skipif(not PLAN_LAYER, reason="fieldkit.planning has not landed")
 @pytest.mark.slow
 def test_created_deployment_has_the_plan_layers_checklist(client, demo_input):
     new_id = create(client, demo_input).json["id"]
@@ -121,7 +121,7 @@ def test_create_refuses_bad_fields(client, body, field):
     assert client.get("/api/deployments").json["deployments"] == []
 
 
-@pytest.mark.skipif(not PLAN_LAYER, reason="fieldkit.plan has not landed")
+@pytest.mark.skipif(not PLAN_LAYER, reason="fieldkit.planning has not landed")
 def test_create_with_bad_plan_input_is_422_and_not_stored(client, demo_input):
     bad = {**demo_input, "channels_mhz": [-3.0]}
     response = create(client, bad)

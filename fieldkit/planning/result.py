@@ -1,0 +1,96 @@
+"""The plan's JSON, written once at the end from the typed options (the `fieldkit plan` contract)."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from fieldkit.planning.inputs import PlanInput, Retrim
+from fieldkit.planning.records import FinishedOption, SkyFit
+from fieldkit.rigging.cut import EngineCounter, retrim
+from fieldkit.rigging.options import Refused
+from fieldkit.rigging.rigged import rigged_json
+
+RANKING_WORDS = (
+    "options that fail a safety check come after all others; then the channel that best covers "
+    "the schedule (sky estimate, when the sky and schedule are given); then score = mean NVIS "
+    "gain over the 0–300 km elevations minus feedline loss"
+)
+NOT_IN_FULL_WORDS = (
+    "not worked out in full; ask for this form and channel alone to see its cut list and checks"
+)
+
+
+def summary_json(c) -> dict[str, Any]:
+    """One line for an option not shown in full (a candidate or a finished option)."""
+    return {
+        "form": c.form,
+        "frequency_mhz": round(c.frequency_hz / 1e6, 6),
+        "supports_used": list(c.supports_used),
+        "score_db": round(c.score_db, 2),
+        "note": NOT_IN_FULL_WORDS,
+    }
+
+
+def _retrim_applies(r: Retrim, o: FinishedOption) -> bool:
+    same_channel = abs(round(o.frequency_hz / 1e6, 6) * 1e6 - r.target_hz) <= 1.0
+    return same_channel and (r.form is None or r.form == o.form)
+
+
+def retrim_json(r: Retrim, o: FinishedOption) -> dict[str, Any]:
+    """How much to cut or add per leg after the measured dip (or analyser reading)."""
+    return retrim(
+        o.rigged.resonance,
+        target_hz=r.target_hz,
+        leg_now_m=r.leg_now_m,
+        dip_hz=r.dip_hz,
+        measured_at_hz=r.at_hz,
+        measured_r_ohm=r.r_ohm,
+        measured_x_ohm=r.x_ohm,
+    )
+
+
+def option_json(
+    o: FinishedOption, inp: PlanInput, sky: SkyFit | None, *, shown: bool
+) -> dict[str, Any]:
+    """One option of the contract: rigging fields, warnings, safety block, sky row, re-trim."""
+    out = rigged_json(o.rigged, inp.kit)
+    out["warnings"] = list(o.warnings)
+    out["safety"] = o.safety.to_json()
+    if sky is not None:
+        out["sky"] = sky.row(o.frequency_hz)
+    if shown and inp.retrim is not None and _retrim_applies(inp.retrim, o):
+        out["retrim"] = retrim_json(inp.retrim, o)
+    return out
+
+
+def engine_json(engine: EngineCounter, times: dict[str, float], total_s: float) -> dict[str, Any]:
+    """What the plan cost: engine solves and seconds per phase."""
+    return {
+        "solve_calls": engine.calls,
+        "frequencies_solved": engine.frequencies,
+        "solutions_reused": engine.reused,
+        **{k: round(v, 3) for k, v in times.items()},
+        "total_seconds": round(total_s, 3),
+    }
+
+
+def plan_json(
+    inp: PlanInput,
+    *,
+    shown: tuple[FinishedOption, ...],
+    more: list[dict[str, Any]],
+    refused: tuple[Refused, ...],
+    sky: SkyFit | None,
+    engine: dict[str, Any],
+) -> dict[str, Any]:
+    """The plan result of ARCHITECTURE.md."""
+    return {
+        "name": inp.name,
+        "options": [option_json(o, inp, sky, shown=True) for o in shown],
+        "more": more,
+        "refused": [r.to_json() for r in refused],
+        "warnings": list(inp.warnings),
+        "ranking": RANKING_WORDS,
+        "sky": None if sky is None else {"schedule": sky.schedule, "source": list(sky.source)},
+        "engine": engine,
+    }

@@ -1,0 +1,90 @@
+"""The supports on the site sketch: one record and one parser for rigging and safety alike.
+
+A support is anything that can hold a rope end at a usable rope height: a tree, a pole, a mast, a
+building corner. A support marked unsafe (dead tree, cracked branch) is never used. This module sits
+beside :mod:`fieldkit.errors` below every layer, so the rigging and the safety layer (siblings) share
+it without importing each other.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from dataclasses import dataclass
+from typing import Any
+
+from fieldkit.errors import InputError, array, check_keys, join, number, require_mapping, text
+
+SUPPORT_KINDS = ("tree", "mast", "pole", "building", "vehicle", "other")
+DEFAULT_SUPPORT_KIND = "tree"  # a support drawn without a kind is a tree: the usual case
+SUPPORT_FIELDS = ("id", "kind", "height_m", "x_m", "y_m", "unsafe", "note")
+SUPPORT_REQUIRED = ("id", "height_m", "x_m", "y_m")
+MAX_SUPPORTS = 40
+MAX_ID_LENGTH = 20
+HEIGHT_RANGE_M = (0.5, 60.0)  # a rope height a throw line or a pole reaches
+POSITION_RANGE_M = (-5000.0, 5000.0)  # within 5 km of the sketch's origin
+
+
+@dataclass(frozen=True)
+class Support:
+    """One support: id, kind, usable rope height [m], position x (east), y (north) [m], unsafe flag."""
+
+    id: str
+    kind: str
+    height_m: float
+    x_m: float
+    y_m: float
+    unsafe: bool = False
+
+
+def _kind(obj: Mapping[str, Any], field: str) -> str:
+    kind = obj.get("kind", DEFAULT_SUPPORT_KIND)
+    if kind not in SUPPORT_KINDS:
+        raise InputError(
+            join(field, "kind"), f"expected one of: {', '.join(SUPPORT_KINDS)}; got {kind!r}"
+        )
+    return kind
+
+
+def _unsafe(obj: Mapping[str, Any], field: str) -> bool:
+    unsafe = obj.get("unsafe", False)
+    if not isinstance(unsafe, bool):
+        raise InputError(join(field, "unsafe"), f"expected true or false, got {unsafe!r}")
+    return unsafe
+
+
+def _metres(obj: Mapping[str, Any], field: str, key: str, bounds: tuple[float, float]) -> float:
+    return number(obj[key], join(field, key), unit="m", minimum=bounds[0], maximum=bounds[1])
+
+
+def parse_support(
+    value: Any, field: str, taken: set[str] | frozenset[str] = frozenset()
+) -> Support:
+    """One support of the sketch (``note`` allowed and ignored); its id must not be in ``taken``."""
+    obj = require_mapping(value, field)
+    check_keys(obj, field, SUPPORT_FIELDS)
+    for key in SUPPORT_REQUIRED:
+        if key not in obj:
+            raise InputError(join(field, key), "required")
+    sid = text(obj["id"], join(field, "id"), max_length=MAX_ID_LENGTH)
+    if sid in taken:
+        raise InputError(join(field, "id"), f"duplicate support id {sid!r}")
+    kind, unsafe = _kind(obj, field), _unsafe(obj, field)
+    return Support(
+        id=sid,
+        kind=kind,
+        height_m=_metres(obj, field, "height_m", HEIGHT_RANGE_M),
+        x_m=_metres(obj, field, "x_m", POSITION_RANGE_M),
+        y_m=_metres(obj, field, "y_m", POSITION_RANGE_M),
+        unsafe=unsafe,
+    )
+
+
+def parse_supports(value: Any, field: str = "site.supports") -> list[Support]:
+    """Validate the site's supports (ids unique; at most 40)."""
+    out: list[Support] = []
+    seen: set[str] = set()
+    for i, item in enumerate(array(value, field, max_items=MAX_SUPPORTS)):
+        support = parse_support(item, join(field, i), seen)
+        seen.add(support.id)
+        out.append(support)
+    return out
