@@ -14,6 +14,7 @@ References
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
@@ -127,15 +128,27 @@ def integrate_chain(
     )
 
 
+def _piece_end(h: float, w: float, v0: float, s: float) -> tuple[float, float]:
+    """:func:`_piece_xz` at the far end of a piece only, in scalar arithmetic (the solvers' inner loop)."""
+    if w * max(s, 0.0) < 1e-9 * h:
+        ds = s / math.hypot(1.0, v0 / h)
+        return ds, ds * v0 / h
+    v = v0 + w * s
+    return (
+        (h / w) * (math.asinh(v / h) - math.asinh(v0 / h)),
+        (h / w) * (math.hypot(1.0, v / h) - math.hypot(1.0, v0 / h)),
+    )
+
+
 def _end_point(pieces: tuple[Piece, ...], h: float, v0: float) -> tuple[float, float, float]:
     """(u, z, vertical component) at the last end, without sampling."""
     u = z = 0.0
-    v = v0
+    h, v = float(h), float(v0)
     for p in pieces:
         if p.length_m > 0:
-            du, dz = _piece_xz(h, p.weight_n_per_m, v, np.array([p.length_m]))
-            u += float(du[0])
-            z += float(dz[0])
+            du, dz = _piece_end(h, p.weight_n_per_m, v, p.length_m)
+            u += du
+            z += dz
         v += p.weight_n_per_m * p.length_m + p.load_after_n
     return u, z, v - pieces[-1].load_after_n
 
@@ -191,10 +204,13 @@ def hang_between(
     t = end_tension_n
 
     def residual(x: np.ndarray) -> np.ndarray:
-        h, v0, free = t * np.exp(x[0]), t * x[1], span_m * x[2]
         with np.errstate(all="ignore"):  # the solver may probe absurd tensions on the way
-            u, z, v1 = _end_point(pieces_of(free), h, v0)
-            tmax = max(np.hypot(h, v0), np.hypot(h, v1))
+            h, v0, free = t * np.exp(x[0]), t * x[1], span_m * x[2]
+            try:
+                u, z, v1 = _end_point(pieces_of(free), h, v0)
+            except (ZeroDivisionError, OverflowError, ValueError):
+                return np.full(3, 1e6)
+            tmax = max(math.hypot(h, v0), math.hypot(h, v1))
             out = np.array([(u - span_m) / span_m, (z - rise_m) / span_m, tmax / t - 1.0])
         return np.where(np.isfinite(out), out, 1e6)
 

@@ -101,7 +101,7 @@ def newton_system(
     """
     x = np.asarray(x0, dtype=float)
     fx = fun(x)
-    norm = float(np.linalg.norm(fx))
+    norm = _norm(fx)
     n = len(x)
     for _ in range(max_iter):
         jac = np.empty((n, n))
@@ -116,13 +116,13 @@ def newton_system(
             return None
         if not np.all(np.isfinite(step)):
             return None
-        if float(np.linalg.norm(step)) <= xtol * (float(np.linalg.norm(x)) + xtol):
+        if _norm(step) <= xtol * (_norm(x) + xtol):
             return x + step
         t = 1.0
         while True:
             trial = x + t * step
             f_trial = fun(trial)
-            n_trial = float(np.linalg.norm(f_trial))
+            n_trial = _norm(f_trial)
             if n_trial < norm:
                 break
             t *= 0.5
@@ -130,6 +130,10 @@ def newton_system(
                 return None
         x, fx, norm = trial, f_trial, n_trial
     return None
+
+
+def _norm(v: np.ndarray) -> float:
+    return math.sqrt(float(v @ v))
 
 
 def hybrid_system(fun, x0: np.ndarray, *, xtol: float = 1e-11) -> np.ndarray | None:
