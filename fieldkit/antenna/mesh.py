@@ -17,7 +17,7 @@ References
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from functools import lru_cache
 
 import numpy as np
@@ -126,18 +126,12 @@ class Mesh:
             self._memo["relative"] = (
                 self
                 if not o.any()
-                else Mesh(
+                else replace(
+                    self,
                     start=self.start - o,
                     end=self.end - o,
-                    length=self.length,
-                    tangent=self.tangent,
-                    radius=self.radius,
-                    wire=self.wire,
-                    half_seg=self.half_seg,
-                    half_shape=self.half_shape,
-                    half_sign=self.half_sign,
-                    feed_basis=self.feed_basis,
                     feed_point=self.feed_point - o,
+                    _memo={},
                 )
             )
         return self._memo["relative"]
@@ -340,18 +334,12 @@ def _translated_mesh(antenna: Antenna, max_frequency_hz: float) -> Mesh:
         if len(_RELATIVE_MESHES) >= _RELATIVE_MESHES_SIZE:
             _RELATIVE_MESHES.pop(next(iter(_RELATIVE_MESHES)))
         _RELATIVE_MESHES[key] = rel
-    mesh = Mesh(
+    mesh = replace(
+        rel,
         start=rel.start + origin,
         end=rel.end + origin,
-        length=rel.length,
-        tangent=rel.tangent,
-        radius=rel.radius,
-        wire=rel.wire,
-        half_seg=rel.half_seg,
-        half_shape=rel.half_shape,
-        half_sign=rel.half_sign,
-        feed_basis=rel.feed_basis,
         feed_point=rel.feed_point + origin,
+        _memo={},
     )
     mesh._memo["relative"] = rel  # translated copies share the relative mesh and its caches
     return mesh

@@ -93,6 +93,18 @@ def test_data_dir_override(tmp_path):
         del os.environ["FIELDKIT_HOME"]
 
 
+def test_cache_dir_override_and_default(tmp_path, monkeypatch):
+    monkeypatch.setenv("FIELDKIT_CACHE_DIR", str(tmp_path / "cache"))
+    assert paths.cache_dir() == tmp_path / "cache"
+    assert (tmp_path / "cache").is_dir()
+    # without the override: the platform's user cache directory (platformdirs; XDG on Linux)
+    import platformdirs
+
+    monkeypatch.delenv("FIELDKIT_CACHE_DIR")
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "xdg"))
+    assert paths.cache_dir() == Path(platformdirs.user_cache_dir("fieldkit", appauthor=False))
+
+
 def test_output_refuses_nan():
     with pytest.raises(ValueError):
         jsonio.dumps({"x": float("nan")})
