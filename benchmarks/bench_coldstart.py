@@ -17,7 +17,9 @@ are printed too. The benchmark uses a cache directory of its own (``FIELDKIT_CAC
 compiles fieldkit's bytecode first, as a pip install does. The load average is printed beside the
 figures: the team machine has 2 shared cores, so compare ratios and CPU times, not walls alone.
 
-Run: ``.venv/bin/python benchmarks/bench_coldstart.py [--repeat N]`` (PyNEC is a test dependency)
+Run: ``.venv/bin/python benchmarks/bench_coldstart.py [--repeat N]`` (PyNEC is a test dependency).
+``--tree DIR`` runs another fieldkit source tree instead (``python -m fieldkit`` with that tree first
+on the path), e.g. ``git -C /work/main archive main | tar -x -C /tmp/before`` for a before/after.
 """
 
 from __future__ import annotations
@@ -37,9 +39,10 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-from bench_height_sweep import NEC_SCRIPT, fieldkit_command, specs  # noqa: E402
+from bench_height_sweep import NEC_SCRIPT, specs  # noqa: E402
 
 DEMO = ROOT / "assets" / "demo"
+CWD = ROOT  # children run here (``python -m`` puts the working directory first on the path)
 WARM_PLAN = """
 import copy, json, sys, time
 from fieldkit.planning import plan
@@ -65,7 +68,7 @@ def run(cmd: list[str], *, stdin: str | None = None, env: dict) -> dict:
         fin.seek(0)
         t0 = time.perf_counter()
         proc = subprocess.Popen(
-            cmd, stdin=fin, stdout=fout, stderr=subprocess.PIPE, env=env, cwd=ROOT, text=True
+            cmd, stdin=fin, stdout=fout, stderr=subprocess.PIPE, env=env, cwd=CWD, text=True
         )
         err = proc.stderr.read()
         _, status, usage = os.wait4(proc.pid, 0)
@@ -96,16 +99,25 @@ def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--repeat", type=int, default=3, help="alternating rounds (best is kept)")
     ap.add_argument("--warm-runs", type=int, default=3, help="timed plans in the warm process")
+    ap.add_argument("--tree", type=Path, help="another fieldkit source tree to measure")
     args = ap.parse_args()
-    package = Path(importlib.util.find_spec("fieldkit").origin).parent
-    subprocess.run([sys.executable, "-m", "compileall", "-q", str(package)], check=True)
     cache = tempfile.mkdtemp(prefix="fieldkit-bench-cache-")
     env = {**os.environ, "FIELDKIT_CACHE_DIR": cache}
-    fk = fieldkit_command()[0]
-    model = fieldkit_command()
+    if args.tree:
+        global CWD
+        CWD = args.tree.resolve()
+        package = CWD / "fieldkit"
+        env["PYTHONPATH"] = str(args.tree.resolve())
+        fk_cmd = [sys.executable, "-m", "fieldkit"]
+    else:
+        package = Path(importlib.util.find_spec("fieldkit").origin).parent
+        exe = Path(sys.executable).with_name("fieldkit")  # the console script, as users run it
+        fk_cmd = [str(exe)] if exe.exists() else [sys.executable, "-m", "fieldkit"]
+    subprocess.run([sys.executable, "-m", "compileall", "-q", str(package)], check=True)
+    model = [*fk_cmd, "model", "-"]
     sweep = json.dumps(specs())
-    sky = [fk, "sky", str(DEMO / "sky.json")]
-    plan = [fk, "plan", str(DEMO / "larch-basin-plan.json")]
+    sky = [*fk_cmd, "sky", str(DEMO / "sky.json")]
+    plan = [*fk_cmd, "plan", str(DEMO / "larch-basin-plan.json")]
     nec = [sys.executable, "-c", NEC_SCRIPT]
     warm = [
         sys.executable,
@@ -137,6 +149,7 @@ def main() -> None:
     n_options = len(json.loads(rounds["plan"][-1]["out"])["options"])
     nec_wall, nec_cpu = best(rounds["nec"], "wall"), best(rounds["nec"], "cpu")
     print(f"fieldkit cold start against NEC-2 — {stamp}, best of {args.repeat} rounds")
+    print(f"fieldkit: {package.parent}")
     print(f"load average (1, 5, 15 min): before {load_before}; after {load()}")
     print(f"NEC-2 47-height sweep (PyNEC, one process): wall {nec_wall:.3f} s, CPU {nec_cpu:.3f} s")
     print(f"{'':38} {'wall s':>8} {'CPU s':>8} {'wall ratio':>11} {'CPU ratio':>10}  target")
