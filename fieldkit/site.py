@@ -12,16 +12,28 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import Any
 
-from fieldkit.errors import InputError, array, check_keys, join, number, require_mapping, text
+from fieldkit.errors import InputError, array, join, require_mapping, text
+from fieldkit.fields import Record, flag, num, string
 
 SUPPORT_KINDS = ("tree", "mast", "pole", "building", "vehicle", "other")
 DEFAULT_SUPPORT_KIND = "tree"  # a support drawn without a kind is a tree: the usual case
-SUPPORT_FIELDS = ("id", "kind", "height_m", "x_m", "y_m", "unsafe", "note")
-SUPPORT_REQUIRED = ("id", "height_m", "x_m", "y_m")
 MAX_SUPPORTS = 40
 MAX_ID_LENGTH = 20
 HEIGHT_RANGE_M = (0.5, 60.0)  # a rope height a throw line or a pole reaches
 POSITION_RANGE_M = (-5000.0, 5000.0)  # within 5 km of the sketch's origin
+SUPPORT = Record(
+    "Support",
+    (
+        string("id", required=True, description=f"unique, at most {MAX_ID_LENGTH} characters"),
+        string("kind", *SUPPORT_KINDS, description=f"default {DEFAULT_SUPPORT_KIND}"),
+        num("height_m", "m", *HEIGHT_RANGE_M, required=True, description="usable rope height"),
+        num("x_m", "m", *POSITION_RANGE_M, required=True, description="east of the origin"),
+        num("y_m", "m", *POSITION_RANGE_M, required=True, description="north of the origin"),
+        flag("unsafe", description="never used (dead tree, cracked branch)"),
+        string("note"),
+    ),
+    "a support on the site sketch",
+)
 
 
 @dataclass(frozen=True)
@@ -52,19 +64,13 @@ def _unsafe(obj: Mapping[str, Any], field: str) -> bool:
     return unsafe
 
 
-def _metres(obj: Mapping[str, Any], field: str, key: str, bounds: tuple[float, float]) -> float:
-    return number(obj[key], join(field, key), unit="m", minimum=bounds[0], maximum=bounds[1])
-
-
 def parse_support(
     value: Any, field: str, taken: set[str] | frozenset[str] = frozenset()
 ) -> Support:
     """One support of the sketch (``note`` allowed and ignored); its id must not be in ``taken``."""
     obj = require_mapping(value, field)
-    check_keys(obj, field, SUPPORT_FIELDS)
-    for key in SUPPORT_REQUIRED:
-        if key not in obj:
-            raise InputError(join(field, key), "required")
+    SUPPORT.check(obj, field)
+    SUPPORT.require(obj, field)
     sid = text(obj["id"], join(field, "id"), max_length=MAX_ID_LENGTH)
     if sid in taken:
         raise InputError(join(field, "id"), f"duplicate support id {sid!r}")
@@ -72,9 +78,9 @@ def parse_support(
     return Support(
         id=sid,
         kind=kind,
-        height_m=_metres(obj, field, "height_m", HEIGHT_RANGE_M),
-        x_m=_metres(obj, field, "x_m", POSITION_RANGE_M),
-        y_m=_metres(obj, field, "y_m", POSITION_RANGE_M),
+        height_m=SUPPORT.number(obj, field, "height_m"),
+        x_m=SUPPORT.number(obj, field, "x_m"),
+        y_m=SUPPORT.number(obj, field, "y_m"),
         unsafe=unsafe,
     )
 

@@ -16,7 +16,8 @@ from dataclasses import dataclass
 from typing import Any, Literal
 
 from fieldkit.constants import EPS0
-from fieldkit.errors import InputError, check_keys, join, number
+from fieldkit.errors import InputError
+from fieldkit.model_fields import GROUND_CONSTANTS
 
 GroundKind = Literal["free-space", "perfect", "lossy"]
 
@@ -87,23 +88,10 @@ def parse_ground(value: Any, field: str = "ground") -> Ground:
             value=value,
         )
     if isinstance(value, Mapping):
-        check_keys(value, field, ("relative_permittivity", "conductivity_s_m"))
-        for key in ("relative_permittivity", "conductivity_s_m"):
-            if key not in value:
-                raise InputError(join(field, key), "required", value=None)
-        eps = number(
-            value["relative_permittivity"],
-            join(field, "relative_permittivity"),
-            minimum=1.0,
-            maximum=100.0,
-        )
-        sigma = number(
-            value["conductivity_s_m"],
-            join(field, "conductivity_s_m"),
-            unit="S/m",
-            minimum=0.0,
-            maximum=10.0,
-        )
+        GROUND_CONSTANTS.check(value, field)
+        GROUND_CONSTANTS.require(value, field)
+        eps = GROUND_CONSTANTS.number(value, field, "relative_permittivity")
+        sigma = GROUND_CONSTANTS.number(value, field, "conductivity_s_m")
         return Ground("lossy", eps, sigma)
     raise InputError(
         field,

@@ -22,6 +22,7 @@ import numpy as np
 
 from fieldkit.constants import SPEED_OF_LIGHT_M_S
 from fieldkit.errors import InputError
+from fieldkit.model_fields import MAX_FREQUENCY_MHZ, MIN_FREQUENCY_MHZ
 
 from . import farfield, figures
 from .blas import single_threaded
@@ -30,8 +31,8 @@ from .kernel import free_space_matrix, loading_matrix, perfect_image_matrix, seg
 from .materials import conductor_impedance_per_m, insulation_impedance_per_m
 from .mesh import Antenna, Mesh, checked_mesh
 
-MIN_FREQUENCY_HZ = 0.1e6
-MAX_FREQUENCY_HZ = 60e6
+MIN_FREQUENCY_HZ = MIN_FREQUENCY_MHZ * 1e6
+MAX_FREQUENCY_HZ = MAX_FREQUENCY_MHZ * 1e6
 
 
 @dataclass(frozen=True)

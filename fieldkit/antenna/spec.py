@@ -12,7 +12,20 @@ from typing import Any
 import numpy as np
 
 from fieldkit.constants import SPEED_OF_LIGHT_M_S
-from fieldkit.errors import InputError, array, check_keys, choice, join, number, require_mapping
+from fieldkit.errors import InputError, array, choice, join, number, require_mapping
+from fieldkit.model_fields import (
+    FEED,
+    MAX_COORDINATE_M,
+    MAX_NEAR_FIELD_POINTS,
+    MAX_WIRES,
+    MODEL,
+    MODEL_INSULATION,
+    MODEL_RESULT,
+    MODEL_SOLUTION,
+    MODEL_WIRE,
+    NEAR_FIELD,
+    PATTERN,
+)
 
 from .blas import single_threaded
 from .grounds import parse_ground
@@ -21,22 +34,9 @@ from .mesh import Antenna, Feed, Wire, checked_mesh
 from .solver import MAX_FREQUENCY_HZ, MIN_FREQUENCY_HZ, solve
 from .sweep import figures_together, solve_translated, translation_key
 
-SPEC_KEYS = (
-    "frequency_mhz",
-    "frequencies_mhz",
-    "ground",
-    "wires",
-    "feed",
-    "power_w",
-    "reference_impedance_ohm",
-    "pattern",
-    "near_field",
-)
-WIRE_KEYS = ("points_m", "diameter_mm", "conductor", "insulation")
-MAX_WIRES = 100
+SPEC_KEYS = MODEL.names
+WIRE_KEYS = MODEL_WIRE.names
 MAX_PATTERN_POINTS = 200_000
-MAX_NEAR_FIELD_POINTS = 20_000
-MAX_COORDINATE_M = 10_000.0
 # Work bound of one call (a CLI run or an API request). Cost per frequency ≈ segments²/1000 + 1 work
 # units, plus near-field points and pattern directions per segment; one unit is 0.01-0.05 s on the
 # shared 2-core test machine (measured, docs/robustness.md: 562 segments 9-12 s, 282 segments
@@ -86,45 +86,22 @@ def _frequencies(spec: Mapping[str, Any], field: str) -> list[float]:
 
 def _wire(value: Any, field: str) -> Wire:
     w = require_mapping(value, field)
-    check_keys(w, field, WIRE_KEYS)
-    for key in ("points_m", "diameter_mm"):
-        if key not in w:
-            raise InputError(join(field, key), "required")
+    MODEL_WIRE.check(w, field)
+    MODEL_WIRE.require(w, field)
     pts_name = join(field, "points_m")
     pts = array(w["points_m"], pts_name, min_items=2, max_items=2000)
     points = np.array([_point(p, join(pts_name, i)) for i, p in enumerate(pts)])
-    diameter = number(
-        w["diameter_mm"],
-        join(field, "diameter_mm"),
-        unit="mm",
-        minimum=0,
-        exclusive_minimum=True,
-        maximum=100,
-    )
+    diameter = MODEL_WIRE.number(w, field, "diameter_mm")
     conductor = choice(w.get("conductor", "copper"), join(field, "conductor"), CONDUCTORS)
     insulation = None
     if w.get("insulation") is not None:
         ins_name = join(field, "insulation")
         ins = require_mapping(w["insulation"], ins_name)
-        check_keys(ins, ins_name, ("thickness_mm", "relative_permittivity"))
-        for key in ("thickness_mm", "relative_permittivity"):
-            if key not in ins:
-                raise InputError(join(ins_name, key), "required")
+        MODEL_INSULATION.check(ins, ins_name)
+        MODEL_INSULATION.require(ins, ins_name)
         insulation = Insulation(
-            thickness_m=number(
-                ins["thickness_mm"],
-                join(ins_name, "thickness_mm"),
-                unit="mm",
-                minimum=0,
-                maximum=50,
-            )
-            / 1e3,
-            relative_permittivity=number(
-                ins["relative_permittivity"],
-                join(ins_name, "relative_permittivity"),
-                minimum=1,
-                maximum=20,
-            ),
+            thickness_m=MODEL_INSULATION.number(ins, ins_name, "thickness_mm") / 1e3,
+            relative_permittivity=MODEL_INSULATION.number(ins, ins_name, "relative_permittivity"),
         )
     return Wire(
         points_m=points, radius_m=diameter / 2e3, conductor=conductor, insulation=insulation
@@ -147,59 +124,35 @@ def _angles(value: Any, field: str, lo: float, hi: float) -> np.ndarray:
 def parse_spec(spec: Any, field: str = "") -> dict[str, Any]:
     """Validate one model spec; returns the engine objects and options."""
     spec = require_mapping(spec, field)
-    check_keys(spec, field, SPEC_KEYS)
+    MODEL.check(spec, field)
     freqs = _frequencies(spec, field)
-    if "ground" not in spec:
-        raise InputError(
-            join(field, "ground"),
-            "required: a ground name or {relative_permittivity, conductivity_s_m}",
-        )
+    MODEL.require(spec, field, ("ground",))
     ground = parse_ground(spec["ground"], join(field, "ground"))
-    if "wires" not in spec:
-        raise InputError(join(field, "wires"), "required: a list of wires")
+    MODEL.require(spec, field, ("wires",))
     wires_name = join(field, "wires")
     wires = tuple(
         _wire(w, join(wires_name, i))
         for i, w in enumerate(array(spec["wires"], wires_name, min_items=1, max_items=MAX_WIRES))
     )
-    if "feed" not in spec:
-        raise InputError(join(field, "feed"), "required: {wire, distance_m}")
+    MODEL.require(spec, field, ("feed",))
     feed_name = join(field, "feed")
     feed = require_mapping(spec["feed"], feed_name)
-    check_keys(feed, feed_name, ("wire", "distance_m"))
-    for key in ("wire", "distance_m"):
-        if key not in feed:
-            raise InputError(join(feed_name, key), "required")
+    FEED.check(feed, feed_name)
+    FEED.require(feed, feed_name)
     feed_obj = Feed(
         wire=number(
             feed["wire"], join(feed_name, "wire"), minimum=0, maximum=len(wires) - 1, integer=True
         ),
-        distance_m=number(feed["distance_m"], join(feed_name, "distance_m"), unit="m", minimum=0),
+        distance_m=FEED.number(feed, feed_name, "distance_m"),
     )
-    power = number(
-        spec.get("power_w", 1.0),
-        join(field, "power_w"),
-        unit="W",
-        minimum=0,
-        exclusive_minimum=True,
-        maximum=1e6,
-    )
-    z_ref = number(
-        spec.get("reference_impedance_ohm", 50.0),
-        join(field, "reference_impedance_ohm"),
-        unit="ohm",
-        minimum=0,
-        exclusive_minimum=True,
-        maximum=1e4,
-    )
+    power = MODEL.number(spec, field, "power_w", default=1.0)
+    z_ref = MODEL.number(spec, field, "reference_impedance_ohm", default=50.0)
     pattern = None
     if spec.get("pattern") is not None:
         pname = join(field, "pattern")
         p = require_mapping(spec["pattern"], pname)
-        check_keys(p, pname, ("elevation_deg", "azimuth_deg"))
-        for key in ("elevation_deg", "azimuth_deg"):
-            if key not in p:
-                raise InputError(join(pname, key), "required: a list of angles in degrees")
+        PATTERN.check(p, pname)
+        PATTERN.require(p, pname)
         lo = -90.0 if ground.kind == "free-space" else 0.0
         el = _angles(p["elevation_deg"], join(pname, "elevation_deg"), lo, 90.0)
         az = _angles(p["azimuth_deg"], join(pname, "azimuth_deg"), -360.0, 360.0)
@@ -212,11 +165,8 @@ def parse_spec(spec: Any, field: str = "") -> dict[str, Any]:
     if spec.get("near_field") is not None:
         nname = join(field, "near_field")
         n = require_mapping(spec["near_field"], nname)
-        check_keys(n, nname, ("points_m",))
-        if "points_m" not in n:
-            raise InputError(
-                join(nname, "points_m"), "required: a list of [x, y, z] points in metres"
-            )
+        NEAR_FIELD.check(n, nname)
+        NEAR_FIELD.require(n, nname)
         pts_name = join(nname, "points_m")
         items = array(n["points_m"], pts_name, min_items=1, max_items=MAX_NEAR_FIELD_POINTS)
         near = np.array([_point(p, join(pts_name, i)) for i, p in enumerate(items)])
@@ -277,7 +227,7 @@ def _result(sol, pattern, near, pol=None) -> dict[str, Any]:
             "e_vector_v_per_m": [[{"re": c.real, "im": c.imag} for c in row] for row in e.tolist()],
             "h_vector_a_per_m": [[{"re": c.real, "im": c.imag} for c in row] for row in h.tolist()],
         }
-    return out
+    return MODEL_SOLUTION.written(out)
 
 
 NEAR_FIELD_RANGE_WL = (
@@ -355,7 +305,9 @@ def _solve_one(p: dict[str, Any], field: str) -> dict[str, Any]:
         )
     except InputError as err:
         raise _prefixed(err, field) from None
-    return {"results": [_result(s, p["pattern"], p["near_field"]) for s in sols]}
+    return MODEL_RESULT.written(
+        {"results": [_result(s, p["pattern"], p["near_field"]) for s in sols]}
+    )
 
 
 def _sweep_key(p: dict[str, Any], mesh) -> tuple | None:

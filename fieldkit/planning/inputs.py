@@ -12,17 +12,20 @@ from collections.abc import Mapping
 from dataclasses import dataclass, replace
 from typing import Any
 
-from fieldkit.errors import InputError, array, check_keys, choice, join, number, require_mapping
-from fieldkit.planning.kit_input import parse_kit
+from fieldkit.errors import InputError, array, choice, join, require_mapping
+from fieldkit.fields import Record, arr, nested, num, ref, string
+from fieldkit.model_fields import ground_field
+from fieldkit.planning.kit_input import KIT, parse_kit
 from fieldkit.rigging.mast import Mast
 from fieldkit.rigging.options import Kit
-from fieldkit.safety import parse_hazards, parse_limit_set, parse_radio
-from fieldkit.safety.duty import Radio
-from fieldkit.safety.hazards import Path, PowerLine
-from fieldkit.site import Support, parse_supports
+from fieldkit.safety import LIMIT_SETS, parse_hazards, parse_limit_set, parse_radio
+from fieldkit.safety.duty import RADIO, Radio
+from fieldkit.safety.hazards import PATH, POWER_LINE, Path, PowerLine
+from fieldkit.site import MAX_SUPPORTS, SUPPORT, Support, parse_supports
 from fieldkit.sky.inputs import (  # one HF range for plan and sky
     MAX_CHANNEL_MHZ,
     MIN_CHANNEL_MHZ,
+    SKY,
     SkySpec,
     parse_sky_spec,
     window,
@@ -31,36 +34,93 @@ from fieldkit.sky.inputs import Schedule as SkySchedule
 
 FORMS = ("flat", "inverted-v", "sloping", "linked", "auto")
 RETRIM_FORMS = ("flat", "sloping", "inverted-v")
-PLAN_FIELDS = (
-    "name",
-    "site",
-    "channels_mhz",
-    "form",
-    "kit",
-    "radio",
-    "sky",
-    "schedule",
-    "limit_set",
-    "retrim",
+PLAN_SKY = SKY.variant(
+    "PlanSky",
+    optional=("channels_mhz",),
+    description="the sky input; its channels (and, without its own, its schedule) come from the plan",
 )
-PLAN_REQUIRED = ("site", "channels_mhz", "kit", "radio")
-SITE_FIELDS = (
-    "name",
-    "lat_deg",
-    "lon_deg",
-    "elevation_m",
-    "utc_offset_h",
-    "ground",
-    "supports",
-    "hazards",
-)
-SCHEDULE_FIELDS = ("start_utc", "end_utc")
-RETRIM_FIELDS = ("frequency_mhz", "form", "leg_now_m", "dip_mhz", "at_mhz", "r_ohm", "x_ohm")
 DEFAULT_LIMIT_SET = "fcc-uncontrolled"
 MAX_CHANNELS = 12
 # every pair of usable supports is screened with the engine (~0.4 s a pair on a 2-core laptop):
 # 10 supports = 45 pairs keeps a plan within about 30 s (measured: 20 supports took 70 s)
 MAX_USABLE_SUPPORTS = 10
+MAX_NAME_LENGTH = 200
+_HHMM = {"pattern": "^([01][0-9]|2[0-3]):[0-5][0-9]$|^24:00$"}
+SITE = Record(
+    "PlanSite",
+    (
+        string("name", schema={"maxLength": MAX_NAME_LENGTH}),
+        num("lat_deg", "deg", -90, 90, description="context only"),
+        num("lon_deg", "deg", -180, 180, description="context only"),
+        num("elevation_m", "m", -500, 9000, description="context only"),
+        num("utc_offset_h", "h", -12, 14, description="context only"),
+        ground_field(
+            required=True,
+            missing="required: a ground preset name or {relative_permittivity, conductivity_s_m}",
+        ),
+        arr("supports", SUPPORT, schema={"maxItems": MAX_SUPPORTS}),
+        arr(
+            "hazards",
+            schema={"items": {"oneOf": [ref(POWER_LINE), ref(PATH)]}},
+            refers=(POWER_LINE, PATH),
+        ),
+    ),
+    "the site sketch: ground, supports, hazards",
+)
+SITE_CONTEXT = ("lat_deg", "lon_deg", "elevation_m", "utc_offset_h")
+SCHEDULE = Record(
+    "PlanSchedule",
+    (
+        string("start_utc", description="HH:MM", schema=_HHMM),
+        string("end_utc", description="HH:MM, 00:00-24:00", schema=_HHMM),
+    ),
+    "the operating window (UTC); used with the sky block to rank the channels",
+)
+RETRIM = Record(
+    "Retrim",
+    (
+        num(
+            "frequency_mhz",
+            "MHz",
+            MIN_CHANNEL_MHZ,
+            MAX_CHANNEL_MHZ,
+            required=True,
+            missing="required: the channel to re-trim for",
+            description="one of channels_mhz",
+        ),
+        string("form", *RETRIM_FORMS),
+        num("leg_now_m", "m", 0.5, 200),
+        num("dip_mhz", "MHz", 1.0, 40, description="the measured SWR dip"),
+        num("at_mhz", "MHz", 1.0, 40, description="analyser reading: frequency (with x_ohm)"),
+        num("r_ohm", "ohm", 0, 5000),
+        num("x_ohm", "ohm", -5000, 5000),
+    ),
+    "a measurement after raising: the SWR dip, or R + jX at a frequency",
+)
+PLAN = Record(
+    "PlanInput",
+    (
+        string("name", nullable=True, schema={"maxLength": MAX_NAME_LENGTH}),
+        nested("site", SITE, required=True),
+        num(
+            "channels_mhz",
+            "MHz",
+            MIN_CHANNEL_MHZ,
+            MAX_CHANNEL_MHZ,
+            required=True,
+            many=True,
+            schema={"minItems": 1, "maxItems": 12, "uniqueItems": True},
+        ),
+        string("form", *FORMS, description="default auto"),
+        nested("kit", KIT, required=True),
+        nested("radio", RADIO, required=True),
+        nested("sky", PLAN_SKY, nullable=True),
+        nested("schedule", SCHEDULE, nullable=True),
+        string("limit_set", *LIMIT_SETS, description=f"default {DEFAULT_LIMIT_SET}"),
+        nested("retrim", RETRIM, nullable=True),
+    ),
+    "the `fieldkit plan` input",
+)
 
 
 @dataclass(frozen=True)
@@ -156,14 +216,21 @@ class _Site:
     hazards: tuple[PowerLine | Path, ...]
 
 
+def _name(value: Any, field: str) -> str | None:
+    """A name shown with the plan: a string (or null) of at most 200 characters."""
+    if value is not None and (not isinstance(value, str) or len(value) > MAX_NAME_LENGTH):
+        raise InputError(field, f"expected a name of at most {MAX_NAME_LENGTH} characters")
+    return value
+
+
 def _site(value: Any) -> _Site:
     site = require_mapping(value, "site")
-    check_keys(site, "site", SITE_FIELDS)
-    if "ground" not in site:
-        raise InputError(
-            "site.ground",
-            "required: a ground preset name or {relative_permittivity, conductivity_s_m}",
-        )
+    SITE.check(site, "site")
+    SITE.require(site, "site")
+    _name(site.get("name"), "site.name")
+    for key in SITE_CONTEXT:
+        if key in site:
+            SITE.number(site, "site", key)
     ground, name = _ground(site["ground"])
     supports = tuple(parse_supports(site.get("supports", []), "site.supports"))
     hazards = tuple(parse_hazards(site.get("hazards", []), "site.hazards"))
@@ -172,12 +239,9 @@ def _site(value: Any) -> _Site:
 
 def _channels(value: Any) -> tuple[float, ...]:
     chans = array(value, "channels_mhz", min_items=1, max_items=MAX_CHANNELS)
+    channel = PLAN.field("channels_mhz")
     channels = tuple(
-        number(
-            c, join("channels_mhz", i), unit="MHz", minimum=MIN_CHANNEL_MHZ, maximum=MAX_CHANNEL_MHZ
-        )
-        * 1e6
-        for i, c in enumerate(chans)
+        channel.read_number(c, join("channels_mhz", i)) * 1e6 for i, c in enumerate(chans)
     )
     if len(set(channels)) != len(channels):
         raise InputError("channels_mhz", "each channel once, please")
@@ -205,8 +269,8 @@ def _schedule(value: Any) -> PlanSchedule | None:
     if value is None:
         return None
     sched = require_mapping(value, "schedule")
-    check_keys(sched, "schedule", SCHEDULE_FIELDS)
-    hours = {k: _utc_hours(sched[k], join("schedule", k)) for k in SCHEDULE_FIELDS if k in sched}
+    SCHEDULE.check(sched, "schedule")
+    hours = {k: _utc_hours(sched[k], join("schedule", k)) for k in SCHEDULE.names if k in sched}
     return PlanSchedule(
         sched.get("start_utc"), sched.get("end_utc"), hours.get("start_utc"), hours.get("end_utc")
     )
@@ -234,21 +298,21 @@ def _usable(supports: tuple[Support, ...]) -> tuple[tuple[float, float], list[st
     return mast_xy, [f"{s.id} is marked unsafe and is not used" for s in supports if s.unsafe]
 
 
-def _retrim_number(obj: Mapping[str, Any], key: str, unit: str, lo: float, hi: float) -> float:
-    return number(obj[key], join("retrim", key), unit=unit, minimum=lo, maximum=hi)
+def _retrim_number(obj: Mapping[str, Any], key: str) -> float:
+    return RETRIM.number(obj, "retrim", key)
 
 
 def _retrim_reading(obj: Mapping[str, Any]) -> dict[str, float]:
     """The measured dip, or the analyser's R + jX at a frequency."""
     if "dip_mhz" in obj:
-        return {"dip_hz": _retrim_number(obj, "dip_mhz", "MHz", 1.0, 40) * 1e6}
+        return {"dip_hz": _retrim_number(obj, "dip_mhz") * 1e6}
     if "at_mhz" in obj and "x_ohm" in obj:
         out = {
-            "at_hz": _retrim_number(obj, "at_mhz", "MHz", 1.0, 40) * 1e6,
-            "x_ohm": _retrim_number(obj, "x_ohm", "ohm", -5000, 5000),
+            "at_hz": _retrim_number(obj, "at_mhz") * 1e6,
+            "x_ohm": _retrim_number(obj, "x_ohm"),
         }
         if "r_ohm" in obj:
-            out["r_ohm"] = _retrim_number(obj, "r_ohm", "ohm", 0, 5000)
+            out["r_ohm"] = _retrim_number(obj, "r_ohm")
         return out
     raise InputError(
         "retrim.dip_mhz", "give the measured SWR dip (dip_mhz), or at_mhz with r_ohm and x_ohm"
@@ -260,14 +324,13 @@ def _retrim(value: Any, channels: tuple[float, ...]) -> Retrim | None:
     if value is None:
         return None
     obj = require_mapping(value, "retrim")
-    check_keys(obj, "retrim", RETRIM_FIELDS)
-    if "frequency_mhz" not in obj:
-        raise InputError("retrim.frequency_mhz", "required: the channel to re-trim for")
-    target = _retrim_number(obj, "frequency_mhz", "MHz", MIN_CHANNEL_MHZ, MAX_CHANNEL_MHZ) * 1e6
+    RETRIM.check(obj, "retrim")
+    RETRIM.require(obj, "retrim")
+    target = _retrim_number(obj, "frequency_mhz") * 1e6
     if all(abs(target - c) > 1.0 for c in channels):
         raise InputError("retrim.frequency_mhz", "expected one of channels_mhz")
     form = choice(obj["form"], "retrim.form", RETRIM_FORMS) if "form" in obj else None
-    leg = _retrim_number(obj, "leg_now_m", "m", 0.5, 200) if "leg_now_m" in obj else None
+    leg = _retrim_number(obj, "leg_now_m") if "leg_now_m" in obj else None
     return Retrim(target, form, leg, **_retrim_reading(obj))
 
 
@@ -296,10 +359,8 @@ def parse_plan(spec: Any) -> PlanInput:
         Naming the first bad field and what is expected.
     """
     obj = require_mapping(spec, "")
-    check_keys(obj, "", PLAN_FIELDS)
-    for key in PLAN_REQUIRED:
-        if key not in obj:
-            raise InputError(key, "required")
+    PLAN.check(obj, "")
+    PLAN.require(obj, "")
     site = _site(obj["site"])
     channels = _channels(obj["channels_mhz"])
     form = _form(obj, channels)
@@ -312,7 +373,7 @@ def parse_plan(spec: Any) -> PlanInput:
     mast_xy, unsafe_words = _usable(site.supports)
     retrim = _retrim(obj.get("retrim"), channels)
     return PlanInput(
-        name=obj.get("name"),
+        name=_name(obj.get("name"), "name"),
         supports=site.supports,
         hazards=site.hazards,
         masts=kit.masts,

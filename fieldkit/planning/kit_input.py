@@ -8,26 +8,15 @@ from dataclasses import dataclass
 from typing import Any
 
 from fieldkit.constants import STANDARD_GRAVITY_M_S2
-from fieldkit.errors import InputError, array, check_keys, number, require_mapping
+from fieldkit.errors import array, require_mapping
+from fieldkit.fields import Record, arr, nested, num, string
 from fieldkit.rigging.cut import WRAP_ALLOWANCE_M
-from fieldkit.rigging.feedline import Coax, parse_coax
+from fieldkit.rigging.feedline import COAX, Coax, parse_coax
 from fieldkit.rigging.layouts import Mechanics
-from fieldkit.rigging.mast import Mast, parse_masts
+from fieldkit.rigging.mast import MAST, MAX_MASTS, Mast, parse_masts
 from fieldkit.rigging.options import Kit
-from fieldkit.rigging.wire import KitWire, parse_wire
+from fieldkit.rigging.wire import WIRE, KitWire, parse_wire
 
-KIT_FIELDS = (
-    "wire",
-    "coax",
-    "feedpoint_mass_kg",
-    "masts",
-    "rope",
-    "throw_lines",
-    "tension_n",
-    "wrap_allowance_m",
-    "note",
-)
-ROPE_FIELDS = ("length_m", "diameter_mm", "mass_kg_per_m", "note")
 # Laid rope of polyester/nylon: about 0.8 × the fibre density over the rope's circle, 4 mm ≈ 10 g/m
 # (from memory, typical maker tables 9–12 g/m).
 ROPE_PACKED_DENSITY_KG_M3 = 800.0
@@ -35,6 +24,60 @@ DEFAULT_TENSION_N = (
     50.0  # a firm two-hand pull on a halyard (common practice); said in the warnings
 )
 DEFAULT_ROPE_DIAMETER_MM = 4.0
+ROPE = Record(
+    "Rope",
+    (
+        num(
+            "length_m",
+            "m",
+            1,
+            2000,
+            description="all the rope in the kit (checked against the hang)",
+        ),
+        num("diameter_mm", "mm", 1, 30, description=f"default {DEFAULT_ROPE_DIAMETER_MM:g} mm"),
+        num("mass_kg_per_m", "kg/m", 0, 1, description="instead of the diameter"),
+        string("note"),
+    ),
+    "the kit's rope",
+)
+KIT = Record(
+    "PlanKit",
+    (
+        nested(
+            "wire",
+            WIRE,
+            required=True,
+            missing="required: the antenna wire (diameter_mm, conductor, insulation)",
+        ),
+        nested(
+            "coax",
+            COAX,
+            required=True,
+            missing="required: coax class and length_m, or explicit loss and mass",
+        ),
+        num(
+            "feedpoint_mass_kg",
+            "kg",
+            0,
+            10,
+            required=True,
+            missing="required: balun (or centre insulator) mass in kg",
+        ),
+        arr("masts", MAST, schema={"maxItems": MAX_MASTS}),
+        nested("rope", ROPE),
+        arr("throw_lines", description="context only", schema={"items": {"type": "object"}}),
+        num("tension_n", "N", 5, 2000, description=f"end pull; default {DEFAULT_TENSION_N:g} N"),
+        num(
+            "wrap_allowance_m",
+            "m",
+            0,
+            1,
+            description=f"per end of each leg; default {WRAP_ALLOWANCE_M:g} m",
+        ),
+        string("note"),
+    ),
+    "the kit the plan may use",
+)
 
 
 @dataclass(frozen=True)
@@ -60,28 +103,9 @@ def rope_mass_kg_per_m(diameter_mm: float) -> float:
     return ROPE_PACKED_DENSITY_KG_M3 * math.pi * (diameter_mm * 1e-3 / 2) ** 2
 
 
-def _required(kit: Mapping[str, Any]) -> None:
-    if "wire" not in kit:
-        raise InputError(
-            "kit.wire", "required: the antenna wire (diameter_mm, conductor, insulation)"
-        )
-    if "coax" not in kit:
-        raise InputError("kit.coax", "required: coax class and length_m, or explicit loss and mass")
-
-
-def _feedpoint_mass_kg(kit: Mapping[str, Any]) -> float:
-    if "feedpoint_mass_kg" not in kit:
-        raise InputError(
-            "kit.feedpoint_mass_kg", "required: balun (or centre insulator) mass in kg"
-        )
-    return number(
-        kit["feedpoint_mass_kg"], "kit.feedpoint_mass_kg", unit="kg", minimum=0, maximum=10
-    )
-
-
 def _tension_n(kit: Mapping[str, Any], warnings: list[str]) -> float:
     if "tension_n" in kit:
-        return number(kit["tension_n"], "kit.tension_n", unit="N", minimum=5, maximum=2000)
+        return KIT.number(kit, "kit", "tension_n")
     warnings.append(
         f"kit.tension_n not given: planned for {DEFAULT_TENSION_N:g} N, a firm hand pull"
     )
@@ -92,20 +116,13 @@ def _rope(kit: Mapping[str, Any], warnings: list[str]) -> Rope:
     length, mass = None, rope_mass_kg_per_m(DEFAULT_ROPE_DIAMETER_MM)
     if "rope" in kit:
         rope = require_mapping(kit["rope"], "kit.rope")
-        check_keys(rope, "kit.rope", ROPE_FIELDS)
+        ROPE.check(rope, "kit.rope")
         if "length_m" in rope:
-            length = number(
-                rope["length_m"], "kit.rope.length_m", unit="m", minimum=1, maximum=2000
-            )
+            length = ROPE.number(rope, "kit.rope", "length_m")
         if "mass_kg_per_m" in rope:
-            mass = number(
-                rope["mass_kg_per_m"], "kit.rope.mass_kg_per_m", unit="kg/m", minimum=0, maximum=1
-            )
+            mass = ROPE.number(rope, "kit.rope", "mass_kg_per_m")
         elif "diameter_mm" in rope:
-            d = number(
-                rope["diameter_mm"], "kit.rope.diameter_mm", unit="mm", minimum=1, maximum=30
-            )
-            mass = rope_mass_kg_per_m(d)
+            mass = rope_mass_kg_per_m(ROPE.number(rope, "kit.rope", "diameter_mm"))
     if length is None:
         warnings.append("kit.rope.length_m not given: rope length is not checked")
     return Rope(length, mass)
@@ -114,7 +131,7 @@ def _rope(kit: Mapping[str, Any], warnings: list[str]) -> Rope:
 def _wrap_m(kit: Mapping[str, Any]) -> float:
     if "wrap_allowance_m" not in kit:
         return WRAP_ALLOWANCE_M
-    return number(kit["wrap_allowance_m"], "kit.wrap_allowance_m", unit="m", minimum=0, maximum=1)
+    return KIT.number(kit, "kit", "wrap_allowance_m")
 
 
 def _mechanics(
@@ -134,12 +151,13 @@ def _mechanics(
 def parse_kit(value: Any, *, ground, ground_name: str) -> KitInput:
     """Decode the plan input's ``kit`` (every error names its field, ``kit.rope.length_m``)."""
     kit = require_mapping(value, "kit")
-    check_keys(kit, "kit", KIT_FIELDS)
-    _required(kit)
+    KIT.check(kit, "kit")
+    KIT.require(kit, "kit", ("wire", "coax"))
     wire = parse_wire(kit["wire"], "kit.wire")
     coax = parse_coax(kit["coax"], "kit.coax")
     masts = parse_masts(kit.get("masts", []), "kit.masts")
-    balun = _feedpoint_mass_kg(kit)
+    KIT.require(kit, "kit", ("feedpoint_mass_kg",))
+    balun = KIT.number(kit, "kit", "feedpoint_mass_kg")
     warnings: list[str] = []
     tension = _tension_n(kit, warnings)
     rope = _rope(kit, warnings)

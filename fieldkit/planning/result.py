@@ -4,16 +4,67 @@ from __future__ import annotations
 
 from typing import Any
 
+from fieldkit.fields import Record, arr, nested, num, string
 from fieldkit.planning.inputs import PlanInput, Retrim
 from fieldkit.planning.records import FinishedOption, SkyFit
 from fieldkit.rigging.cut import EngineCounter, retrim
 from fieldkit.rigging.options import Refused
-from fieldkit.rigging.rigged import rigged_json
+from fieldkit.rigging.rigged import RIGGED_OPTION, rigged_json
+from fieldkit.safety.block import SAFETY_BLOCK
 
 RANKING_WORDS = (
     "options that fail a safety check come after all others; then the channel that best covers "
     "the schedule (sky estimate, when the sky and schedule are given); then score = mean NVIS "
     "gain over the 0–300 km elevations minus feedline loss"
+)
+PLAN_OPTION = Record(
+    "PlanOption",
+    (
+        *RIGGED_OPTION.fields,
+        nested("safety", SAFETY_BLOCK, required=True),
+        nested(
+            "sky",
+            description="the sky layer's schedule row for this channel (with a sky block)",
+            nullable=True,
+        ),
+        nested("retrim", description="with a retrim input on this channel and form"),
+    ),
+    RIGGED_OPTION.description,
+)
+SUMMARY = Record(
+    "PlanSummary",
+    (
+        string("form", required=True),
+        num("frequency_mhz", "MHz", required=True),
+        arr("supports_used", required=True, schema={"items": {"type": "string"}}),
+        num("score_db", "dB", required=True),
+        string("note", required=True),
+    ),
+    "an option not worked out in full",
+)
+REFUSED = Record(
+    "PlanRefusal",
+    (
+        string("form", required=True),
+        arr("supports_used", required=True, schema={"items": {"type": "string"}}),
+        num("frequency_mhz", "MHz", required=True),
+        string("why", required=True),
+    ),
+    "a form, supports and channel that cannot be done, and why",
+)
+PLAN_RESULT = Record(
+    "PlanResult",
+    (
+        string("name", required=True, nullable=True),
+        arr("options", PLAN_OPTION, required=True),
+        arr("more", SUMMARY, required=True),
+        arr("refused", REFUSED, required=True),
+        arr("warnings", required=True, schema={"items": {"type": "string"}}),
+        string("ranking", required=True),
+        nested("sky", required=True, nullable=True),
+        nested("engine", required=True, description="engine solves and seconds per phase"),
+    ),
+    "the `fieldkit plan` result",
 )
 NOT_IN_FULL_WORDS = (
     "not worked out in full; ask for this form and channel alone to see its cut list and checks"
@@ -22,13 +73,15 @@ NOT_IN_FULL_WORDS = (
 
 def summary_json(c) -> dict[str, Any]:
     """One line for an option not shown in full (a candidate or a finished option)."""
-    return {
-        "form": c.form,
-        "frequency_mhz": round(c.frequency_hz / 1e6, 6),
-        "supports_used": list(c.supports_used),
-        "score_db": round(c.score_db, 2),
-        "note": NOT_IN_FULL_WORDS,
-    }
+    return SUMMARY.written(
+        {
+            "form": c.form,
+            "frequency_mhz": round(c.frequency_hz / 1e6, 6),
+            "supports_used": list(c.supports_used),
+            "score_db": round(c.score_db, 2),
+            "note": NOT_IN_FULL_WORDS,
+        }
+    )
 
 
 def _retrim_applies(r: Retrim, o: FinishedOption) -> bool:
@@ -60,7 +113,7 @@ def option_json(
         out["sky"] = sky.row(o.frequency_hz)
     if shown and inp.retrim is not None and _retrim_applies(inp.retrim, o):
         out["retrim"] = retrim_json(inp.retrim, o)
-    return out
+    return PLAN_OPTION.written(out)
 
 
 def engine_json(engine: EngineCounter, times: dict[str, float], total_s: float) -> dict[str, Any]:
@@ -84,13 +137,15 @@ def plan_json(
     engine: dict[str, Any],
 ) -> dict[str, Any]:
     """The plan result of ARCHITECTURE.md."""
-    return {
-        "name": inp.name,
-        "options": [option_json(o, inp, sky, shown=True) for o in shown],
-        "more": more,
-        "refused": [r.to_json() for r in refused],
-        "warnings": list(inp.warnings),
-        "ranking": RANKING_WORDS,
-        "sky": None if sky is None else {"schedule": sky.schedule, "source": list(sky.source)},
-        "engine": engine,
-    }
+    return PLAN_RESULT.written(
+        {
+            "name": inp.name,
+            "options": [option_json(o, inp, sky, shown=True) for o in shown],
+            "more": more,
+            "refused": [REFUSED.written(r.to_json()) for r in refused],
+            "warnings": list(inp.warnings),
+            "ranking": RANKING_WORDS,
+            "sky": None if sky is None else {"schedule": sky.schedule, "source": list(sky.source)},
+            "engine": engine,
+        }
+    )

@@ -16,7 +16,8 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
-from fieldkit.errors import InputError, check_keys, choice, join, number, require_mapping
+from fieldkit.errors import InputError, choice, join, number, require_mapping
+from fieldkit.fields import Record, nested, num, string
 
 DB_PER_100FT_TO_DB_PER_100M = 3.281  # 1 dB/100 ft = 3.281 dB/100 m (REFERENCES.md)
 
@@ -54,16 +55,30 @@ def _fit(f1_mhz: float, a1: float, f2_mhz: float, a2: float) -> tuple[float, flo
     return k1, k2
 
 
+COAX = Record(
+    "Coax",
+    (
+        string("class", *COAX_CLASSES, description="a coax class, or explicit loss and mass"),
+        num("length_m", "m", 0.5, 500, required=True, missing="required: coax length in m"),
+        nested(
+            "loss_db_per_100m_at_mhz",
+            description='matched loss [dB/100 m] by frequency in MHz, e.g. {"1": 1.1, "10": 3.9}',
+            schema={"additionalProperties": {"type": "number", "minimum": 0, "maximum": 100}},
+        ),
+        num("mass_kg_per_m", "kg/m", 0, 2),
+        string("note"),
+    ),
+    "the feedline: a class and length, or explicit loss and mass",
+)
+
+
 def parse_coax(value: Any, field: str = "kit.coax") -> Coax:
     """A coax class name and length, or an explicit line:
     ``{"loss_db_per_100m_at_mhz": {"1": 1.1, "10": 3.9}, "mass_kg_per_m": 0.04, "length_m": 25}``."""
     obj = require_mapping(value, field)
-    check_keys(
-        obj, field, ("class", "length_m", "loss_db_per_100m_at_mhz", "mass_kg_per_m", "note")
-    )
-    if "length_m" not in obj:
-        raise InputError(join(field, "length_m"), "required: coax length in m")
-    length = number(obj["length_m"], join(field, "length_m"), unit="m", minimum=0.5, maximum=500)
+    COAX.check(obj, field)
+    COAX.require(obj, field)
+    length = COAX.number(obj, field, "length_m")
     if "class" in obj:
         if "loss_db_per_100m_at_mhz" in obj:
             raise InputError(
@@ -75,13 +90,7 @@ def parse_coax(value: Any, field: str = "kit.coax") -> Coax:
             1.0, a1 * DB_PER_100FT_TO_DB_PER_100M, 10.0, a10 * DB_PER_100FT_TO_DB_PER_100M
         )
         if "mass_kg_per_m" in obj:
-            mass = number(
-                obj["mass_kg_per_m"],
-                join(field, "mass_kg_per_m"),
-                unit="kg/m",
-                minimum=0,
-                maximum=2,
-            )
+            mass = COAX.number(obj, field, "mass_kg_per_m")
         return Coax(f"{name} class (nominal)", k1, k2, mass, length)
     lf = join(field, "loss_db_per_100m_at_mhz")
     if "loss_db_per_100m_at_mhz" not in obj:
@@ -110,9 +119,7 @@ def parse_coax(value: Any, field: str = "kit.coax") -> Coax:
         raise InputError(
             join(field, "mass_kg_per_m"), "required with explicit loss: coax mass in kg/m"
         )
-    mass = number(
-        obj["mass_kg_per_m"], join(field, "mass_kg_per_m"), unit="kg/m", minimum=0, maximum=2
-    )
+    mass = COAX.number(obj, field, "mass_kg_per_m")
     return Coax("explicit", k1, k2, mass, length)
 
 

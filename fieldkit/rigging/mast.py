@@ -12,7 +12,8 @@ from dataclasses import dataclass
 from typing import Any
 
 from fieldkit.constants import STANDARD_GRAVITY_M_S2
-from fieldkit.errors import InputError, array, check_keys, join, number, require_mapping, text
+from fieldkit.errors import array, join, require_mapping, text
+from fieldkit.fields import Record, num, string
 
 # Guy anchors at about 0.7 × the guy attachment height from the mast foot (guys near 55° to the
 # ground) — common practice for light telescopic masts, no single source.
@@ -30,26 +31,34 @@ class Mast:
     guys: int
 
 
+MAX_MASTS = 10
+MAST = Record(
+    "Mast",
+    (
+        string("id", required=True, description="at most 20 characters"),
+        string("kind"),
+        num("height_m", "m", 1, 40, required=True, description="extended height"),
+        num("top_load_kg", "kg", 0, 200, required=True, description="the maker's top-load rating"),
+        num("guys", "", 0, 12, integer=True, description="default 3"),
+        string("note"),
+    ),
+    "a kit mast",
+)
+
+
 def parse_masts(value: Any, field: str = "kit.masts") -> list[Mast]:
-    items = array(value, field, max_items=10)
     out = []
-    for i, item in enumerate(items):
+    for i, item in enumerate(array(value, field, max_items=MAX_MASTS)):
         f = join(field, i)
         obj = require_mapping(item, f)
-        check_keys(obj, f, ("id", "kind", "height_m", "top_load_kg", "guys", "note"))
-        for key in ("id", "height_m", "top_load_kg"):
-            if key not in obj:
-                raise InputError(join(f, key), "required")
-        guys = int(number(obj.get("guys", 3), join(f, "guys"), minimum=0, maximum=12, integer=True))
+        MAST.check(obj, f)
+        MAST.require(obj, f)
+        guys = int(MAST.number(obj, f, "guys", default=3))
         out.append(
             Mast(
                 id=text(obj["id"], join(f, "id"), max_length=20),
-                height_m=number(
-                    obj["height_m"], join(f, "height_m"), unit="m", minimum=1, maximum=40
-                ),
-                top_load_kg=number(
-                    obj["top_load_kg"], join(f, "top_load_kg"), unit="kg", minimum=0, maximum=200
-                ),
+                height_m=MAST.number(obj, f, "height_m"),
+                top_load_kg=MAST.number(obj, f, "top_load_kg"),
                 guys=guys,
             )
         )

@@ -14,6 +14,7 @@ from typing import Any
 import numpy as np
 
 from fieldkit.constants import SPEED_OF_LIGHT_M_S, STANDARD_GRAVITY_M_S2
+from fieldkit.fields import Record, arr, nested, num, string
 from fieldkit.rigging.cut import Resonance, SwrCurve, cut_json
 from fieldkit.rigging.feedline import feedline_json
 from fieldkit.rigging.heights import HeightPoint, sweep_json
@@ -30,6 +31,47 @@ SECTIONS_NOTE = (
     "per leg, feedpoint outward; add the wrap allowance at each link and the end insulator"
 )
 NVIS_FIGURE_WORDS = "mean gain over the elevations that serve 0–300 km (take-off angle to zenith)"
+_OBJECT = {"type": "object"}
+_NUMBERS = {"type": "array", "items": {"type": "number"}}
+RIGGED_OPTION = Record(
+    "RiggedOption",
+    (
+        string("form", "flat", "sloping", "inverted-v", "linked", required=True),
+        num("frequency_mhz", "MHz", required=True),
+        arr("supports_used", required=True, schema={"items": {"type": "string"}}),
+        nested("rope_heights_m", required=True, description="rope height per support id [m]"),
+        arr("end_heights_m", required=True, schema={"items": {"type": "number"}}),
+        arr(
+            "hung_wire_m",
+            required=True,
+            description="the wire as it will hang: a model spec's points_m",
+            schema={"items": _NUMBERS},
+        ),
+        num("feed_distance_m", "m", required=True, description="along hung_wire_m"),
+        nested("wire", required=True, description="the kit wire"),
+        nested(
+            "cut", required=True, description="leg_m per leg, wrap_allowance_m, total_wire_m, trim"
+        ),
+        num("feedpoint_height_m", "m", required=True),
+        num("feedpoint_height_wavelengths", "", required=True),
+        num("sag_m", "m", required=True),
+        nested("impedance_ohm", required=True, description="r and x at the channel [Ω]"),
+        num("swr", "", required=True),
+        nested("swr_curve", required=True),
+        nested("nvis", required=True, description="zenith gain, beamwidth, mean NVIS gain"),
+        arr("height_sweep", required=True, schema={"items": _OBJECT}),
+        string("height_choice", required=True),
+        nested("mast", required=True, nullable=True),
+        nested("feedline", required=True, description="loss and mass"),
+        nested("rigging", required=True, description="loads and rope"),
+        arr("warnings", required=True, schema={"items": {"type": "string"}}),
+        num("score_db", "dB", required=True),
+        num("apex_angle_deg", "deg", description="inverted-V only"),
+        arr("links", description="linked dipole only", schema={"items": _OBJECT}),
+        num("channels_mhz", "MHz", many=True, description="linked dipole only"),
+    ),
+    "one plan option, best first",
+)
 
 
 @dataclass(frozen=True)
@@ -260,4 +302,4 @@ def rigged_json(r: RiggedOption, kit) -> dict[str, Any]:
     if r.linked is not None:
         option["links"] = list(r.linked.links)
         option["channels_mhz"] = [round(c / 1e6, 6) for c in r.linked.channels_hz]
-    return option
+    return RIGGED_OPTION.written(option)

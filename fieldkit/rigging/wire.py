@@ -12,7 +12,8 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
-from fieldkit.errors import InputError, check_keys, choice, join, number, require_mapping
+from fieldkit.errors import InputError, choice, join, require_mapping
+from fieldkit.fields import Record, nested, num, string
 
 CONDUCTORS = ("perfect", "copper", "aluminium", "copper-clad-steel", "steel")
 # Densities [kg/m³]: copper 8890 (REFERENCES.md, from memory); aluminium 2700, steel 7850, PVC jacket
@@ -73,22 +74,46 @@ class KitWire:
         return out
 
 
+INSULATION = Record(
+    "WireInsulation",
+    (
+        num("thickness_mm", "mm", 0, 10, required=True),
+        num("relative_permittivity", "", 1, 20, required=True),
+    ),
+    "the wire's jacket",
+)
+WIRE = Record(
+    "KitWire",
+    (
+        num("diameter_mm", "mm", 0.2, 20, description="conductor diameter (or awg)"),
+        num(
+            "awg",
+            "",
+            0,
+            40,
+            integer=True,
+            description="AWG gauge (ASTM B258), instead of diameter_mm",
+        ),
+        string("conductor", *CONDUCTORS, description="default copper"),
+        nested("insulation", INSULATION, nullable=True),
+        num("spool_m", "m", 0, exclusive_minimum=True, description="wire on the spool"),
+        string("note"),
+    ),
+    "the kit's antenna wire: diameter_mm or awg",
+    one_of=(("diameter_mm", "awg"),),
+)
+
+
 def parse_wire(value: Any, field: str = "kit.wire") -> KitWire:
     """Validate the kit wire: ``diameter_mm`` or ``awg``, ``conductor``, optional ``insulation``, ``spool_m``."""
     obj = require_mapping(value, field)
-    check_keys(obj, field, ("diameter_mm", "awg", "conductor", "insulation", "spool_m", "note"))
+    WIRE.check(obj, field)
     if "diameter_mm" in obj and "awg" in obj:
         raise InputError(join(field, "awg"), "give either diameter_mm or awg, not both")
     if "awg" in obj:
-        gauge = number(obj["awg"], join(field, "awg"), minimum=0, maximum=40, integer=True)
-        diameter = awg_diameter_m(int(gauge))
+        diameter = awg_diameter_m(int(WIRE.number(obj, field, "awg")))
     elif "diameter_mm" in obj:
-        diameter = (
-            number(
-                obj["diameter_mm"], join(field, "diameter_mm"), unit="mm", minimum=0.2, maximum=20
-            )
-            * 1e-3
-        )
+        diameter = WIRE.number(obj, field, "diameter_mm") * 1e-3
     else:
         raise InputError(join(field, "diameter_mm"), "required: the wire diameter in mm (or awg)")
     conductor = choice(obj.get("conductor", "copper"), join(field, "conductor"), CONDUCTORS)
@@ -96,24 +121,12 @@ def parse_wire(value: Any, field: str = "kit.wire") -> KitWire:
     if obj.get("insulation") is not None:
         ifield = join(field, "insulation")
         ins = require_mapping(obj["insulation"], ifield)
-        check_keys(ins, ifield, ("thickness_mm", "relative_permittivity"))
+        INSULATION.check(ins, ifield)
         if "thickness_mm" not in ins or "relative_permittivity" not in ins:
             raise InputError(ifield, "expected thickness_mm and relative_permittivity")
-        thickness = (
-            number(
-                ins["thickness_mm"], join(ifield, "thickness_mm"), unit="mm", minimum=0, maximum=10
-            )
-            * 1e-3
-        )
-        eps = number(
-            ins["relative_permittivity"],
-            join(ifield, "relative_permittivity"),
-            minimum=1,
-            maximum=20,
-        )
+        thickness = INSULATION.number(ins, ifield, "thickness_mm") * 1e-3
+        eps = INSULATION.number(ins, ifield, "relative_permittivity")
     spool = None
     if obj.get("spool_m") is not None:
-        spool = number(
-            obj["spool_m"], join(field, "spool_m"), unit="m", exclusive_minimum=True, minimum=0
-        )
+        spool = WIRE.number(obj, field, "spool_m")
     return KitWire(diameter, conductor, thickness, eps, spool)

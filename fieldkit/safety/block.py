@@ -14,13 +14,14 @@ from typing import Any
 import numpy as np
 
 from fieldkit.errors import InputError, join, require_mapping
+from fieldkit.fields import Record, arr, flag, nested, num, string
 from fieldkit.safety.checked_option import CheckedOption, MastAtSite, option_from_json
 from fieldkit.safety.checklists import ChecklistItem, slug
 from fieldkit.safety.duty import Radio, parse_radio
 from fieldkit.safety.exposure import KeepOut, Landmark, keep_out
 from fieldkit.safety.hazards import Path, PowerLine, parse_hazards
 from fieldkit.safety.items import OptionFindings, option_items
-from fieldkit.safety.limits import ExposureLimit, exposure_limit, parse_limit_set
+from fieldkit.safety.limits import LIMIT_SETS, ExposureLimit, exposure_limit, parse_limit_set
 from fieldkit.safety.oet65 import oet65_estimate
 from fieldkit.safety.plan_view import compass_word
 from fieldkit.safety.powerlines import Clearance, Rig, RiggedSupport, line_clearances
@@ -38,6 +39,41 @@ CAUTIONS = (
     "as unknown. Call the utility if in doubt.",
     "Lightning: when thunder roars, go indoors; stay in shelter 30 minutes after the last thunder (US "
     "National Weather Service).",
+)
+SAFETY_BLOCK = Record(
+    "SafetyBlock",
+    (
+        string("limit_set", *LIMIT_SETS, required=True),
+        num(
+            "keep_out_m",
+            "m",
+            0,
+            required=True,
+            description="largest horizontal distance from the wire at which a 1.8 m person is over the limit",
+        ),
+        arr(
+            "keep_out_outline_m",
+            required=True,
+            description="the zone at 1.8 m: a polygon [[x, y], ...]",
+        ),
+        num(
+            "min_end_height_m",
+            "m",
+            required=True,
+            description="end height with no zone under the ends",
+        ),
+        arr("clearances", required=True, schema={"items": {"type": "object"}}),
+        flag(
+            "raise_ok", required=True, description="false when any clearance or required rule fails"
+        ),
+        arr("reasons", required=True, schema={"items": {"type": "string"}}),
+        arr("checklist", required=True, schema={"items": {"type": "object"}}),
+        arr("cautions", required=True, schema={"items": {"type": "string"}}),
+        nested(
+            "exposure", required=True, description="per end and height, OET 65 estimate, method"
+        ),
+    ),
+    "the pre-raise safety findings of one option",
 )
 EXPOSURE_METHOD = (
     "engine near field (E and H, ground included) of the hung wire at the radio's power, "
@@ -164,18 +200,20 @@ class SafetyResult:
 
     def to_json(self) -> dict[str, Any]:
         ko = self.keep_out
-        return {
-            "limit_set": self.limit.limit_set,
-            "keep_out_m": round(ko.keep_out_m, 2),
-            "keep_out_outline_m": ko.outline_m,
-            "min_end_height_m": self.min_end_height_m,
-            "clearances": [c.to_json() for c in self.clearances],
-            "raise_ok": self.raise_ok,
-            "reasons": list(self.reasons),
-            "checklist": [it.to_json() for it in self.checklist],
-            "cautions": list(CAUTIONS),
-            "exposure": _exposure_json(self),
-        }
+        return SAFETY_BLOCK.written(
+            {
+                "limit_set": self.limit.limit_set,
+                "keep_out_m": round(ko.keep_out_m, 2),
+                "keep_out_outline_m": ko.outline_m,
+                "min_end_height_m": self.min_end_height_m,
+                "clearances": [c.to_json() for c in self.clearances],
+                "raise_ok": self.raise_ok,
+                "reasons": list(self.reasons),
+                "checklist": [it.to_json() for it in self.checklist],
+                "cautions": list(CAUTIONS),
+                "exposure": _exposure_json(self),
+            }
+        )
 
 
 def _pt(p) -> list[float]:

@@ -16,7 +16,8 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import Any
 
-from fieldkit.errors import InputError, check_keys, choice, join, number, require_mapping
+from fieldkit.errors import choice, join, require_mapping
+from fieldkit.fields import Record, num, string
 
 #: Mode duty factor: average power over peak-envelope power while keyed (OET 65 Suppl. B, from memory).
 MODE_DUTY_FACTOR: dict[str, float] = {
@@ -66,6 +67,38 @@ class Radio:
         }
 
 
+RADIO = Record(
+    "Radio",
+    (
+        num(
+            "power_w",
+            "W",
+            0.0,
+            required=True,
+            exclusive_minimum=True,
+            missing="missing; expected the transmitter power in W",
+            description="peak-envelope power into the feedline",
+        ),
+        string(
+            "mode",
+            *MODE_DUTY_FACTOR,
+            required=True,
+            missing=f"missing; expected one of: {', '.join(MODE_DUTY_FACTOR)}",
+        ),
+        num(
+            "transmit_fraction",
+            "",
+            0.0,
+            1.0,
+            exclusive_minimum=True,
+            description="share of the averaging time on the air (default 1, the worst case)",
+        ),
+        string("note"),
+    ),
+    "the transmitter, as far as RF exposure is concerned",
+)
+
+
 def parse_radio(value: Any, field: str = "radio") -> Radio:
     """Validate the radio JSON: ``{"power_w", "mode", "transmit_fraction"?}``.
 
@@ -73,24 +106,11 @@ def parse_radio(value: Any, field: str = "radio") -> Radio:
     worst case 1.0 is used and said so in the output.
     """
     obj: Mapping[str, Any] = require_mapping(value, field)
-    check_keys(obj, field, ("power_w", "mode", "transmit_fraction", "note"))
-    if "power_w" not in obj:
-        raise InputError(join(field, "power_w"), "missing; expected the transmitter power in W")
-    if "mode" not in obj:
-        raise InputError(
-            join(field, "mode"), f"missing; expected one of: {', '.join(MODE_DUTY_FACTOR)}"
-        )
-    power = number(
-        obj["power_w"], join(field, "power_w"), unit="W", minimum=0.0, exclusive_minimum=True
-    )
+    RADIO.check(obj, field)
+    RADIO.require(obj, field)
+    power = RADIO.number(obj, field, "power_w")
     mode = choice(obj["mode"], join(field, "mode"), MODE_DUTY_FACTOR)
     fraction = DEFAULT_TRANSMIT_FRACTION
     if "transmit_fraction" in obj:
-        fraction = number(
-            obj["transmit_fraction"],
-            join(field, "transmit_fraction"),
-            minimum=0.0,
-            exclusive_minimum=True,
-            maximum=1.0,
-        )
+        fraction = RADIO.number(obj, field, "transmit_fraction")
     return Radio(power_w=power, mode=mode, transmit_fraction=fraction)

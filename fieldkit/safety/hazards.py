@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from collections.abc import Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any
 
 import numpy as np
@@ -11,15 +11,53 @@ import numpy as np
 from fieldkit.errors import (
     InputError,
     array,
-    check_keys,
     choice,
     join,
     number,
     require_mapping,
     text,
 )
+from fieldkit.fields import Record, arr, num, string
 
 HAZARD_KINDS = ("power_line", "path")
+_KIND = string(
+    "kind", required=True, missing=f"missing; expected one of: {', '.join(HAZARD_KINDS)}"
+)
+_POINTS = arr(
+    "points_m",
+    required=True,
+    missing="missing; expected [[x_m, y_m], ...] (2 or more)",
+    description="plan polyline [[x_m, y_m], ...], 2 points or more",
+    schema={
+        "minItems": 2,
+        "items": {"type": "array", "items": {"type": "number"}, "minItems": 2, "maxItems": 2},
+    },
+)
+POWER_LINE = Record(
+    "PowerLine",
+    (
+        replace(_KIND, choices=("power_line",)),
+        _POINTS,
+        num(
+            "height_m",
+            "m",
+            0.0,
+            required=True,
+            exclusive_minimum=True,
+            missing="missing; expected the height of the lowest conductor above ground in m",
+            description="the lowest conductor above ground",
+        ),
+        num("voltage_kv", "kV", 0.0, 1000.0, exclusive_minimum=True),
+        string("note"),
+        string("id"),
+    ),
+    "an overhead power line on the site sketch",
+)
+PATH = Record(
+    "Path",
+    (replace(_KIND, choices=("path",)), _POINTS, string("note"), string("id")),
+    "a path, track or walkway people use",
+)
 #: Voltage assumed when a power line's voltage is not given [kV]: the top of the band for which
 #: 29 CFR 1910.333(c)(3) asks 10 ft; distribution lines along tracks are usually below it.
 ASSUMED_LINE_VOLTAGE_KV = 50.0
@@ -70,6 +108,20 @@ def _note(obj: Mapping[str, Any], field: str) -> str:
     return text(obj["note"], join(field, "note"), max_length=500) if "note" in obj else ""
 
 
+def _power_line(obj: Mapping[str, Any], f: str) -> PowerLine:
+    POWER_LINE.check(obj, f)
+    pts = _plan_points(obj["points_m"], join(f, "points_m"))
+    POWER_LINE.require(obj, f, ("height_m",))
+    height = POWER_LINE.number(obj, f, "height_m")
+    volts = POWER_LINE.number(obj, f, "voltage_kv") if "voltage_kv" in obj else None
+    return PowerLine(points_m=pts, height_m=height, voltage_kv=volts, note=_note(obj, f))
+
+
+def _path(obj: Mapping[str, Any], f: str) -> Path:
+    PATH.check(obj, f)
+    return Path(points_m=_plan_points(obj["points_m"], join(f, "points_m")), note=_note(obj, f))
+
+
 def parse_hazards(value: Any, field: str = "site.hazards") -> list[PowerLine | Path]:
     """Validate the site's hazards.
 
@@ -96,42 +148,10 @@ def parse_hazards(value: Any, field: str = "site.hazards") -> list[PowerLine | P
     for i, raw in enumerate(array(value, field)):
         f = join(field, i)
         obj = require_mapping(raw, f)
+        kind_field = POWER_LINE.field("kind")
         if "kind" not in obj:
-            raise InputError(
-                join(f, "kind"), f"missing; expected one of: {', '.join(HAZARD_KINDS)}"
-            )
+            raise InputError(join(f, "kind"), kind_field.missing)
         kind = choice(obj["kind"], join(f, "kind"), HAZARD_KINDS)
-        if "points_m" not in obj:
-            raise InputError(join(f, "points_m"), "missing; expected [[x_m, y_m], ...] (2 or more)")
-        if kind == "power_line":
-            check_keys(obj, f, ("kind", "points_m", "height_m", "voltage_kv", "note", "id"))
-            pts = _plan_points(obj["points_m"], join(f, "points_m"))
-            if "height_m" not in obj:
-                raise InputError(
-                    join(f, "height_m"),
-                    "missing; expected the height of the lowest conductor above ground in m",
-                )
-            height = number(
-                obj["height_m"], join(f, "height_m"), unit="m", minimum=0.0, exclusive_minimum=True
-            )
-            volts = None
-            if "voltage_kv" in obj:
-                volts = number(
-                    obj["voltage_kv"],
-                    join(f, "voltage_kv"),
-                    unit="kV",
-                    minimum=0.0,
-                    exclusive_minimum=True,
-                    maximum=1000.0,
-                )
-            out.append(
-                PowerLine(points_m=pts, height_m=height, voltage_kv=volts, note=_note(obj, f))
-            )
-        else:
-            check_keys(obj, f, ("kind", "points_m", "note", "id"))
-            out.append(
-                Path(
-                    points_m=_plan_points(obj["points_m"], join(f, "points_m")), note=_note(obj, f)
-                )
-            )
+        POWER_LINE.require(obj, f, ("points_m",))
+        out.append(_power_line(obj, f) if kind == "power_line" else _path(obj, f))
     return out

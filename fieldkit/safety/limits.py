@@ -20,6 +20,7 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Literal
 
+from fieldkit.constants import ETA0
 from fieldkit.errors import InputError, choice
 
 LimitSetName = Literal["fcc-uncontrolled", "fcc-controlled", "icnirp-public", "icnirp-occupational"]
@@ -30,8 +31,8 @@ LIMIT_SETS: tuple[str, ...] = (
     "icnirp-occupational",
 )
 
-#: Impedance of free space [ohm] (CODATA: μ0·c, 376.730 Ω) — plane-wave equivalent power density S = E²/η0.
-FREE_SPACE_IMPEDANCE_OHM = 376.730313668
+#: Impedance of free space [ohm] (μ0·c, fieldkit.constants) — plane-wave equivalent power density S = E²/η0.
+FREE_SPACE_IMPEDANCE_OHM = ETA0
 #: 1 mW/cm² in W/m² (unit conversion).
 W_PER_M2_PER_MW_PER_CM2 = 10.0
 

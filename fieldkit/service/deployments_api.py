@@ -6,7 +6,8 @@ from typing import Any
 
 from flask import Blueprint, current_app, jsonify
 
-from fieldkit.errors import InputError, text
+from fieldkit.errors import text
+from fieldkit.fields import Record, string
 from fieldkit.service.http import json_body
 from fieldkit.service.readiness import checklist_state, plan_cache, run_plan
 from fieldkit.service.request_db import get_db
@@ -17,12 +18,36 @@ bp = Blueprint("deployments", __name__, url_prefix="/api/deployments")
 
 MAX_NAME_LENGTH = 200
 SERVICE_FIELDS = ("name", "client_id")
+DEPLOYMENT_FIELDS = Record(
+    "DeploymentFields",
+    (
+        string(
+            "name",
+            required=True,
+            missing="missing; expected the deployment's name (1-200 characters)",
+            schema={"minLength": 1, "maxLength": MAX_NAME_LENGTH},
+        ),
+        string("client_id", description="client-made id: replays are idempotent"),
+    ),
+    "what a deployment adds to its plan input",
+)
+
+
+def deployment_input() -> Record:
+    """The deployment body's table: the service's fields, then the plan input's (but its name)."""
+    from fieldkit.planning.inputs import PLAN
+
+    plan_fields = tuple(f for f in PLAN.fields if f.name not in DEPLOYMENT_FIELDS.names)
+    return Record(
+        "DeploymentInput",
+        DEPLOYMENT_FIELDS.fields + plan_fields,
+        "a plan input plus the deployment's name",
+    )
 
 
 def split_body(body: dict[str, Any]) -> tuple[str, str | None, dict[str, Any]]:
     """``(name, client_id, plan input)`` from a deployment body: a plan input plus ``name``."""
-    if "name" not in body:
-        raise InputError("name", "missing; expected the deployment's name (1-200 characters)")
+    DEPLOYMENT_FIELDS.require(body, "")
     name = text(body["name"], "name", max_length=MAX_NAME_LENGTH)
     client_id = body.get("client_id")
     if client_id is not None:

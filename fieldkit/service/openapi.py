@@ -1,4 +1,9 @@
-"""``GET /api/openapi.json``: the API as OpenAPI 3.1 (a test checks it against the URL map)."""
+"""``GET /api/openapi.json``: the API as OpenAPI 3.1 (a test checks it against the URL map).
+
+The calculators' request and result schemas (model, sky, plan, deployment input) are written from
+the field tables their parsers and writers use (:mod:`fieldkit.fields`); a test posts every
+documented top-level field and checks that the parser and the schema require the same ones.
+"""
 
 from __future__ import annotations
 
@@ -68,7 +73,17 @@ PATHS: dict[str, Any] = {
     "/api/model": {
         "post": _op(
             "Solve wire antennas over ground (the `fieldkit model` contract).",
-            {"200": _json(_OBJECT, "model results")},
+            {
+                "200": _json(
+                    {
+                        "oneOf": [
+                            _ref("ModelResult"),
+                            {"type": "array", "items": _ref("ModelResult")},
+                        ]
+                    },
+                    "model results (an array for an array of specs)",
+                )
+            },
             body={"oneOf": [_ref("ModelSpec"), {"type": "array", "items": _ref("ModelSpec")}]},
             tag="calc",
             errors={**_ERRORS, **_LAYER},
@@ -77,7 +92,7 @@ PATHS: dict[str, Any] = {
     "/api/sky": {
         "post": _op(
             "The channel day: foF2, hmF2 and reach per channel and hour (`fieldkit sky`).",
-            {"200": _json(_OBJECT, "sky estimate")},
+            {"200": _json(_ref("SkyResult"), "sky estimate")},
             body=_ref("SkySpec"),
             tag="calc",
             errors={**_ERRORS, **_LAYER},
@@ -273,69 +288,6 @@ SCHEMAS: dict[str, Any] = {
         "required": ["ok", "version"],
         "properties": {"ok": {"type": "boolean"}, "version": _STRING, "lan": {"type": "boolean"}},
     },
-    "ModelSpec": {
-        "type": "object",
-        "required": ["ground", "wires", "feed"],
-        "properties": {
-            "frequency_mhz": _NUMBER,
-            "frequencies_mhz": {"type": "array", "items": _NUMBER},
-            "ground": {"oneOf": [_STRING, _OBJECT]},
-            "wires": {"type": "array", "items": _OBJECT},
-            "feed": _OBJECT,
-            "power_w": _NUMBER,
-            "reference_impedance_ohm": _NUMBER,
-            "pattern": _OBJECT,
-            "near_field": _OBJECT,
-        },
-    },
-    "SkySpec": {
-        "type": "object",
-        "required": ["site", "date", "channels_mhz"],
-        "properties": {
-            "site": _OBJECT,
-            "date": {"type": "string", "format": "date"},
-            "solar": _OBJECT,
-            "channels_mhz": {"type": "array", "items": _NUMBER},
-            "sounding": _OBJECT,
-            "antenna": _OBJECT,
-            "power_w": _NUMBER,
-            "mode": _STRING,
-            "noise_environment": _STRING,
-        },
-    },
-    "PlanInput": {
-        "type": "object",
-        "required": ["site", "channels_mhz", "kit"],
-        "properties": {
-            "site": _OBJECT,
-            "channels_mhz": {"type": "array", "items": _NUMBER},
-            "form": {"enum": ["flat", "inverted-v", "sloping", "linked", "auto"]},
-            "kit": _OBJECT,
-            "radio": _OBJECT,
-            "sky": _OBJECT,
-        },
-    },
-    "PlanResult": {
-        "type": "object",
-        "required": ["options"],
-        "properties": {"options": {"type": "array", "items": _OBJECT}},
-    },
-    "DeploymentInput": {
-        "allOf": [
-            _ref("PlanInput"),
-            {
-                "type": "object",
-                "required": ["name"],
-                "properties": {
-                    "name": {"type": "string", "minLength": 1, "maxLength": 200},
-                    "client_id": {
-                        "type": "string",
-                        "description": "client-made id: replays are idempotent",
-                    },
-                },
-            },
-        ]
-    },
     "Created": {
         "type": "object",
         "required": ["id"],
@@ -480,6 +432,20 @@ RESPONSES = {
 }
 
 
+def input_schemas() -> dict[str, Any]:
+    """The calculators' request and result schemas, from the field tables their parsers and JSON
+    writers use (imported here, at request time, so the service starts without the calculators)."""
+    from fieldkit.fields import schemas
+    from fieldkit.model_fields import MODEL, MODEL_RESULT
+    from fieldkit.planning.inputs import PLAN
+    from fieldkit.planning.result import PLAN_RESULT
+    from fieldkit.service.deployments_api import deployment_input
+    from fieldkit.sky.day import SKY_RESULT
+    from fieldkit.sky.inputs import SKY
+
+    return schemas(MODEL, MODEL_RESULT, SKY, SKY_RESULT, PLAN, PLAN_RESULT, deployment_input())
+
+
 def document() -> dict[str, Any]:
     return {
         "openapi": "3.1.0",
@@ -491,7 +457,7 @@ def document() -> dict[str, Any]:
         "servers": [{"url": "/"}],
         "paths": PATHS,
         "components": {
-            "schemas": SCHEMAS,
+            "schemas": {**SCHEMAS, **input_schemas()},
             "responses": RESPONSES,
             "securitySchemes": {
                 "key_header": {"type": "apiKey", "in": "header", "name": "X-Fieldkit-Key"},

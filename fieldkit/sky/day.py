@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from typing import Any
 
+from fieldkit.fields import Field, Record, arr, nested, num, string
 from fieldkit.sky import path_geometry
 from fieldkit.sky.gain import elevation_gains
 from fieldkit.sky.inputs import SkySpec, parse_sky_spec
@@ -51,6 +52,50 @@ def _local(hour: float | None, offset: float | None) -> str | None:
     if hour is None or offset is None:
         return None
     return clock_text(hour + offset)
+
+
+SKY_RESULT = Record(
+    "SkyResult",
+    (
+        string("notice", required=True),
+        nested("site", required=True),
+        string("date", required=True, schema={"format": "date"}),
+        nested("solar", required=True),
+        nested("radio", required=True),
+        nested("antenna", required=True, description="the given model spec, or the default dipole"),
+        arr("hours_utc", required=True),
+        arr("local_times", required=True),
+        arr("fof2_mhz", required=True, description="per hour"),
+        arr("hmf2_km", required=True),
+        arr("reflection_height_km", required=True),
+        arr("muf3000_mhz", required=True),
+        arr("fot_mhz", required=True),
+        arr("sky_source", required=True, schema={"items": {"type": "string"}}),
+        arr("solar_zenith_deg", required=True),
+        num("gyro_frequency_mhz", "MHz", required=True),
+        Field(
+            "sunrise_utc", required=True, description="HH:MM, or null when the sun does not rise"
+        ),
+        Field("sunset_utc", required=True),
+        Field("sunrise_local", required=True),
+        Field("sunset_local", required=True),
+        Field("solar_noon_utc", required=True),
+        Field("polar", required=True),
+        arr("distances_km", required=True),
+        arr(
+            "channels",
+            required=True,
+            description="per channel: by_hour rows (skip_km, max_range_km, verdict, snr_db)",
+            schema={"items": {"type": "object"}},
+        ),
+        arr("best_by_hour", required=True, schema={"items": {"type": "object"}}),
+        nested("schedule", required=True, nullable=True, description="with a schedule input"),
+        Field("sources", required=True),
+        arr("limitations", required=True, schema={"items": {"type": "string"}}),
+        nested("sounding", description="with a sounding input"),
+    ),
+    "the `fieldkit sky` result: the channel day",
+)
 
 
 def channel_day(spec: SkySpec) -> dict[str, Any]:
@@ -203,7 +248,7 @@ def channel_day(spec: SkySpec) -> dict[str, Any]:
                 else f"its hour, fading out over {SOUNDING_SPAN_H:g} h either side"
             ),
         }
-    return out
+    return SKY_RESULT.written(out)
 
 
 def sky_json(spec: dict) -> dict:

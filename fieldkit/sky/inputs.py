@@ -7,7 +7,9 @@ import re
 from dataclasses import dataclass
 from typing import Any
 
-from fieldkit.errors import InputError, array, check_keys, choice, join, number, require_mapping
+from fieldkit.errors import InputError, array, choice, join, number, require_mapping
+from fieldkit.fields import Field, Record, nested, num, string
+from fieldkit.model_fields import MODEL, ground_field
 from fieldkit.sky.noise import NOISE_ENVIRONMENTS
 from fieldkit.sky.solar import f107_from_sunspot
 from fieldkit.sky.sounding import Sounding
@@ -82,21 +84,113 @@ class SkySpec:
     defaults_used: tuple[str, ...]
 
 
-TOP_KEYS = (
-    "site",
-    "date",
-    "solar",
-    "channels_mhz",
-    "sounding",
-    "antenna",
-    "power_w",
-    "mode",
-    "noise_environment",
-    "bandwidth_hz",
-    "required_snr_db",
-    "schedule",
-)
 DEFAULTS = {"power_w": 100.0, "mode": "ssb", "noise_environment": "rural"}
+SKY_SITE = Record(
+    "SkySite",
+    (
+        num(
+            "lat_deg",
+            "deg",
+            -90,
+            90,
+            required=True,
+            missing="required: the site's latitude and longitude in degrees",
+        ),
+        num(
+            "lon_deg",
+            "deg",
+            -180,
+            180,
+            required=True,
+            missing="required: the site's latitude and longitude in degrees",
+        ),
+        num("utc_offset_h", "h", -12, 14),
+        ground_field(description="only without an antenna (then it goes in the antenna spec)"),
+    ),
+    "where the sky is estimated",
+)
+SOLAR = Record(
+    "Solar",
+    (
+        num(
+            "f107", "sfu", MIN_F107, MAX_F107, description="monthly mean F10.7 (or sunspot_number)"
+        ),
+        num("sunspot_number", "", 0, MAX_SUNSPOT, description="smoothed R12 (or f107)"),
+    ),
+    "solar activity: exactly one of f107 or sunspot_number",
+    one_of=(("f107", "sunspot_number"),),
+)
+SOUNDING = Record(
+    "Sounding",
+    (
+        num("hour_utc", "h", 0, description="below 24; without it the reading holds all day"),
+        num(
+            "fof2_mhz", "MHz", 0.5, 20, required=True, missing="required: the observed foF2 in MHz"
+        ),
+        num(
+            "virtual_height_km",
+            "km",
+            150,
+            800,
+            required=True,
+            missing="required: the observed virtual height h'F in km",
+        ),
+        num("hmf2_km", "km", 150, 800),
+        num("muf3000_mhz", "MHz", hi=80, description="at least fof2_mhz"),
+    ),
+    "an ionosonde reading",
+)
+SKY_SCHEDULE = Record(
+    "SkySchedule",
+    (
+        string("start_utc", required=True, missing="required: a UTC time as HH:MM"),
+        string("end_utc", required=True, missing="required: a UTC time as HH:MM"),
+        num("distances_km", "km", 0, 600, many=True, schema={"minItems": 1, "maxItems": 20}),
+    ),
+    "the operating window (UTC) and the distances to reach",
+)
+_REQUIRED = "required field is missing"
+SKY = Record(
+    "SkySpec",
+    (
+        nested("site", SKY_SITE, required=True, missing=_REQUIRED),
+        string("date", required=True, missing=_REQUIRED, schema={"format": "date"}),
+        nested("solar", SOLAR, required=True, missing=_REQUIRED),
+        Field(
+            "channels_mhz",
+            required=True,
+            missing=_REQUIRED,
+            schema={
+                "type": "array",
+                "minItems": 1,
+                "maxItems": MAX_CHANNELS,
+                "items": {
+                    "oneOf": [
+                        {"type": "number", "minimum": MIN_CHANNEL_MHZ, "maximum": MAX_CHANNEL_MHZ},
+                        {"type": "string", "enum": list(BAND_PRESETS_MHZ)},
+                    ]
+                },
+            },
+        ),
+        nested("sounding", SOUNDING),
+        nested(
+            "antenna",
+            MODEL.variant(
+                "SkyAntenna",
+                one_of=(),
+                description="a model spec; the sky layer solves it at each channel",
+            ),
+        ),
+        num("power_w", "W", 0, 100000, exclusive_minimum=True, description="default 100 W"),
+        string("mode", *MODES, description="default ssb"),
+        string("noise_environment", *NOISE_ENVIRONMENTS, description="default rural"),
+        num("bandwidth_hz", "Hz", 10, 20000),
+        num("required_snr_db", "dB", -30, 60),
+        nested("schedule", SKY_SCHEDULE),
+    ),
+    "the `fieldkit sky` input",
+)
+TOP_KEYS = SKY.names
 
 
 def _date(value: Any, field: str) -> dt.date:
@@ -131,19 +225,13 @@ def _clock(value: Any, field: str) -> float:
 
 def _site(value: Any) -> tuple[float, float, float | None, Any]:
     site = require_mapping(value, "site")
-    check_keys(site, "site", ("lat_deg", "lon_deg", "utc_offset_h", "ground"))
-    for key in ("lat_deg", "lon_deg"):
-        if key not in site:
-            raise InputError(
-                join("site", key), "required: the site's latitude and longitude in degrees"
-            )
-    lat = number(site["lat_deg"], "site.lat_deg", unit="deg", minimum=-90, maximum=90)
-    lon = number(site["lon_deg"], "site.lon_deg", unit="deg", minimum=-180, maximum=180)
+    SKY_SITE.check(site, "site")
+    SKY_SITE.require(site, "site")
+    lat = SKY_SITE.number(site, "site", "lat_deg")
+    lon = SKY_SITE.number(site, "site", "lon_deg")
     offset = None
     if "utc_offset_h" in site:
-        offset = number(
-            site["utc_offset_h"], "site.utc_offset_h", unit="h", minimum=-12, maximum=14
-        )
+        offset = SKY_SITE.number(site, "site", "utc_offset_h")
     ground = site.get("ground")
     if ground is not None:
         from fieldkit.antenna import parse_ground
@@ -154,15 +242,15 @@ def _site(value: Any) -> tuple[float, float, float | None, Any]:
 
 def _solar(value: Any) -> tuple[float, float | None, str]:
     solar = require_mapping(value, "solar")
-    check_keys(solar, "solar", ("f107", "sunspot_number"))
+    SOLAR.check(solar, "solar")
     if len(solar) != 1:
         raise InputError(
             "solar", "expected exactly one of f107 (sfu) or sunspot_number (R12)", value=solar
         )
     if "f107" in solar:
-        f107 = number(solar["f107"], "solar.f107", unit="sfu", minimum=MIN_F107, maximum=MAX_F107)
+        f107 = SOLAR.number(solar, "solar", "f107")
         return f107, None, "f107"
-    r12 = number(solar["sunspot_number"], "solar.sunspot_number", minimum=0, maximum=MAX_SUNSPOT)
+    r12 = SOLAR.number(solar, "solar", "sunspot_number")
     return f107_from_sunspot(sunspot_number=r12), r12, "sunspot_number"
 
 
@@ -182,29 +270,18 @@ def _channels(value: Any) -> tuple[float, ...]:
 
 def _sounding(value: Any) -> Sounding:
     s = require_mapping(value, "sounding")
-    check_keys(
-        s, "sounding", ("hour_utc", "fof2_mhz", "virtual_height_km", "hmf2_km", "muf3000_mhz")
-    )
-    for key, what in (
-        ("fof2_mhz", "the observed foF2 in MHz"),
-        ("virtual_height_km", "the observed virtual height h'F in km"),
-    ):
-        if key not in s:
-            raise InputError(join("sounding", key), f"required: {what}")
+    SOUNDING.check(s, "sounding")
+    SOUNDING.require(s, "sounding")
     hour = None  # without its hour the reading is taken for the whole day (contract example)
     if "hour_utc" in s:
-        hour = number(s["hour_utc"], "sounding.hour_utc", unit="h", minimum=0)
+        hour = SOUNDING.number(s, "sounding", "hour_utc")
         if hour >= 24:
             raise InputError(
                 "sounding.hour_utc", f"expected an hour below 24, got {hour:g}", value=hour
             )
-    fof2 = number(s["fof2_mhz"], "sounding.fof2_mhz", unit="MHz", minimum=0.5, maximum=20)
-    hv = number(
-        s["virtual_height_km"], "sounding.virtual_height_km", unit="km", minimum=150, maximum=800
-    )
-    hm = None
-    if "hmf2_km" in s:
-        hm = number(s["hmf2_km"], "sounding.hmf2_km", unit="km", minimum=150, maximum=800)
+    fof2 = SOUNDING.number(s, "sounding", "fof2_mhz")
+    hv = SOUNDING.number(s, "sounding", "virtual_height_km")
+    hm = SOUNDING.number(s, "sounding", "hmf2_km") if "hmf2_km" in s else None
     muf = None
     if "muf3000_mhz" in s:
         muf = number(s["muf3000_mhz"], "sounding.muf3000_mhz", unit="MHz", minimum=fof2, maximum=80)
@@ -213,17 +290,15 @@ def _sounding(value: Any) -> Sounding:
 
 def _schedule(value: Any) -> Schedule:
     s = require_mapping(value, "schedule")
-    check_keys(s, "schedule", ("start_utc", "end_utc", "distances_km"))
-    for key in ("start_utc", "end_utc"):
-        if key not in s:
-            raise InputError(join("schedule", key), "required: a UTC time as HH:MM")
+    SKY_SCHEDULE.check(s, "schedule")
+    SKY_SCHEDULE.require(s, "schedule")
     start = _clock(s["start_utc"], "schedule.start_utc")
     end = _clock(s["end_utc"], "schedule.end_utc")
     distances = None
     if "distances_km" in s:
         items = array(s["distances_km"], "schedule.distances_km", min_items=1, max_items=20)
         distances = tuple(
-            number(d, join("schedule.distances_km", i), unit="km", minimum=0, maximum=600)
+            SKY_SCHEDULE.field("distances_km").read_number(d, join("schedule.distances_km", i))
             for i, d in enumerate(items)
         )
     return window(start, end, distances, s["start_utc"], s["end_utc"])
@@ -251,10 +326,8 @@ def parse_sky_spec(spec: Any) -> SkySpec:
         Naming the first bad field and what is expected.
     """
     spec = require_mapping(spec, "")
-    check_keys(spec, "", TOP_KEYS)
-    for key in ("site", "date", "solar", "channels_mhz"):
-        if key not in spec:
-            raise InputError(key, "required field is missing")
+    SKY.check(spec, "")
+    SKY.require(spec, "")
     lat, lon, offset, ground = _site(spec["site"])
     day = _date(spec["date"], "date")
     f107, r12, solar_given = _solar(spec["solar"])
@@ -268,27 +341,16 @@ def parse_sky_spec(spec: Any) -> SkySpec:
                 "site.ground", "give the ground inside the antenna spec when an antenna is given"
             )
     defaults_used = tuple(k for k in DEFAULTS if k not in spec)
-    power = number(
-        spec.get("power_w", DEFAULTS["power_w"]),
-        "power_w",
-        unit="W",
-        minimum=0,
-        exclusive_minimum=True,
-        maximum=100000,
-    )
+    power = SKY.number(spec, "", "power_w", default=DEFAULTS["power_w"])
     mode_name = choice(spec.get("mode", DEFAULTS["mode"]), "mode", MODES)
     mode = MODES[mode_name]
     if "bandwidth_hz" in spec or "required_snr_db" in spec:
         bandwidth = mode.bandwidth_hz
         required = mode.required_snr_db
         if "bandwidth_hz" in spec:
-            bandwidth = number(
-                spec["bandwidth_hz"], "bandwidth_hz", unit="Hz", minimum=10, maximum=20000
-            )
+            bandwidth = SKY.number(spec, "", "bandwidth_hz")
         if "required_snr_db" in spec:
-            required = number(
-                spec["required_snr_db"], "required_snr_db", unit="dB", minimum=-30, maximum=60
-            )
+            required = SKY.number(spec, "", "required_snr_db")
         mode = Mode(mode.name, bandwidth, required, "given by the operator")
     environment = choice(
         spec.get("noise_environment", DEFAULTS["noise_environment"]),
