@@ -10,7 +10,7 @@ import argparse
 import os
 import sys
 from collections.abc import Callable, Sequence
-from typing import Any
+from typing import Any, NoReturn
 
 from fieldkit import __version__
 from fieldkit.errors import InputError
@@ -123,8 +123,20 @@ def _desktop(args: argparse.Namespace) -> int:
 
 
 def main(argv: Sequence[str] | None = None) -> int:
+    """Run a command; ``argv`` None means the process's own arguments (the `fieldkit` program).
+
+    Run as the program, a calculator command (model, sky, plan) then ends the process at once
+    (:func:`_end_now`); called with ``argv`` (tests, scripts) it returns the exit code.
+    """
     args = _parser().parse_args(argv)
     command = args.command or "desktop"
+    code = _run(command, args)
+    if argv is None and command in CALCULATORS:
+        _end_now(code)
+    return code
+
+
+def _run(command: str, args: argparse.Namespace) -> int:
     try:
         if command in CALCULATORS:
             return _calculate(command, args.file)
@@ -138,6 +150,20 @@ def main(argv: Sequence[str] | None = None) -> int:
         return 130
     except BrokenPipeError:
         return 0
+
+
+def _end_now(code: int) -> NoReturn:
+    """Exit without the interpreter's teardown of numpy and the layers (~20 ms of CPU, a tenth of
+    a 47-height sweep job). Output is flushed first; a calculator holds nothing else to close
+    (the cache files it wrote are complete: they are written atomically before use)."""
+    try:
+        sys.stdout.flush()
+    except BrokenPipeError:  # the reader went away: as before, not an error
+        code = 0
+    try:
+        sys.stderr.flush()
+    finally:
+        os._exit(code)
 
 
 if __name__ == "__main__":

@@ -145,3 +145,20 @@ def test_empty_key_still_names_a_field():
 def test_demo_files_are_json():
     for f in (ROOT / "assets" / "demo").glob("*.json"):
         json.loads(f.read_text())
+
+
+def test_output_is_complete_though_the_program_ends_without_teardown():
+    # `fieldkit model` ends with os._exit after flushing (issue 17): a long answer on a pipe must
+    # arrive whole, equal to the in-process result
+    from fieldkit.antenna import model_json
+
+    spec = json.loads((ROOT / "assets" / "demo" / "dipole-model.json").read_text())
+    sweep = []
+    for h in (6.0, 8.0, 10.0, 12.0, 14.0):
+        s = json.loads(json.dumps(spec))
+        for w in s["wires"]:
+            w["points_m"] = [[x, y, h] for x, y, _ in w["points_m"]]
+        sweep.append(s)
+    r = run("model", "-", stdin=json.dumps(sweep))
+    assert r.returncode == 0, r.stderr
+    assert json.loads(r.stdout) == json.loads(json.dumps(model_json(sweep)))
