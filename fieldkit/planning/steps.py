@@ -19,7 +19,12 @@ from fieldkit.rigging.cut import trim_cm_per_leg
 from fieldkit.rigging.layouts import Layout, inverted_v_layouts, span_layouts
 from fieldkit.rigging.linked import linked_option
 from fieldkit.rigging.options import Refusal, Refused, finish, screen
-from fieldkit.rigging.rigged import RiggedOption, hung_points_m, shown_rope_heights_m
+from fieldkit.rigging.rigged import (
+    RiggedOption,
+    hung_points_m,
+    option_cut_instruction,
+    shown_rope_heights_m,
+)
 from fieldkit.safety.block import SafetyResult, check_option
 from fieldkit.safety.checked_option import CheckedOption, MastAtSite, WireSpec, feed_point
 
@@ -213,6 +218,7 @@ def checked_option(r: RiggedOption, inp: PlanInput) -> CheckedOption:
         mast=mast,
         swr=round(r.swr, 3),
         trim_cm_per_100khz=trim_cm_per_leg(r.resonance, 100e3),
+        cut_text=option_cut_instruction(r, inp.kit).text_both,
     )
 
 

@@ -356,8 +356,8 @@ def _spool_words(res: Resonance, f: float, kit: Kit) -> list[str]:
         )
     if spare_need > spool:
         return [
-            f"the spool ({spool:g} m) covers the cut list ({need:.1f} m) but not the cut-long spare "
-            f"({spare_need:.1f} m): cut to the list and trim carefully"
+            f"the spool ({spool:g} m) holds both legs but not the full cut-long spare: the cut "
+            "instruction keeps the spare the spool leaves; trim carefully"
         ]
     return []
 

@@ -15,10 +15,11 @@ import numpy as np
 
 from fieldkit.constants import SPEED_OF_LIGHT_M_S, STANDARD_GRAVITY_M_S2
 from fieldkit.fields import Record, arr, nested, num, string
-from fieldkit.rigging.cut import Resonance, SwrCurve, cut_json
+from fieldkit.rigging.cut import Resonance, SwrCurve, cut_json, spare_m
 from fieldkit.rigging.feedline import feedline_json
 from fieldkit.rigging.heights import HeightPoint, sweep_json
 from fieldkit.rigging.hung import HungDipole
+from fieldkit.rigging.instruction import CutInstruction, cut_instruction
 from fieldkit.rigging.layouts import Layout
 from fieldkit.rigging.mast import MastLoad
 from fieldkit.rigging.supports import halyard_rope_m
@@ -250,6 +251,17 @@ def _nvis_json(r: RiggedOption) -> dict[str, Any]:
     }
 
 
+def option_cut_instruction(r: RiggedOption, kit) -> CutInstruction:
+    """The option's one cut instruction: what the cut block, the Card and the checklist item say."""
+    leg, wrap = r.resonance.leg_m, kit.wrap_allowance_m
+    return cut_instruction(
+        legs_m=[leg, leg],
+        wrap_allowance_m=wrap,
+        spare_m=spare_m(leg_m=leg, wrap_allowance_m=wrap, spool_m=kit.wire.spool_m),
+        sections_m=None if r.linked is None else r.linked.sections_m,
+    )
+
+
 def _cut_json(r: RiggedOption, kit) -> dict[str, Any]:
     cut = cut_json(
         r.resonance,
@@ -257,6 +269,7 @@ def _cut_json(r: RiggedOption, kit) -> dict[str, Any]:
         wire=kit.wire,
         wrap_allowance_m=kit.wrap_allowance_m,
         bare_leg_m=r.bare_leg_m,
+        instruction=option_cut_instruction(r, kit),
     )
     if r.linked is not None:
         cut["sections_m"] = list(r.linked.sections_m)

@@ -9,8 +9,8 @@ from __future__ import annotations
 import numpy as np
 
 from fieldkit.sky.inputs import Schedule
+from fieldkit.sky.reach import ABOVE_NVIS, ABSORBED, HourReach
 from fieldkit.sky.reach import NVIS_ZONE_KM as _ZONE_END_KM
-from fieldkit.sky.reach import HourReach
 
 NVIS_ZONE_KM = (0.0, _ZONE_END_KM)
 
@@ -65,10 +65,10 @@ def best_by_hour(channels: list[tuple[float, list[HourReach]]], distances_km=Non
 
 def _none_works(hour_rows) -> str:
     verdicts = [r.verdict for _, r in hour_rows]
-    if all(v == "above the usable frequency" for v in verdicts):
-        return "no channel works: all are above the usable frequency; a lower channel is needed"
-    if all(v == "too much absorption" for v in verdicts):
-        return "no channel works: all are absorbed; a higher channel is needed"
+    if all(v.startswith(ABOVE_NVIS) for v in verdicts):
+        return f"no channel works: all are {ABOVE_NVIS}; a lower channel is needed"
+    if all(v.startswith(ABSORBED) for v in verdicts):
+        return f"no channel works: all are {ABSORBED}; a higher channel is needed"
     return "no channel covers the NVIS zone at this hour"
 
 

@@ -139,7 +139,7 @@ function recommendation(sky, units) {
   box.append(h("p", { text: rec.why }));
   if (Array.isArray(rec.channels) && rec.channels.length) {
     const t = h("table", { class: "plain compact" });
-    t.append(h("thead", {}, [h("tr", {}, [h("th", { text: "MHz" }), h("th", { text: "hours working" }), h("th", { text: "full reach" }), h("th", { text: "weakest hour" })])]));
+    t.append(h("thead", {}, [h("tr", {}, [h("th", { text: "MHz" }), h("th", { text: "hours it works" }), h("th", { text: "hours of full reach" }), h("th", { text: "weakest hour" })])]));
     const tb = h("tbody");
     for (const c of rec.channels) {
       tb.append(h("tr", { class: c.frequency_mhz === rec.recommended_mhz ? "best" : "" }, [
