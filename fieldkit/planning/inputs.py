@@ -222,7 +222,8 @@ def _ground(value: Any):
     from fieldkit.antenna import parse_ground
 
     g = parse_ground(value, "site.ground")
-    name = value if isinstance(value, str) else "this"
+    # for the words of the height choice ("the very good ground"), never the preset's code
+    name = value.replace("-", " ") if isinstance(value, str) else "site's"
     return g, name
 
 

@@ -386,7 +386,7 @@ def _branch_layout(safe: Sequence[Support], mech: Mechanics, limits: SiteLimits)
         apex_tree=trunk,
         top_why=f"no higher branch on {tree.id}",
         note=(
-            f"apex on a {tree.id} branch, {off:.1f} m out from the trunk; the branch carries the "
+            f"apex on a branch of {tree.id}, {off:.1f} m out from the trunk; the branch carries the "
             "feedpoint and both legs' pull: choose a sound branch; tie each end's rope to a stake "
             "(see the stake positions)"
         ),
