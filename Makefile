@@ -5,7 +5,7 @@ VENV := .venv
 PY := $(VENV)/bin/python
 PIP := $(PY) -m pip
 # Debian packages the browser and desktop-window tests need (see ../shared/RECIPES.md)
-TEST_DEBS := chromium xvfb xauth libxcb-icccm4 libxcb-keysyms1 libxcb-cursor0 libxkbcommon-x11-0 libnss3 libegl1 libgl1
+TEST_DEBS := chromium poppler-utils xvfb xauth libxcb-icccm4 libxcb-keysyms1 libxcb-cursor0 libxkbcommon-x11-0 libnss3 libegl1 libgl1
 PYTEST_ARGS ?=
 
 .PHONY: run serve test lint format unit e2e bench clean system-test-deps _apt
@@ -35,6 +35,7 @@ _apt:
 system-test-deps:
 	@$(MAKE) --no-print-directory _apt DEBS="$(TEST_DEBS)"
 	@test -x /usr/bin/chromium || { echo "chromium is missing: /usr/bin/chromium not found"; exit 1; }
+	@command -v pdfinfo >/dev/null || { echo "pdfinfo is missing (Debian package poppler-utils)"; exit 1; }
 	@command -v xvfb-run >/dev/null || { echo "xvfb-run is missing (Debian package xvfb)"; exit 1; }
 
 run: $(VENV)/.base

@@ -8,8 +8,23 @@ not import) fails the run with its reason, so nothing is silently left out. The 
 from __future__ import annotations
 
 import os
+import shutil
+import tempfile
 
 import pytest
+
+
+def pytest_configure(config: pytest.Config) -> None:
+    # derived files (the compact IRI tables, fitted complex images) go to a fresh directory per
+    # session, never to the user's cache; subprocesses (CLI tests) inherit it
+    config._fieldkit_cache = tempfile.mkdtemp(prefix="fieldkit-test-cache-")
+    os.environ["FIELDKIT_CACHE_DIR"] = config._fieldkit_cache
+
+
+def pytest_unconfigure(config: pytest.Config) -> None:
+    path = getattr(config, "_fieldkit_cache", None)
+    if path:
+        shutil.rmtree(path, ignore_errors=True)
 
 
 @pytest.hookimpl(trylast=True)

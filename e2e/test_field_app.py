@@ -46,10 +46,19 @@ def add_support_xy(page, sid, height, x, y):
     page.get_by_test_id(f"support-{sid}").wait_for()
 
 
+INCH_M = 0.0254  # international inch, exact
+FRACTION = {"": 0.0, "¼": 0.25, "½": 0.5, "¾": 0.75}
+# "12.5 m", "59 cm", "40.4 ft", and a tape's "67 ft 4½ in" or "23¼ in" (issue 16: tape readings)
+LENGTH = re.compile(r"(-?\d+(?:\.\d+)?)([¼½¾]?)\s*(cm|m|ft|in)\b(?:\s+(\d+)([¼½¾]?)\s*in\b)?")
+
+
 def metres(text: str) -> float:
-    m = re.search(r"(-?\d+(?:\.\d+)?)\s*(m|ft)\b", text)
+    m = LENGTH.search(text)
     assert m, f"no length in {text!r}"
-    return float(m.group(1)) * (FOOT_M if m.group(2) == "ft" else 1.0)
+    value = float(m.group(1)) + FRACTION[m.group(2)]
+    unit = {"m": 1.0, "cm": 0.01, "ft": FOOT_M, "in": INCH_M}[m.group(3)]
+    inches = float(m.group(4)) + FRACTION[m.group(5)] if m.group(4) else 0.0
+    return value * unit + inches * INCH_M
 
 
 def wait_plan(page) -> None:
@@ -445,10 +454,12 @@ def test_offline_reload_on_the_laptop(open_app, service, demo_planned):
 def test_unit_switch_is_everywhere_and_stored(open_app, service, demo_planned):
     page = open_app("phone", "#wire")
     leg_m = metres(page.get_by_test_id("leg-0").inner_text())
-    assert page.get_by_test_id("leg-0").inner_text().endswith(" m")
+    # tape readings keep number and unit together with a no-break space (issue 16)
+    assert page.get_by_test_id("leg-0").inner_text().replace("\xa0", " ").endswith(" m")
     page.get_by_test_id("units-toggle").tap()
     text = page.get_by_test_id("leg-0").inner_text()
-    assert text.endswith(" ft")
+    # issue 16: lengths of the wire read as a tape does, in feet and inches (¼ in)
+    assert re.fullmatch(r"\d+\s+ft\s+\d+[¼½¾]?\s+in", text), text
     assert math.isclose(metres(text), leg_m, abs_tol=0.02)
     page.reload()
     page.wait_for_selector("html[data-ready='1']")
@@ -461,7 +472,8 @@ def test_unit_switch_is_everywhere_and_stored(open_app, service, demo_planned):
     go(page, "wire", touch=True)
     assert_fits(page)
     page.get_by_test_id("units-toggle").tap()
-    assert page.get_by_test_id("leg-0").inner_text().endswith(" m")
+    # tape readings keep number and unit together with a no-break space (issue 16)
+    assert page.get_by_test_id("leg-0").inner_text().replace("\xa0", " ").endswith(" m")
 
 
 @pytest.mark.parametrize(

@@ -15,3 +15,5 @@ MU0 = 4e-7 * math.pi  # vacuum permeability [H/m] (classical SI value)
 EPS0 = 8.8541878128e-12  # vacuum permittivity [F/m] (CODATA 2018)
 ETA0 = MU0 * SPEED_OF_LIGHT_M_S  # free-space wave impedance [ohm]
 STANDARD_GRAVITY_M_S2 = 9.80665  # standard acceleration of gravity [m/s²] (CGPM 1901)
+FOOT_M = 0.3048  # international foot [m], exact (1959 international yard and pound agreement)
+INCH_M = 0.0254  # international inch [m], exact (same agreement)

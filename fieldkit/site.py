@@ -21,6 +21,7 @@ MAX_SUPPORTS = 40
 MAX_ID_LENGTH = 20
 HEIGHT_RANGE_M = (0.5, 60.0)  # a rope height a throw line or a pole reaches
 POSITION_RANGE_M = (-5000.0, 5000.0)  # within 5 km of the sketch's origin
+TRUNK_RADIUS_RANGE_M = (0.0, 10.0)  # a trunk, a pole, or a canopy the wire must keep off
 SUPPORT = Record(
     "Support",
     (
@@ -30,6 +31,13 @@ SUPPORT = Record(
         num("x_m", "m", *POSITION_RANGE_M, required=True, description="east of the origin"),
         num("y_m", "m", *POSITION_RANGE_M, required=True, description="north of the origin"),
         flag("unsafe", description="never used (dead tree, cracked branch)"),
+        num(
+            "trunk_radius_m",
+            "m",
+            *TRUNK_RADIUS_RANGE_M,
+            description="trunk or canopy radius the wire and ropes keep off; default 0.3 for a "
+            "tree, 0.1 otherwise",
+        ),
         string("note"),
     ),
     "a support on the site sketch",
@@ -38,7 +46,8 @@ SUPPORT = Record(
 
 @dataclass(frozen=True)
 class Support:
-    """One support: id, kind, usable rope height [m], position x (east), y (north) [m], unsafe flag."""
+    """One support: id, kind, usable rope height [m], position x (east), y (north) [m], unsafe flag,
+    and the radius the wire and ropes must keep off (trunk or canopy; None: the kind's default) [m]."""
 
     id: str
     kind: str
@@ -46,6 +55,7 @@ class Support:
     x_m: float
     y_m: float
     unsafe: bool = False
+    trunk_radius_m: float | None = None
 
 
 def _kind(obj: Mapping[str, Any], field: str) -> str:
@@ -82,6 +92,9 @@ def parse_support(
         x_m=SUPPORT.number(obj, field, "x_m"),
         y_m=SUPPORT.number(obj, field, "y_m"),
         unsafe=unsafe,
+        trunk_radius_m=(
+            SUPPORT.number(obj, field, "trunk_radius_m") if "trunk_radius_m" in obj else None
+        ),
     )
 
 

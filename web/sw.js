@@ -3,7 +3,7 @@
 // when the network fails. Only same-origin GET requests are handled; writes always go to the network
 // (pending checklist ticks are kept by the app itself, see js/queue.js).
 
-const VERSION = "fieldkit-shell-v1";
+const VERSION = "fieldkit-shell-v2";
 const API_CACHE = "fieldkit-api-v1";
 const SHELL = [
   "./",
@@ -14,6 +14,7 @@ const SHELL = [
   "icons/icon-192.png",
   "icons/icon-512.png",
   "icons/icon-maskable-512.png",
+  "js/advice.js",
   "js/api.js",
   "js/app.js",
   "js/card.js",
@@ -31,6 +32,7 @@ const SHELL = [
   "js/units.js",
   "js/wire.js",
   "js/kit.js",
+  "js/words.js",
   "js/progress.js",
 ];
 const NETWORK_TIMEOUT_MS = 4000;

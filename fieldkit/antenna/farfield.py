@@ -163,6 +163,15 @@ def _direction_terms(r: np.ndarray, ground: Ground, frequency_hz: float, with_im
     if terms is not None:
         _DIRECTION_CACHE.move_to_end(key)
         return terms
+    terms = _direction_terms_of(r, ground, frequency_hz, with_image)
+    _DIRECTION_CACHE[key] = terms
+    if len(_DIRECTION_CACHE) > _DIRECTION_CACHE_SIZE:
+        _DIRECTION_CACHE.popitem(last=False)
+    return terms
+
+
+def _direction_terms_of(r: np.ndarray, ground: Ground, frequency_hz: float, with_image: bool):
+    """As :func:`_direction_terms`, uncached (for directions asked once, e.g. a refinement)."""
     rx, ry, rz = r[:, 0].copy(), r[:, 1], r[:, 2].copy()
     sin_t = np.sqrt(np.maximum(0.0, 1 - rz * rz))
     phi = np.arctan2(ry, rx)
@@ -173,27 +182,16 @@ def _direction_terms(r: np.ndarray, ground: Ground, frequency_hz: float, with_im
         below = rz < 0
         if not below.any():
             below = None
-    terms = (rz, sin_t, cos_p, sin_p, gv, gh, below)
-    _DIRECTION_CACHE[key] = terms
-    if len(_DIRECTION_CACHE) > _DIRECTION_CACHE_SIZE:
-        _DIRECTION_CACHE.popitem(last=False)
-    return terms
+    return rz, sin_t, cos_p, sin_p, gv, gh, below
 
 
-def far_field(
-    mesh: Mesh, i_start, i_end, ground: Ground, frequency_hz: float, rhat: np.ndarray
-) -> tuple[np.ndarray, np.ndarray]:
-    """θ and φ components of r·e^{jkr}·E at unit distance [V], for RMS currents, shape rhat[..., 0]."""
-    k = 2 * math.pi * frequency_hz / SPEED_OF_LIGHT_M_S
-    shape = rhat.shape[:-1]
-    r = rhat.reshape(-1, 3)
-    with_image = ground.kind != "free-space"
-    rz, sin_t, cos_p, sin_p, gv, gh, below = _direction_terms(r, ground, frequency_hz, with_image)
-    n_dir, n_img = _radiation_vectors(mesh, i_start, i_end, r, k, with_image)
+def _combine(n_dir, n_img, terms, frequency_hz: float):
+    """θ and φ field components from the radiation vectors (..., D, 3) of the wires and image."""
+    rz, sin_t, cos_p, sin_p, gv, gh, below = terms
 
     def theta_phi(n):  # components along θ̂ = (cosθ cosφ, cosθ sinφ, −sinθ) and φ̂ = (−sinφ, cosφ, 0)
-        horiz = n[:, 0] * cos_p + n[:, 1] * sin_p
-        return rz * horiz - sin_t * n[:, 2], n[:, 1] * cos_p - n[:, 0] * sin_p
+        horiz = n[..., 0] * cos_p + n[..., 1] * sin_p
+        return rz * horiz - sin_t * n[..., 2], n[..., 1] * cos_p - n[..., 0] * sin_p
 
     n_th, n_ph = theta_phi(n_dir)
     if n_img is not None:
@@ -204,13 +202,122 @@ def far_field(
             n_th = np.where(below, 0, n_th)
             n_ph = np.where(below, 0, n_ph)
     factor = -1j * 2 * math.pi * frequency_hz * MU0 / (4 * math.pi)
-    return (factor * n_th).reshape(shape), (factor * n_ph).reshape(shape)
+    return factor * n_th, factor * n_ph
+
+
+def far_field(
+    mesh: Mesh, i_start, i_end, ground: Ground, frequency_hz: float, rhat: np.ndarray
+) -> tuple[np.ndarray, np.ndarray]:
+    """θ and φ components of r·e^{jkr}·E at unit distance [V], for RMS currents, shape rhat[..., 0]."""
+    k = 2 * math.pi * frequency_hz / SPEED_OF_LIGHT_M_S
+    shape = rhat.shape[:-1]
+    r = rhat.reshape(-1, 3)
+    with_image = ground.kind != "free-space"
+    terms = _direction_terms(r, ground, frequency_hz, with_image)
+    n_dir, n_img = _radiation_vectors(mesh, i_start, i_end, r, k, with_image)
+    e_th, e_ph = _combine(n_dir, n_img, terms, frequency_hz)
+    return e_th.reshape(shape), e_ph.reshape(shape)
+
+
+def far_field_translated(
+    meshes, currents, ground: Ground, frequency_hz: float, rhats
+) -> list[tuple[np.ndarray, np.ndarray]]:
+    """:func:`far_field` of translated copies of one mesh (a sweep), each at its own directions.
+
+    ``meshes`` share one shape (:meth:`Mesh.shape_key`); ``currents`` holds the (start, end)
+    segment currents of each; ``rhats`` the directions (..., 3) of each. When every copy asks for
+    the same directions, the phases of the wires are those of the shared cache; otherwise the
+    phases of all directions are formed in one pass. Either way the sums of all copies are one
+    stacked matrix product. The results equal :func:`far_field` per copy to rounding.
+    """
+    k = 2 * math.pi * frequency_hz / SPEED_OF_LIGHT_M_S
+    with_image = ground.kind != "free-space"
+    mesh = meshes[0]
+    moments = np.stack(
+        [(0.5 * (i0 + i1) * mesh.length)[:, None] * mesh.tangent for i0, i1 in currents]
+    )  # (H, S, 3)
+    mirror = np.array([1.0, 1.0, -1.0])
+    origins = np.stack([m.start[0] for m in meshes])  # (H, 3)
+    first = rhats[0]
+    if all(r is first or np.array_equal(r, first) for r in rhats[1:]):
+        r = first.reshape(-1, 3)
+        terms = _direction_terms(r, ground, frequency_hz, with_image)
+        rel_direct, rel_image = _relative_phases(mesh, r, k, with_image)
+        n_dir = (rel_direct @ moments) * np.exp(1j * k * (r @ origins.T)).T[:, :, None]
+        n_img = None
+        if with_image:
+            shift = np.exp(1j * k * (r @ (origins * mirror).T)).T[:, :, None]
+            n_img = (rel_image @ (moments * mirror)) * shift
+        e_th, e_ph = _combine(n_dir, n_img, terms, frequency_hz)
+        shape = first.shape[:-1]
+        return [(a.reshape(shape), b.reshape(shape)) for a, b in zip(e_th, e_ph, strict=True)]
+    flat = [x.reshape(-1, 3) for x in rhats]
+    r = np.concatenate(flat)
+    terms = _direction_terms_of(r, ground, frequency_hz, with_image)
+    ends = np.cumsum([len(x) for x in flat])
+    blocks = [slice(e - len(x), e) for e, x in zip(ends, flat, strict=True)]
+    row_origin = np.repeat(origins, [len(x) for x in flat], axis=0)
+
+    def sums(rel, moment):  # per copy: its block of phases times its moments
+        if len({len(x) for x in flat}) == 1:
+            return (rel.reshape(len(flat), -1, rel.shape[1]) @ moment).reshape(-1, 3)
+        return np.concatenate([rel[blk] @ moment[h] for h, blk in enumerate(blocks)])
+
+    n_dir = sums(_phases(mesh, r, k, 1.0), moments)
+    n_dir *= np.exp(1j * k * np.einsum("ij,ij->i", r, row_origin))[:, None]
+    n_img = None
+    if with_image:
+        n_img = sums(_phases(mesh, r, k, -1.0), moments * mirror)
+        n_img *= np.exp(1j * k * np.einsum("ij,ij->i", r, row_origin * mirror))[:, None]
+    e_th, e_ph = _combine(n_dir, n_img, terms, frequency_hz)
+    return [
+        (e_th[blk].reshape(x.shape[:-1]), e_ph[blk].reshape(x.shape[:-1]))
+        for blk, x in zip(blocks, rhats, strict=True)
+    ]
 
 
 def gain_from_field(e_th, e_ph, input_power_w: float) -> tuple[np.ndarray, np.ndarray]:
     """Partial gains (θ, φ) relative to input power, linear [-]; fields RMS at unit distance."""
     scale = 4 * math.pi / (ETA0 * input_power_w)
     return scale * np.abs(e_th) ** 2, scale * np.abs(e_ph) ** 2
+
+
+def power_grid(
+    mesh: Mesh,
+    ground: Ground,
+    frequency_hz: float,
+    *,
+    n_el: int | None = None,
+    n_az: int | None = None,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Elevations and azimuths [deg] of the power integration and the elevation weights [-].
+
+    Gauss–Legendre in sin(elevation) and the trapezoidal rule in azimuth (exact for a periodic,
+    band-limited integrand); the number of points follows the electrical size k·r of the wires and
+    their image (12 suffice below ~1 λ: error < 1e-8 against 48 × 72 points, docs/engine.md).
+    """
+    if n_el is None or n_az is None:
+        k = 2 * math.pi * frequency_hz / SPEED_OF_LIGHT_M_S
+        c = mesh.centre
+        size = float(np.max(np.linalg.norm(c - np.r_[c[:, :2].mean(axis=0), 0.0], axis=1)))
+        n = max(12, math.ceil(2 * k * size) + 6)
+        n_el, n_az = n_el or n, n_az or n
+    x, w = gauss01(n_el)
+    if ground.kind == "free-space":
+        mu, wmu = 2 * x - 1, 2 * w  # sin(elevation) over [-1, 1]
+    else:
+        mu, wmu = x, w  # upper half-space
+    return np.degrees(np.arcsin(mu)), np.arange(n_az) * 360.0 / n_az, wmu
+
+
+def power_from_field(e_th, e_ph, grid_deg, *, grid: dict | None = None) -> float:
+    """Radiated power [W] from the fields on a :func:`power_grid` (its result as ``grid_deg``)."""
+    el, az, wmu = grid_deg
+    intensity = (np.abs(e_th) ** 2 + np.abs(e_ph) ** 2) / ETA0  # W/sr, RMS fields
+    power = float((intensity * wmu[None, :]).sum() * (2 * math.pi / len(az)))
+    if grid is not None:
+        grid.update(elevation_deg=el, azimuth_deg=az, intensity_w_sr=intensity)
+    return power
 
 
 def radiated_power(
@@ -226,27 +333,11 @@ def radiated_power(
 ) -> float:
     """Power carried by the space wave, integrated over the upper half-space (or sphere) [W].
 
-    Gauss–Legendre in sin(elevation) and the trapezoidal rule in azimuth (exact for a periodic,
-    band-limited integrand); the number of points follows the electrical size k·r of the wires and
-    their image (12 suffice below ~1 λ: error < 1e-8 against 48 × 72 points, docs/engine.md).
-    When ``grid`` is given it receives the directions and intensities [W/sr] used.
+    On the grid of :func:`power_grid`. When ``grid`` is given it receives the directions and
+    intensities [W/sr] used.
     """
-    if n_el is None or n_az is None:
-        k = 2 * math.pi * frequency_hz / SPEED_OF_LIGHT_M_S
-        c = mesh.centre
-        size = float(np.max(np.linalg.norm(c - np.r_[c[:, :2].mean(axis=0), 0.0], axis=1)))
-        n = max(12, math.ceil(2 * k * size) + 6)
-        n_el, n_az = n_el or n, n_az or n
-    x, w = gauss01(n_el)
-    if ground.kind == "free-space":
-        mu, wmu = 2 * x - 1, 2 * w  # sin(elevation) over [-1, 1]
-    else:
-        mu, wmu = x, w  # upper half-space
-    el = np.degrees(np.arcsin(mu))
-    az = np.arange(n_az) * 360.0 / n_az
-    e_th, e_ph = far_field(mesh, i_start, i_end, ground, frequency_hz, directions(el, az))
-    intensity = (np.abs(e_th) ** 2 + np.abs(e_ph) ** 2) / ETA0  # W/sr, RMS fields
-    power = float((intensity * wmu[None, :]).sum() * (2 * math.pi / n_az))
-    if grid is not None:
-        grid.update(elevation_deg=el, azimuth_deg=az, intensity_w_sr=intensity)
-    return power
+    grid_deg = power_grid(mesh, ground, frequency_hz, n_el=n_el, n_az=n_az)
+    e_th, e_ph = far_field(
+        mesh, i_start, i_end, ground, frequency_hz, directions(grid_deg[0], grid_deg[1])
+    )
+    return power_from_field(e_th, e_ph, grid_deg, grid=grid)

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 from typing import Any, Literal
 
 from fieldkit.constants import EPS0
-from fieldkit.errors import InputError
+from fieldkit.errors import InputError, join
 from fieldkit.model_fields import GROUND_CONSTANTS
 
 GroundKind = Literal["free-space", "perfect", "lossy"]
@@ -92,6 +92,13 @@ def parse_ground(value: Any, field: str = "ground") -> Ground:
         GROUND_CONSTANTS.require(value, field)
         eps = GROUND_CONSTANTS.number(value, field, "relative_permittivity")
         sigma = GROUND_CONSTANTS.number(value, field, "conductivity_s_m")
+        if eps <= 1.0 and sigma == 0.0:  # a "ground" of empty space: no reflection to model
+            raise InputError(
+                join(field, "relative_permittivity"),
+                'εr = 1 with σ = 0 is empty space, not a ground: use "free-space" for no ground, '
+                "or give the soil's constants (average ground: 13 and 0.005 S/m)",
+                value=eps,
+            )
         return Ground("lossy", eps, sigma)
     raise InputError(
         field,

@@ -17,7 +17,7 @@ References
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from functools import lru_cache
 
 import numpy as np
@@ -114,19 +114,41 @@ class Mesh:
     feed_point: np.ndarray = field(repr=False)
     _memo: dict = field(default_factory=dict, repr=False, compare=False)
 
+    def relative(self) -> Mesh:
+        """This mesh moved so that its first segment starts at the origin.
+
+        Translated copies of the same wires (a rope-height sweep) share it, and with it one
+        :meth:`shape_key`, under which the solve caches what a translation does not change (the
+        free-space matrix, the ground-pair layout, the far-field phases of the wires).
+        """
+        if "relative" not in self._memo:
+            o = self.start[0]
+            self._memo["relative"] = (
+                self
+                if not o.any()
+                else replace(
+                    self,
+                    start=self.start - o,
+                    end=self.end - o,
+                    feed_point=self.feed_point - o,
+                    _memo={},
+                )
+            )
+        return self._memo["relative"]
+
     def shape_key(self) -> bytes:
         """Key equal for meshes that differ only by a translation (a rope-height sweep).
 
-        Built from the segment end points relative to the first segment's start, the radii and the
-        basis layout; the cached free-space and ground-pair layouts of the solve use it.
+        Built from the segments of :meth:`relative`, the radii and the basis layout; the cached
+        free-space and ground-pair layouts of the solve use it.
         """
         if "shape_key" not in self._memo:
-            origin = self.start[0]
+            rel = self.relative()
             self._memo["shape_key"] = b"|".join(
                 np.ascontiguousarray(a).tobytes()
                 for a in (
-                    self.start - origin,
-                    self.end - origin,
+                    rel.start,
+                    rel.end,
                     self.radius,
                     self.half_seg,
                     self.half_shape,
@@ -312,19 +334,15 @@ def _translated_mesh(antenna: Antenna, max_frequency_hz: float) -> Mesh:
         if len(_RELATIVE_MESHES) >= _RELATIVE_MESHES_SIZE:
             _RELATIVE_MESHES.pop(next(iter(_RELATIVE_MESHES)))
         _RELATIVE_MESHES[key] = rel
-    return Mesh(
+    mesh = replace(
+        rel,
         start=rel.start + origin,
         end=rel.end + origin,
-        length=rel.length,
-        tangent=rel.tangent,
-        radius=rel.radius,
-        wire=rel.wire,
-        half_seg=rel.half_seg,
-        half_shape=rel.half_shape,
-        half_sign=rel.half_sign,
-        feed_basis=rel.feed_basis,
         feed_point=rel.feed_point + origin,
+        _memo={},
     )
+    mesh._memo["relative"] = rel  # translated copies share the relative mesh and its caches
+    return mesh
 
 
 def build_mesh(antenna: Antenna, *, max_frequency_hz: float) -> Mesh:

@@ -24,7 +24,7 @@ from fieldkit.constants import SPEED_OF_LIGHT_M_S
 from fieldkit.errors import InputError
 from fieldkit.model_fields import MAX_FREQUENCY_MHZ, MIN_FREQUENCY_MHZ
 
-from . import farfield
+from . import farfield, figures
 from .blas import single_threaded
 from .grounds import Ground
 from .kernel import free_space_matrix, loading_matrix, perfect_image_matrix, segment_end_currents
@@ -33,7 +33,6 @@ from .mesh import Antenna, Mesh, checked_mesh
 
 MIN_FREQUENCY_HZ = MIN_FREQUENCY_MHZ * 1e6
 MAX_FREQUENCY_HZ = MAX_FREQUENCY_MHZ * 1e6
-BEAMWIDTH_STEP_DEG = 3.0  # coarse sampling of the cuts for −3 dB widths (crossings refined)
 
 
 @dataclass(frozen=True)
@@ -54,18 +53,23 @@ class Solution:
 
     # -- far field ---------------------------------------------------------------------------
     @single_threaded()
-    def partial_gains(self, elevation_deg, azimuth_deg) -> tuple[np.ndarray, np.ndarray]:
-        """Linear partial gains (θ/vertical, φ/horizontal) [n_azimuth, n_elevation] [-]."""
-        rhat = farfield.directions(elevation_deg, azimuth_deg)
+    def partial_gains_at(self, rhat: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Linear partial gains (θ/vertical, φ/horizontal) at unit vectors ``rhat`` (..., 3) [-]."""
         e_th, e_ph = farfield.far_field(
             self.mesh, *self.segment_currents_a, self.ground, self.frequency_hz, rhat
         )
         return farfield.gain_from_field(e_th, e_ph, self.power_w["input"])
 
+    def partial_gains(self, elevation_deg, azimuth_deg) -> tuple[np.ndarray, np.ndarray]:
+        """Linear partial gains (θ/vertical, φ/horizontal) [n_azimuth, n_elevation] [-]."""
+        return self.partial_gains_at(farfield.directions(elevation_deg, azimuth_deg))
+
+    def _evaluate(self, rhats) -> list[tuple[np.ndarray, np.ndarray]]:
+        return [self.partial_gains_at(r) for r in rhats]
+
     def gain_dbi(self, elevation_deg, azimuth_deg) -> np.ndarray:
         """Total gain in dBi re input power, [n_azimuth, n_elevation]; ground and conductor loss included."""
-        g_th, g_ph = self.partial_gains(elevation_deg, azimuth_deg)
-        return 10 * np.log10(np.maximum(g_th + g_ph, 1e-30))
+        return figures.total_gain_db(*self.partial_gains(elevation_deg, azimuth_deg))
 
     def gain_dbi_by_polarisation(self, elevation_deg, azimuth_deg) -> dict[str, np.ndarray]:
         """``{"vertical": …, "horizontal": …}`` partial gains (θ and φ components) in dBi."""
@@ -77,27 +81,14 @@ class Solution:
 
     @property
     def zenith_gain_dbi(self) -> float:
-        return float(self.gain_dbi([90.0], [0.0])[0, 0])
+        if "zenith" not in self._cache:
+            self._cache["zenith"] = float(self.gain_dbi([90.0], [0.0])[0, 0])
+        return self._cache["zenith"]
 
     @single_threaded()
     def _maximum(self) -> tuple[float, float, float]:
         if "max" not in self._cache:
-            lo = -90.0 if self.ground.kind == "free-space" else 0.0
-            coarse = self._cache.get("grid")
-            if coarse is None:
-                el, az = np.arange(lo, 90.01, 10.0), np.arange(0.0, 360.0, 15.0)
-                g = self.gain_dbi(el, az)
-            else:  # the power-integration grid of solve() already covers the sky
-                el, az, g = coarse["elevation_deg"], coarse["azimuth_deg"], coarse["intensity_w_sr"]
-            ia, ie = _first_max(g)
-            best_el, best_az = el[ie], az[ia]
-            for step in (2.0, 0.4):  # local refinements around the best direction
-                el2 = np.clip(best_el + step * np.arange(-3, 4), lo, 90)
-                az2 = best_az + 1.5 * step * np.arange(-3, 4)
-                g2 = self.gain_dbi(el2, az2)
-                ja, je = _first_max(g2)
-                best_el, best_az = el2[je], az2[ja]
-            self._cache["max"] = (float(g2[ja, je]), float(best_el), float(best_az % 360))
+            (self._cache["max"],) = figures.maxima([self], self._evaluate)
         return self._cache["max"]
 
     @property
@@ -122,6 +113,11 @@ class Solution:
             return 0.0
         return float(math.degrees(math.atan2(h[1], h[0])) % 180.0)
 
+    def cut_azimuths_deg(self) -> list[float]:
+        """Azimuths of the two beamwidth cuts: broadside (⟂ wire) and along the wire [deg]."""
+        axis = self.wire_azimuth_deg()
+        return [axis + 90.0, axis]
+
     @single_threaded()
     def beamwidth_deg(self) -> dict[str, float]:
         """−3 dB width of the elevation cut through zenith, broadside (⟂ wire) and along the wire [deg].
@@ -129,9 +125,10 @@ class Solution:
         The width is that of the lobe holding the cut's maximum, measured from its −3 dB points.
         """
         if "bw" not in self._cache:
-            axis = self.wire_azimuth_deg()
-            widths = _cut_beamwidths(self, [axis + 90.0, axis])
-            self._cache["bw"] = {"broadside": widths[0], "along_wire": widths[1]}
+            ((broadside, along),) = figures.cut_beamwidths(
+                [self], [self.cut_azimuths_deg()], self._evaluate
+            )
+            self._cache["bw"] = {"broadside": broadside, "along_wire": along}
         return dict(self._cache["bw"])
 
     # -- near field --------------------------------------------------------------------------
@@ -141,80 +138,6 @@ class Solution:
         from .nearfield import near_field
 
         return near_field(self, np.asarray(points_m, dtype=float).reshape(-1, 3))
-
-
-MAX_TIE_DB = 1e-9  # gains this close are a tie (symmetric directions), resolved by the first
-
-
-def _first_max(g: np.ndarray) -> tuple[int, int]:
-    """Index of the first entry within MAX_TIE_DB of the maximum (ties not left to rounding)."""
-    flat = np.ravel(g)
-    i = int(np.argmax(flat >= flat.max() - MAX_TIE_DB))
-    return tuple(int(x) for x in np.unravel_index(i, np.shape(g)))
-
-
-def _cut_beamwidths(sol: Solution, azimuths_deg: list[float]) -> list[float]:
-    """−3 dB width of the lobe holding the maximum of vertical cuts through zenith [deg].
-
-    A cut runs from the horizon at its azimuth (0°) over zenith (90°) to the opposite horizon
-    (180°). Sampled every BEAMWIDTH_STEP_DEG, then the peak and both −3 dB crossings are refined
-    inside their brackets; the samples of all cuts go to the far field together.
-    """
-    lo, hi = (-90.0, 270.0) if sol.ground.kind == "free-space" else (0.0, 180.0)
-    n_cut = len(azimuths_deg)
-    az = np.radians(np.asarray(azimuths_deg, dtype=float))
-
-    def gain(cut_index: np.ndarray, theta_deg: np.ndarray) -> np.ndarray:
-        t, a = np.radians(theta_deg), az[cut_index]
-        rhat = np.stack([np.cos(t) * np.cos(a), np.cos(t) * np.sin(a), np.sin(t)], axis=-1)
-        e_th, e_ph = farfield.far_field(
-            sol.mesh, *sol.segment_currents_a, sol.ground, sol.frequency_hz, rhat
-        )
-        g_th, g_ph = farfield.gain_from_field(e_th, e_ph, sol.power_w["input"])
-        return 10 * np.log10(np.maximum(g_th + g_ph, 1e-30))
-
-    step = BEAMWIDTH_STEP_DEG
-    theta = np.arange(lo, hi + step / 2, step)
-    n = len(theta)
-    rows = np.repeat(np.arange(n_cut), n)
-    cut = gain(rows, np.tile(theta, n_cut)).reshape(n_cut, n)
-    peak = np.argmax(cut >= cut.max(axis=1, keepdims=True) - MAX_TIE_DB, axis=1)  # first of ties
-    offsets = np.arange(-step, step + 0.01, 0.25)
-    fine = np.clip(theta[peak][:, None] + offsets[None, :], lo, hi)
-    level = (
-        gain(np.repeat(np.arange(n_cut), len(offsets)), fine.ravel()).reshape(n_cut, -1).max(axis=1)
-        - 3.0
-    )
-    # each crossing: (cut, index inside the lobe, index outside it or None at the end of the cut)
-    crossings = []
-    cut_rows, levels = cut.tolist(), level.tolist()  # Python floats: the walks below are scalar
-    for c in range(n_cut):
-        i = j = int(peak[c])
-        row, lv = cut_rows[c], levels[c]
-        while i > 0 and row[i - 1] >= lv:
-            i -= 1
-        while j < n - 1 and row[j + 1] >= lv:
-            j += 1
-        crossings += [(c, i, i - 1 if i > 0 else None), (c, j, j + 1 if j < n - 1 else None)]
-    inner = [x for x in crossings if x[2] is not None]
-    edge: dict[tuple, float] = {}
-    if inner:
-        t = np.array([np.linspace(theta[o], theta[i], 9) for _, i, o in inner])
-        g = gain(np.repeat([c for c, _, _ in inner], 9), t.ravel()).reshape(len(inner), 9)
-        for x, tk, gk in zip(inner, t, g, strict=True):
-            k = int(np.argmax(gk >= level[x[0]]))  # first sample inside the lobe, walking inward
-            edge[x] = (
-                float(tk[0])
-                if k == 0
-                else float(np.interp(level[x[0]], gk[k - 1 : k + 1], tk[k - 1 : k + 1]))
-            )
-    widths = []
-    for c in range(n_cut):
-        left, right = crossings[2 * c], crossings[2 * c + 1]
-        lo_edge = float(theta[0]) if left[2] is None else edge[left]
-        hi_edge = float(theta[-1]) if right[2] is None else edge[right]
-        widths.append(hi_edge - lo_edge)
-    return widths
 
 
 _FREE_SPACE_CACHE: OrderedDict[bytes, np.ndarray] = OrderedDict()
@@ -343,6 +266,22 @@ def _solve_one(
     rhs = np.zeros(mesh.n_basis, dtype=complex)
     rhs[mesh.feed_basis] = 1.0
     coeff = np.linalg.solve(zmat, rhs)
+    i_start, i_end, z_in = feed_scaled_currents(mesh, coeff, power_w)
+    grid_deg = farfield.power_grid(mesh, ground, f)
+    e_th, e_ph = farfield.far_field(
+        mesh, i_start, i_end, ground, f, farfield.directions(grid_deg[0], grid_deg[1])
+    )
+    return package(
+        mesh, f, ground, power_w, reference_impedance_ohm, z_load, z_in, (i_start, i_end),
+        (e_th, e_ph, grid_deg),
+    )  # fmt: skip
+
+
+def feed_scaled_currents(mesh: Mesh, coeff: np.ndarray, power_w: float):
+    """Segment end currents [A, RMS] for ``power_w`` delivered, and the feed impedance [ohm].
+
+    ``coeff`` are the basis coefficients of the 1 V gap solve.
+    """
     z_in = 1.0 / coeff[mesh.feed_basis]
     if z_in.real <= 0:
         raise InputError("wires", "the model gives a feed resistance ≤ 0; check the geometry")
@@ -350,10 +289,27 @@ def _solve_one(
     i_feed = math.sqrt(power_w / z_in.real)
     coeff = coeff / coeff[mesh.feed_basis] * i_feed
     i_start, i_end = segment_end_currents(mesh, coeff)
+    return i_start, i_end, z_in
+
+
+def package(
+    mesh: Mesh,
+    f: float,
+    ground: Ground,
+    power_w: float,
+    reference_impedance_ohm: float,
+    z_load: np.ndarray,
+    z_in: complex,
+    currents: tuple[np.ndarray, np.ndarray],
+    power_field: tuple,
+) -> Solution:
+    """The :class:`Solution` from the solved currents and the fields on the power grid."""
+    i_start, i_end = currents
     seg_sq = (np.abs(i_start) ** 2 + np.abs(i_end) ** 2 + (i_start * i_end.conj()).real) / 3
     conductor_loss = float((z_load.real * mesh.length * seg_sq).sum())
     grid: dict = {}
-    radiated = farfield.radiated_power(mesh, i_start, i_end, ground, f, grid=grid)
+    e_th, e_ph, grid_deg = power_field
+    radiated = farfield.power_from_field(e_th, e_ph, grid_deg, grid=grid)
     ground_loss = max(0.0, power_w - radiated - conductor_loss) if ground.kind == "lossy" else 0.0
     gamma = abs((z_in - reference_impedance_ohm) / (z_in + reference_impedance_ohm))
     swr = float((1 + gamma) / (1 - gamma)) if gamma < 1 else math.inf

@@ -36,6 +36,7 @@ import math
 from collections import OrderedDict
 from dataclasses import dataclass
 from functools import lru_cache
+from typing import Protocol
 
 import numpy as np
 
@@ -102,13 +103,70 @@ def _gpof(samples: np.ndarray, dt: float) -> tuple[np.ndarray, np.ndarray]:
     return s, res.T  # (m,), (n_fun, m)
 
 
+class ImageStore(Protocol):
+    """Where fitted images may be kept across processes (e.g. :class:`fieldkit.disk_cache.ArrayDir`)."""
+
+    def load(self, key: str) -> np.ndarray | None: ...
+
+    def save(self, key: str, array: np.ndarray) -> None: ...
+
+
+# what a stored fit depends on besides (f, εr, σ): the fit settings and the LAPACK behind numpy
+IMAGE_FIT_ID = (
+    f"dcim-{T1:g}-{T2:g}-{N_SAMPLES_1}-{N_SAMPLES_2}-{GPOF_TOLERANCE:g}-numpy{np.__version__}"
+)
+MAX_IMAGES = 2 * 40  # at most 40 exponentials per level (see _gpof)
+_store: ImageStore | None = None
+
+
+def keep_images_in(store: ImageStore | None) -> None:
+    """Keep fitted images across processes in ``store`` (the CLI sets one in the cache directory).
+
+    The engine itself does no file I/O: without a store (the default, and in the tests that call
+    the engine directly) every process fits its images again. A stored fit is the fit's own
+    arrays, so the results are the same to the bit.
+    """
+    global _store
+    _store = store
+
+
 @lru_cache(maxsize=64)
 def complex_images(
     frequency_hz: float, relative_permittivity: float, conductivity_s_m: float
 ) -> ComplexImages:
-    """Fit the complex images of a ground at one frequency (cached on (f, εr, σ))."""
+    """Fit the complex images of a ground at one frequency (cached on (f, εr, σ)).
+
+    About 20 ms of LAPACK (the QR and SVD of the level-2 pencil); kept in memory per process and,
+    when :func:`keep_images_in` has set a store, across processes.
+    """
     k0 = 2 * math.pi * frequency_hz / SPEED_OF_LIGHT_M_S
     eps = complex(relative_permittivity, -conductivity_s_m / (2 * math.pi * frequency_hz * EPS0))
+    key = f"{frequency_hz!r}_{relative_permittivity!r}_{conductivity_s_m!r}"
+    stored = _store.load(key) if _store is not None else None
+    if _usable(stored):
+        beta, a_h, a_v, a_d, a_c = (np.array(row) for row in stored)
+    else:
+        beta, a_h, a_v, a_d, a_c = _fit(k0, eps)
+        if _store is not None:
+            _store.save(key, np.stack([beta, a_h, a_v, a_d, a_c]))
+    return ComplexImages(
+        k0=k0, r_inf=(eps - 1) / (eps + 1), beta=beta, a_h=a_h, a_v=a_v, a_d=a_d, a_c=a_c
+    )
+
+
+def _usable(stored: np.ndarray | None) -> bool:
+    return (
+        stored is not None
+        and stored.dtype == np.complex128
+        and stored.ndim == 2
+        and stored.shape[0] == 5
+        and 1 <= stored.shape[1] <= MAX_IMAGES
+        and bool(np.isfinite(stored).all())
+    )
+
+
+def _fit(k0: float, eps: complex):
+    """β and the residues (a_h, a_v, a_d, a_c) of the two-level fit (Aksun 1996)."""
     # level 1: the large-λ (near-zone) behaviour
     t1 = np.linspace(0.0, T1, N_SAMPLES_1)
     u1 = k0 * (T2 + t1)
@@ -125,15 +183,7 @@ def complex_images(
     amp2 = r2 * np.exp(-1j * s2 / (1 - 1j / T2))[None, :]
     beta = np.concatenate([beta1, beta2])
     amp = np.concatenate([amp1, amp2], axis=1)
-    return ComplexImages(
-        k0=k0,
-        r_inf=(eps - 1) / (eps + 1),
-        beta=beta,
-        a_h=amp[0],
-        a_v=amp[1],
-        a_d=amp[2],
-        a_c=amp[3],
-    )
+    return beta, amp[0], amp[1], amp[2], amp[3]
 
 
 def _images_for(ground: Ground, frequency_hz: float) -> ComplexImages:
@@ -384,24 +434,35 @@ def _pair_layout(mesh: Mesh) -> _PairLayout:
 
 def lossy_ground_matrix(mesh: Mesh, ground: Ground, frequency_hz: float) -> np.ndarray:
     """Contribution of the lossy half-space to the moment-method matrix (M, M) [ohm]."""
+    return lossy_ground_matrices([mesh], ground, frequency_hz)[0]
+
+
+def lossy_ground_matrices(meshes, ground: Ground, frequency_hz: float) -> np.ndarray:
+    """:func:`lossy_ground_matrix` of translated copies of one mesh (a sweep), (n, M, M) [ohm].
+
+    The copies share the pair layout; only ζ moves with the height, so the image sums of all
+    copies are formed together.
+    """
     im = _images_for(ground, frequency_hz)
     omega = 2 * math.pi * frequency_hz
     k = im.k0
-    lay = _pair_layout(mesh)
+    lay = _pair_layout(meshes[0])
     beta, a_h, a_v, a_d, a_c = _all_images(im)
-    zeta = lay.zeta_rel + 2 * mesh.start[0, 2]
-    sums = _image_sums(k, lay.rho2, zeta, beta, a_h, a_v, a_d, a_c)[lay.rows]
+    n = len(lay.rho2)
+    zeta = np.concatenate([lay.zeta_rel + 2 * m.start[0, 2] for m in meshes])
+    rho2 = np.tile(lay.rho2, len(meshes)) if len(meshes) > 1 else lay.rho2
+    sums = _image_sums(k, rho2, zeta, beta, a_h, a_v, a_d, a_c)[lay.rows]
     coef = lay.factors
     if lay.k2_row.any():
         coef = np.where(lay.k2_row, k * k, 1.0)[:, None] * coef
-    per_pair = np.take(sums, lay.inverse, axis=1)
+    per_pair = np.take(sums.reshape(len(sums), len(meshes), n), lay.inverse, axis=2)
     vals = coef[0] * per_pair[0]
     for r in range(1, len(coef)):
         vals += coef[r] * per_pair[r]
     # reciprocity: the coupling matrix is symmetric, so only the upper triangle is computed
-    t = np.empty((lay.n_points, lay.n_points), dtype=complex)
-    t[lay.iu, lay.ju] = vals
-    t[lay.ju, lay.iu] = vals
+    t = np.empty((len(meshes), lay.n_points, lay.n_points), dtype=complex)
+    t[:, lay.iu, lay.ju] = vals
+    t[:, lay.ju, lay.iu] = vals
     c = lay.weights
     # Z_mn = −∫ f_m · E[f_n] with E = Ê / (4π jωε0)
     return -(c.T @ t @ c) / (4 * math.pi * 1j * omega * EPS0)

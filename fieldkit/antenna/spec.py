@@ -32,6 +32,7 @@ from .grounds import parse_ground
 from .materials import CONDUCTORS, Insulation
 from .mesh import Antenna, Feed, Wire, checked_mesh
 from .solver import MAX_FREQUENCY_HZ, MIN_FREQUENCY_HZ, solve
+from .sweep import figures_together, solve_translated, translation_key
 
 SPEC_KEYS = MODEL.names
 WIRE_KEYS = MODEL_WIRE.names
@@ -190,7 +191,7 @@ def _round(x: float, digits: int = 4) -> float:
     return float(f"{x:.{digits}g}") if np.isfinite(x) else x
 
 
-def _result(sol, pattern, near) -> dict[str, Any]:
+def _result(sol, pattern, near, pol=None) -> dict[str, Any]:
     z = sol.impedance_ohm
     bw = sol.beamwidth_deg()
     out: dict[str, Any] = {
@@ -210,7 +211,7 @@ def _result(sol, pattern, near) -> dict[str, Any]:
     }
     if pattern is not None:
         el, az = pattern
-        pol = sol.gain_dbi_by_polarisation(el, az)
+        pol = pol if pol is not None else sol.gain_dbi_by_polarisation(el, az)
         total = 10 * np.log10(10 ** (pol["vertical"] / 10) + 10 ** (pol["horizontal"] / 10))
         out["pattern"] = {"elevation_deg": el.tolist(), "azimuth_deg": az.tolist()}
         out["gain_dbi"] = np.round(total, 2).tolist()
@@ -254,8 +255,8 @@ def _prefixed(err: InputError, field: str) -> InputError:
     return err
 
 
-def _prepare(spec: Any, field: str) -> tuple[dict[str, Any], dict[str, float], int]:
-    """The parsed spec, its work units by cause and its segment count (geometry checked here)."""
+def _prepare(spec: Any, field: str) -> tuple[dict[str, Any], dict[str, float], Any]:
+    """The parsed spec, its work units by cause and its mesh (geometry checked here)."""
     p = parse_spec(spec, field)
     try:
         mesh = checked_mesh(p["antenna"], p["ground"], float(max(p["frequencies_hz"])))
@@ -270,15 +271,16 @@ def _prepare(spec: Any, field: str) -> tuple[dict[str, Any], dict[str, float], i
         "near_field.points_m": n_freq * n * near / WORK_NEAR_POINT_SEGMENTS,
         "pattern": n_freq * n * directions / WORK_DIRECTION_SEGMENTS,
     }
-    return p, work, n
+    return p, work, mesh
 
 
 def _check_work(
-    prepared: list[tuple[dict[str, Any], dict[str, float], int]], fields: list[str]
+    prepared: list[tuple[dict[str, Any], dict[str, float], Any]], fields: list[str]
 ) -> None:
     """Refuse a call whose total work is beyond :data:`MAX_WORK_UNITS`, naming its largest cause."""
     total = 0.0
-    for (p, work, n), field in zip(prepared, fields, strict=True):
+    for (p, work, mesh), field in zip(prepared, fields, strict=True):
+        n = mesh.n_segments
         total += sum(work.values())
         if total > MAX_WORK_UNITS:
             cause = max(work, key=work.get)
@@ -308,11 +310,73 @@ def _solve_one(p: dict[str, Any], field: str) -> dict[str, Any]:
     )
 
 
+def _sweep_key(p: dict[str, Any], mesh) -> tuple | None:
+    """Specs with equal keys are translated copies solved alike (a height sweep), else None."""
+    if p["near_field"] is not None:
+        return None
+    pattern = None if p["pattern"] is None else tuple(a.tobytes() for a in p["pattern"])
+    return (
+        translation_key(p["antenna"], mesh),
+        tuple(p["frequencies_hz"]),
+        p["ground"],
+        p["power_w"],
+        p["reference_impedance_ohm"],
+        pattern,
+    )
+
+
+def _solve_sweep(group: list[tuple[dict[str, Any], Any]], fields: list[str]) -> list[dict]:
+    """Translated copies solved together (:mod:`fieldkit.antenna.sweep`); same JSON as one by one."""
+    p0 = group[0][0]
+    try:
+        per_copy = solve_translated(
+            [p["antenna"] for p, _ in group],
+            [mesh for _, mesh in group],
+            frequencies_hz=p0["frequencies_hz"],
+            ground=p0["ground"],
+            power_w=p0["power_w"],
+            reference_impedance_ohm=p0["reference_impedance_ohm"],
+        )
+    except InputError:  # solve them one by one, so the error names the spec it belongs to
+        return [_solve_one(p, f) for (p, _), f in zip(group, fields, strict=True)]
+    out = [{"results": []} for _ in group]
+    for j in range(len(p0["frequencies_hz"])):
+        sols = [s[j] for s in per_copy]
+        pols = figures_together(sols, p0["pattern"])
+        for o, sol, pol in zip(out, sols, pols, strict=True):
+            o["results"].append(_result(sol, p0["pattern"], None, pol))
+    return out
+
+
+def _solve_all(prepared, fields: list[str]) -> list[dict]:
+    """Every spec of a list, translated copies of one antenna together."""
+    groups: dict[tuple, list[int]] = {}
+    alone: list[int] = []
+    for i, (p, _work, mesh) in enumerate(prepared):
+        key = _sweep_key(p, mesh)
+        if key is None:
+            alone.append(i)
+        else:
+            groups.setdefault(key, []).append(i)
+    out: list = [None] * len(prepared)
+    for idx in groups.values():
+        if len(idx) == 1:
+            alone.extend(idx)
+            continue
+        got = _solve_sweep([prepared[i][::2] for i in idx], [fields[i] for i in idx])
+        for i, r in zip(idx, got, strict=True):
+            out[i] = r
+    for i in alone:
+        out[i] = _solve_one(prepared[i][0], fields[i])
+    return out
+
+
 @single_threaded()
 def model_json(spec: dict | list) -> dict | list:
     """Run the `fieldkit model` contract on one spec (→ object) or a list of specs (→ list).
 
     Every spec is checked, and the total work bounded (:data:`MAX_WORK_UNITS`), before any is solved.
+    Specs of a list that are translated copies of one antenna (a height sweep) are solved together.
 
     Raises
     ------
@@ -325,7 +389,7 @@ def model_json(spec: dict | list) -> dict | list:
         fields = [f"[{i}]" for i in range(len(spec))]
         prepared = [_prepare(s, f) for s, f in zip(spec, fields, strict=True)]
         _check_work(prepared, fields)
-        return [_solve_one(p, f) for (p, _u, _n), f in zip(prepared, fields, strict=True)]
+        return _solve_all(prepared, fields)
     prepared = _prepare(spec, "")
     _check_work([prepared], [""])
     return _solve_one(prepared[0], "")

@@ -9,13 +9,16 @@ parser). Nothing downstream validates the input again.
 from __future__ import annotations
 
 from collections.abc import Mapping
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from typing import Any
 
 from fieldkit.errors import InputError, array, choice, join, require_mapping
 from fieldkit.fields import Record, arr, nested, num, ref, string
 from fieldkit.model_fields import ground_field
 from fieldkit.planning.kit_input import KIT, parse_kit
+from fieldkit.planning.site_input import ROOM, parse_site_limits
+from fieldkit.planning.sky_input import parse_plan_sky
+from fieldkit.rigging.clearing import SiteLimits
 from fieldkit.rigging.mast import Mast
 from fieldkit.rigging.options import Kit
 from fieldkit.safety import LIMIT_SETS, parse_hazards, parse_limit_set, parse_radio
@@ -27,7 +30,7 @@ from fieldkit.sky.inputs import (  # one HF range for plan and sky
     MIN_CHANNEL_MHZ,
     SKY,
     SkySpec,
-    parse_sky_spec,
+    parse_date,
     window,
 )
 from fieldkit.sky.inputs import Schedule as SkySchedule
@@ -36,8 +39,12 @@ FORMS = ("flat", "inverted-v", "sloping", "linked", "auto")
 RETRIM_FORMS = ("flat", "sloping", "inverted-v")
 PLAN_SKY = SKY.variant(
     "PlanSky",
-    optional=("channels_mhz",),
-    description="the sky input; its channels (and, without its own, its schedule) come from the plan",
+    optional=("channels_mhz", "site", "date"),
+    description=(
+        "the sky input; its channels (and, without its own, its schedule) come from the plan; "
+        "site, date, power_w and mode may be left out (they come from the plan's site, date and "
+        "radio) and are refused naming the field where they contradict them"
+    ),
 )
 DEFAULT_LIMIT_SET = "fcc-uncontrolled"
 MAX_CHANNELS = 12
@@ -50,8 +57,8 @@ SITE = Record(
     "PlanSite",
     (
         string("name", schema={"maxLength": MAX_NAME_LENGTH}),
-        num("lat_deg", "deg", -90, 90, description="context only"),
-        num("lon_deg", "deg", -180, 180, description="context only"),
+        num("lat_deg", "deg", -90, 90, description="the sky estimate's place (with a sky block)"),
+        num("lon_deg", "deg", -180, 180, description="the sky estimate's place (with a sky block)"),
         num("elevation_m", "m", -500, 9000, description="context only"),
         num("utc_offset_h", "h", -12, 14, description="context only"),
         ground_field(
@@ -64,8 +71,9 @@ SITE = Record(
             schema={"items": {"oneOf": [ref(POWER_LINE), ref(PATH)]}},
             refers=(POWER_LINE, PATH),
         ),
+        *ROOM,
     ),
-    "the site sketch: ground, supports, hazards",
+    "the site sketch: ground, supports, hazards, and the room it gives the rig",
 )
 SITE_CONTEXT = ("lat_deg", "lon_deg", "elevation_m", "utc_offset_h")
 SCHEDULE = Record(
@@ -118,6 +126,12 @@ PLAN = Record(
         nested("schedule", SCHEDULE, nullable=True),
         string("limit_set", *LIMIT_SETS, description=f"default {DEFAULT_LIMIT_SET}"),
         nested("retrim", RETRIM, nullable=True),
+        string(
+            "date",
+            nullable=True,
+            schema={"format": "date"},
+            description="the UTC day of the deployment (YYYY-MM-DD): the sky block's, unless it gives it",
+        ),
     ),
     "the `fieldkit plan` input",
 )
@@ -182,6 +196,8 @@ class PlanInput:
     schedule : the plan's operating window, or None
     retrim : a measured dip or analyser reading, or None
     warnings : defaults used and supports left out, in plain words
+    limits : the room the site gives: minimum end height, clearing, the mast's point, trunks, rope
+    date : the plan's UTC day, or None
     """
 
     name: str | None
@@ -198,13 +214,16 @@ class PlanInput:
     schedule: PlanSchedule | None
     retrim: Retrim | None
     warnings: tuple[str, ...]
+    limits: SiteLimits = SiteLimits()
+    date: Any = None
 
 
 def _ground(value: Any):
     from fieldkit.antenna import parse_ground
 
     g = parse_ground(value, "site.ground")
-    name = value if isinstance(value, str) else "this"
+    # for the words of the height choice ("the very good ground"), never the preset's code
+    name = value.replace("-", " ") if isinstance(value, str) else "site's"
     return g, name
 
 
@@ -214,6 +233,7 @@ class _Site:
     ground_name: str
     supports: tuple[Support, ...]
     hazards: tuple[PowerLine | Path, ...]
+    raw: Mapping[str, Any]
 
 
 def _name(value: Any, field: str) -> str | None:
@@ -234,7 +254,7 @@ def _site(value: Any) -> _Site:
     ground, name = _ground(site["ground"])
     supports = tuple(parse_supports(site.get("supports", []), "site.supports"))
     hazards = tuple(parse_hazards(site.get("hazards", []), "site.hazards"))
-    return _Site(ground, name, supports, hazards)
+    return _Site(ground, name, supports, hazards, site)
 
 
 def _channels(value: Any) -> tuple[float, ...]:
@@ -334,22 +354,6 @@ def _retrim(value: Any, channels: tuple[float, ...]) -> Retrim | None:
     return Retrim(target, form, leg, **_retrim_reading(obj))
 
 
-def _sky(value: Any, channels: tuple[float, ...], schedule: PlanSchedule | None) -> SkySpec | None:
-    """The sky block, decoded by the sky layer on the plan's channels (and window, unless the block
-    has its own); its errors are named under ``sky``."""
-    if value is None:
-        return None
-    sky = dict(require_mapping(value, "sky"))
-    sky["channels_mhz"] = [round(f / 1e6, 6) for f in channels]
-    try:
-        parsed = parse_sky_spec(sky)
-    except InputError as e:
-        raise InputError(join("sky", e.field), e.detail, value=e.value) from None
-    if schedule is not None and "schedule" not in sky:
-        parsed = replace(parsed, schedule=schedule.for_sky())
-    return parsed
-
-
 def parse_plan(spec: Any) -> PlanInput:
     """Decode and check a `fieldkit plan` input (ARCHITECTURE.md), once.
 
@@ -372,6 +376,16 @@ def parse_plan(spec: Any) -> PlanInput:
     schedule = _schedule(obj.get("schedule"))
     mast_xy, unsafe_words = _usable(site.supports)
     retrim = _retrim(obj.get("retrim"), channels)
+    date = parse_date(obj["date"], "date") if obj.get("date") is not None else None
+    limits = parse_site_limits(site.raw, site.supports, rope_length_m=kit.kit.rope_length_m)
+    sky = parse_plan_sky(
+        obj.get("sky"),
+        site=site.raw,
+        date=date,
+        radio=radio,
+        channels_mhz=[round(f / 1e6, 6) for f in channels],
+        schedule=schedule,
+    )
     return PlanInput(
         name=_name(obj.get("name"), "name"),
         supports=site.supports,
@@ -383,8 +397,10 @@ def parse_plan(spec: Any) -> PlanInput:
         mast_xy=mast_xy,
         radio=radio,
         limit_set=limit_set,
-        sky=_sky(obj.get("sky"), channels, schedule),
+        sky=sky,
         schedule=schedule,
         retrim=retrim,
         warnings=(*kit.warnings, *unsafe_words),
+        limits=limits,
+        date=date,
     )

@@ -23,6 +23,7 @@ from fieldkit.planning.steps import (
     Screening,
     find_layouts,
     finish_options,
+    fit_options_to_sky,
     fit_sky,
     link_layouts,
     rank,
@@ -51,7 +52,8 @@ def _nothing_hangs(screening: Screening) -> InputError:
 
 def _result(inp, bench, sky, screening: Screening, finishing: Finishing, t0: float) -> dict:
     bench.progress.at("result", 0, 1)
-    options = rank(finishing.options, sky)
+    found, sky = fit_options_to_sky(finishing.options, sky)
+    options = rank(found, sky)
     more = [summary_json(o) for o in options[MAX_OPTIONS:]]
     more += [summary_json(c) for c in finishing.rest]
     out = plan_json(

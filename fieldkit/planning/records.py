@@ -57,6 +57,7 @@ class FinishedOption:
     rigged: RiggedOption
     safety: SafetyResult
     warnings: tuple[str, ...]
+    sky_row: dict[str, Any] | None = None  # its channel's schedule row with its own antenna gain
 
     @property
     def frequency_hz(self) -> float:
@@ -89,12 +90,16 @@ class SkyFit:
     by_channel : channel → its row of the sky layer's schedule table (JSON)
     schedule : the sky layer's schedule summary (JSON, without the channel rows)
     source : where the sky numbers came from
+    context : the sky estimate, to work out reach again with an option's own antenna gain
+    ceiling : the day's highest NVIS frequency [MHz] and its hour (largest foF2)
     """
 
     rank: dict[float, int]
     by_channel: dict[float, dict[str, Any]]
     schedule: dict[str, Any]
     source: tuple[str, ...]
+    context: Any = None
+    ceiling: tuple[float, int] | None = None
 
     def rank_of(self, frequency_hz: float) -> int:
         return self.rank.get(round(frequency_hz / 1e6, 6), len(self.rank))

@@ -7,6 +7,7 @@ from typing import Any
 from fieldkit.fields import Record, arr, nested, num, string
 from fieldkit.planning.inputs import PlanInput, Retrim
 from fieldkit.planning.records import FinishedOption, SkyFit
+from fieldkit.planning.steps import plan_warnings
 from fieldkit.rigging.cut import EngineCounter, retrim
 from fieldkit.rigging.options import Refused
 from fieldkit.rigging.rigged import RIGGED_OPTION, rigged_json
@@ -110,10 +111,20 @@ def option_json(
     out["warnings"] = list(o.warnings)
     out["safety"] = o.safety.to_json()
     if sky is not None:
-        out["sky"] = sky.row(o.frequency_hz)
+        out["sky"] = o.sky_row if o.sky_row is not None else sky.row(o.frequency_hz)
     if shown and inp.retrim is not None and _retrim_applies(inp.retrim, o):
         out["retrim"] = retrim_json(inp.retrim, o)
     return PLAN_OPTION.written(out)
+
+
+def _sky_json(sky: SkyFit) -> dict[str, Any]:
+    out: dict[str, Any] = {"schedule": sky.schedule, "source": list(sky.source)}
+    if sky.ceiling is not None:
+        out["nvis_ceiling"] = {
+            "frequency_mhz": round(sky.ceiling[0], 2),
+            "hour_utc": sky.ceiling[1],
+        }
+    return out
 
 
 def engine_json(engine: EngineCounter, times: dict[str, float], total_s: float) -> dict[str, Any]:
@@ -143,9 +154,9 @@ def plan_json(
             "options": [option_json(o, inp, sky, shown=True) for o in shown],
             "more": more,
             "refused": [REFUSED.written(r.to_json()) for r in refused],
-            "warnings": list(inp.warnings),
+            "warnings": list(plan_warnings(inp, sky)),
             "ranking": RANKING_WORDS,
-            "sky": None if sky is None else {"schedule": sky.schedule, "source": list(sky.source)},
+            "sky": None if sky is None else _sky_json(sky),
             "engine": engine,
         }
     )

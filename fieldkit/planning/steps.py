@@ -7,7 +7,7 @@ once, at the end (:mod:`fieldkit.planning.result`).
 from __future__ import annotations
 
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any
 
 import numpy as np
@@ -16,12 +16,20 @@ from fieldkit.errors import InputError, join
 from fieldkit.planning.inputs import PlanInput
 from fieldkit.planning.records import Candidate, FinishedOption, SkyFit, Workbench, channel_rank
 from fieldkit.rigging.cut import trim_cm_per_leg
-from fieldkit.rigging.layouts import Layout, inverted_v_layouts, span_layouts
+from fieldkit.rigging.heights import LOWEST_END_HEIGHT_M, MIN_END_HEIGHT_M, low_end_words
+from fieldkit.rigging.layouts import Layout, site_layouts
 from fieldkit.rigging.linked import linked_option
 from fieldkit.rigging.options import Refusal, Refused, finish, screen
-from fieldkit.rigging.rigged import RiggedOption, hung_points_m, shown_rope_heights_m
+from fieldkit.rigging.rigged import (
+    RiggedOption,
+    hung_points_m,
+    option_cut_instruction,
+    shown_rope_heights_m,
+)
+from fieldkit.rigging.vee import INVERTED_V_MIN_DROP_M, no_apex_reason
 from fieldkit.safety.block import SafetyResult, check_option
 from fieldkit.safety.checked_option import CheckedOption, MastAtSite, WireSpec, feed_point
+from fieldkit.sky.ranking import row_key
 
 # Channels within 6 % of one already swept on a layout reuse its chosen heights (one engine solve
 # instead of a sweep): heights in wavelengths differ by < 6 %, the NVIS figure by hundredths of a dB.
@@ -51,17 +59,29 @@ class Finishing:
 
 
 def _no_layout_reason(inp: PlanInput) -> str:
+    lowest = inp.limits.min_end_height_m
+    if inp.form == "inverted-v":
+        return no_apex_reason(inp.supports, inp.masts, lowest)
     safe = [s for s in inp.supports if not s.unsafe]
     if len(safe) < 2 and not inp.masts:
         return (
             "need at least two safe supports, a safe tree tall enough for an inverted-V apex "
-            "(5 m or more), or a mast in kit.masts"
+            f"({lowest + INVERTED_V_MIN_DROP_M:g} m or more), or a mast in kit.masts"
         )
-    return "the supports are too low: every rope height is under the 3 m minimum end height"
+    words = (
+        f"the supports are too low: every rope height is under the {lowest:g} m minimum end height"
+    )
+    if lowest > LOWEST_END_HEIGHT_M:
+        words += (
+            f" (site.min_end_height_m may lower it to {LOWEST_END_HEIGHT_M:g} m for a low-power wire "
+            "where people are kept away from it)"
+        )
+    return words
 
 
 def find_layouts(inp: PlanInput) -> tuple[Layout, ...]:
-    """Every way the site allows to hang the dipole in the asked form.
+    """Every way the site allows to hang the dipole in the asked form; the ones the site's geometry
+    rules out (a trunk in the span) come along with their reason and are refused by the screening.
 
     Raises
     ------
@@ -69,47 +89,92 @@ def find_layouts(inp: PlanInput) -> tuple[Layout, ...]:
         When there is none (the message says why and what to change).
     """
     both = {"flat", "sloping"}
-    span_forms = both if inp.form in ("auto", "linked") else {inp.form} & both
-    layouts: list[Layout] = []
-    if span_forms:
-        layouts += span_layouts(list(inp.supports), inp.kit.mech, forms=span_forms)
+    forms = both if inp.form in ("auto", "linked") else {inp.form} & both
     if inp.form in ("auto", "inverted-v"):
-        layouts += inverted_v_layouts(
-            list(inp.supports), list(inp.masts), inp.kit.mech, site_xy=inp.mast_xy
-        )
+        forms = forms | {"inverted-v"}
+    layouts = site_layouts(
+        list(inp.supports), list(inp.masts), inp.kit.mech, forms=forms, limits=inp.limits
+    )
+    if inp.form == "linked":
+        layouts = [lay for lay in layouts if lay.blocked is None]
     if not layouts:
         raise InputError("site.supports", _no_layout_reason(inp))
     return tuple(layouts)
 
 
-def _schedule_order(table: list[dict[str, Any]]) -> list[dict[str, Any]]:
-    def key(t: dict[str, Any]) -> tuple:
-        snr = t["mean_nvis_snr_db"] if t["mean_nvis_snr_db"] is not None else -999.0
-        return (t["hours_full"], t["score"], t["hours_below_fot"], snr)
-
-    return sorted(table, key=key, reverse=True)
-
-
-def fit_sky(inp: PlanInput) -> SkyFit | None:
-    """The sky layer's schedule table for the plan's channels (None without a sky or a schedule)."""
-    if inp.sky is None:
-        return None
-    from fieldkit.sky.day import channel_day
-
-    try:
-        out = channel_day(inp.sky)
-    except InputError as e:
-        raise InputError(join("sky", e.field), e.detail, value=e.value) from None
-    sched = out.get("schedule")
+def _sky_fit(ctx, sched: dict[str, Any], ceiling) -> SkyFit | None:
     if not sched or not sched.get("channels"):
         return None
-    table = _schedule_order(sched["channels"])
+    table = sorted(sched["channels"], key=row_key, reverse=True)
     return SkyFit(
         rank={round(t["frequency_mhz"], 6): i for i, t in enumerate(table)},
         by_channel={round(t["frequency_mhz"], 6): t for t in table},
         schedule={k: v for k, v in sched.items() if k != "channels"},
-        source=tuple(sorted(set(out.get("sky_source") or []))),
+        source=tuple(sorted(set(ctx.sky.source or []))),
+        context=ctx,
+        ceiling=ceiling,
     )
+
+
+def fit_sky(inp: PlanInput) -> SkyFit | None:
+    """The sky layer's schedule table for the plan's channels (None without a sky or a schedule),
+    with the default dipole: it orders the height sweeps; the options are ranked again with their
+    own antenna (:func:`fit_options_to_sky`)."""
+    if inp.sky is None or inp.sky.schedule is None:
+        return None
+    from fieldkit.sky.day import schedule_fit, sky_context
+    from fieldkit.sky.what_works import nvis_ceiling
+
+    try:
+        ctx = sky_context(inp.sky)
+        sched = schedule_fit(ctx, {})
+    except InputError as e:
+        raise InputError(join("sky", e.field), e.detail, value=e.value) from None
+    return _sky_fit(ctx, sched, nvis_ceiling(ctx))
+
+
+def fit_options_to_sky(
+    options: tuple[FinishedOption, ...], sky: SkyFit | None
+) -> tuple[tuple[FinishedOption, ...], SkyFit | None]:
+    """Each option's schedule row with its own antenna gain (the hung wire's engine solution: its
+    pattern over the NVIS elevations and its efficiency), and the schedule table again with the
+    best option's antenna on each channel."""
+    if sky is None or sky.context is None or not options:
+        return options, sky
+    from fieldkit.sky.day import schedule_fit, schedule_row
+    from fieldkit.sky.gain import elevation_gain_of
+
+    ctx = sky.context
+    out, best = [], {}
+    for o in options:
+        f_mhz = round(o.frequency_hz / 1e6, 6)
+        gain = elevation_gain_of(o.rigged.resonance.solution, frequency_mhz=f_mhz)
+        out.append(replace(o, sky_row=schedule_row(ctx, f_mhz, gain)))
+        if f_mhz not in best or o.score_db > best[f_mhz][0]:
+            best[f_mhz] = (o.score_db, gain)
+    sched = schedule_fit(ctx, {f: g for f, (_, g) in best.items() if f in ctx.spec.channels_mhz})
+    fit = _sky_fit(ctx, sched, sky.ceiling) or sky
+    for o in out:  # the channel's place in the table worked out with the planned antennas
+        if o.sky_row is not None:
+            o.sky_row["rank"] = fit.rank_of(o.frequency_hz)
+    return tuple(out), fit
+
+
+def plan_warnings(inp: PlanInput, sky: SkyFit | None) -> tuple[str, ...]:
+    """The plan's own warnings: first the schedule's hours at which no channel works and what would,
+    then channels above the NVIS range, then the input's (defaults used, supports left out)."""
+    from fieldkit.sky.what_works import above_nvis_words
+
+    first = []
+    none_works = (sky.schedule.get("when_none_works") if sky is not None else None) or {}
+    if none_works.get("words"):
+        first.append(none_works["words"])
+    ceiling = None if sky is None else sky.ceiling
+    for f in sorted(inp.channels_hz):
+        words = above_nvis_words(round(f / 1e6, 6), ceiling)
+        if words:
+            first.append(words)
+    return (*first, *inp.warnings)
 
 
 def sweep_count(n_layouts: int, n_channels: int) -> int:
@@ -213,6 +278,7 @@ def checked_option(r: RiggedOption, inp: PlanInput) -> CheckedOption:
         mast=mast,
         swr=round(r.swr, 3),
         trim_cm_per_100khz=trim_cm_per_leg(r.resonance, 100e3),
+        cut_text=option_cut_instruction(r, inp.kit).text_both,
     )
 
 
@@ -233,9 +299,15 @@ def check_safety(r: RiggedOption, inp: PlanInput) -> SafetyResult:
     )
 
 
-def option_warnings(r: RiggedOption, safety: SafetyResult) -> tuple[str, ...]:
-    """The rigging's warnings, led by "do not raise" when a safety check fails, and the lowest end."""
+def option_warnings(
+    r: RiggedOption, safety: SafetyResult, min_end_height_m: float = MIN_END_HEIGHT_M
+) -> tuple[str, ...]:
+    """The rigging's warnings, led by "do not raise" when a safety check fails, then a wire lower
+    than 3 m, and the lowest end against the RF keep-out."""
     warnings = list(r.warnings)
+    low = low_end_words(float(np.asarray(r.hung.points_m)[:, 2].min()), min_end_height_m)
+    if low:
+        warnings.insert(0, low)
     if not safety.raise_ok:
         reasons = safety.reasons or ("a safety check fails",)
         warnings.insert(0, "do not raise as planned: " + "; ".join(str(x) for x in reasons))
@@ -266,7 +338,7 @@ def _rig(c: Candidate, inp: PlanInput, bench: Workbench) -> RiggedOption:
 
 def _with_safety(r: RiggedOption, inp: PlanInput, bench: Workbench) -> FinishedOption:
     safety = _timed(bench, "safety_s", check_safety, r, inp)
-    return FinishedOption(r, safety, option_warnings(r, safety))
+    return FinishedOption(r, safety, option_warnings(r, safety, inp.limits.min_end_height_m))
 
 
 def finish_options(
@@ -328,6 +400,8 @@ def rank(options: tuple[FinishedOption, ...], sky: SkyFit | None) -> tuple[Finis
     the score."""
 
     def key(o: FinishedOption) -> tuple:
-        return (not o.raise_ok, channel_rank(sky, o.frequency_hz), -o.score_db)
+        if o.sky_row is not None:  # its own antenna's reach in the window, best first
+            return (not o.raise_ok, tuple(-v for v in row_key(o.sky_row)), -o.score_db)
+        return (not o.raise_ok, (channel_rank(sky, o.frequency_hz),), -o.score_db)
 
     return tuple(sorted(options, key=key))

@@ -14,11 +14,13 @@ References
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq, root
+
+from fieldkit.rigging.roots import brent, hybrid_system, newton_system
 
 
 @dataclass(frozen=True)
@@ -126,15 +128,27 @@ def integrate_chain(
     )
 
 
+def _piece_end(h: float, w: float, v0: float, s: float) -> tuple[float, float]:
+    """:func:`_piece_xz` at the far end of a piece only, in scalar arithmetic (the solvers' inner loop)."""
+    if w * max(s, 0.0) < 1e-9 * h:
+        ds = s / math.hypot(1.0, v0 / h)
+        return ds, ds * v0 / h
+    v = v0 + w * s
+    return (
+        (h / w) * (math.asinh(v / h) - math.asinh(v0 / h)),
+        (h / w) * (math.hypot(1.0, v / h) - math.hypot(1.0, v0 / h)),
+    )
+
+
 def _end_point(pieces: tuple[Piece, ...], h: float, v0: float) -> tuple[float, float, float]:
     """(u, z, vertical component) at the last end, without sampling."""
     u = z = 0.0
-    v = v0
+    h, v = float(h), float(v0)
     for p in pieces:
         if p.length_m > 0:
-            du, dz = _piece_xz(h, p.weight_n_per_m, v, np.array([p.length_m]))
-            u += float(du[0])
-            z += float(dz[0])
+            du, dz = _piece_end(h, p.weight_n_per_m, v, p.length_m)
+            u += du
+            z += dz
         v += p.weight_n_per_m * p.length_m + p.load_after_n
     return u, z, v - pieces[-1].load_after_n
 
@@ -190,21 +204,29 @@ def hang_between(
     t = end_tension_n
 
     def residual(x: np.ndarray) -> np.ndarray:
-        h, v0, free = t * np.exp(x[0]), t * x[1], span_m * x[2]
         with np.errstate(all="ignore"):  # the solver may probe absurd tensions on the way
-            u, z, v1 = _end_point(pieces_of(free), h, v0)
-            tmax = max(np.hypot(h, v0), np.hypot(h, v1))
+            h, v0, free = t * np.exp(x[0]), t * x[1], span_m * x[2]
+            try:
+                u, z, v1 = _end_point(pieces_of(free), h, v0)
+            except (ZeroDivisionError, OverflowError, ValueError):
+                return np.full(3, 1e6)
+            tmax = max(math.hypot(h, v0), math.hypot(h, v1))
             out = np.array([(u - span_m) / span_m, (z - rise_m) / span_m, tmax / t - 1.0])
         return np.where(np.isfinite(out), out, 1e6)
 
+    starts = [
+        np.array([np.log(guess_h), -0.15 + 0.5 * rise_m / max(span_m, 1e-9), free_guess / span_m])
+        for guess_h in (0.97, 0.8, 0.5)
+    ]
     best = None
-    for guess_h in (0.97, 0.8, 0.5):
-        x0 = np.array(
-            [np.log(guess_h), -0.15 + 0.5 * rise_m / max(span_m, 1e-9), free_guess / span_m]
-        )
-        sol = root(residual, x0, method="hybr", options={"xtol": 1e-11})
-        if sol.success and np.max(np.abs(residual(sol.x))) < 1e-8:
-            best = sol.x
+    # Newton first (no scipy import); MINPACK's hybrid method only if Newton finds nothing
+    for solver in (newton_system, hybrid_system):
+        for x0 in starts:
+            x = solver(residual, x0, xtol=1e-11)
+            if x is not None and np.max(np.abs(residual(x))) < 1e-8:
+                best = x
+                break
+        if best is not None:
             break
     if best is None:
         raise HangError("no hang found at this tension")
@@ -246,7 +268,7 @@ def hang_to_height(
     lo, hi = t * 1e-4, t * (1 - 1e-12)
     if f(lo) * f(hi) > 0:
         raise HangError("the pull cannot hold the leg at that angle")
-    h = brentq(f, lo, hi, xtol=1e-12 * t)
+    h = brent(f, lo, hi, xtol=1e-12 * t)
     v0 = z_end(h)[1]
     shape = integrate_chain(pieces, horizontal_tension_n=h, start_vertical_n=v0)
     return shape, float(shape.u_m[-1])

@@ -21,6 +21,7 @@ from typing import Any
 import numpy as np
 
 from fieldkit.rigging.hung import HungDipole
+from fieldkit.rigging.instruction import CutInstruction, cut_instruction
 from fieldkit.rigging.wire import KitWire
 
 RULE_OF_THUMB_M_MHZ = 143.0  # half-wave ≈ 143/f m (468/f ft): common practice, not a physical law
@@ -377,6 +378,17 @@ def wire_needed_m(*, leg_m: float, wrap_allowance_m: float) -> tuple[float, floa
     )
 
 
+def spare_m(*, leg_m: float, wrap_allowance_m: float, spool_m: float | None) -> float:
+    """The deliberate spare per leg: ``CUT_LONG_FRACTION`` of the leg, or what the spool leaves once
+    both legs and their wraps are cut (never below 0) [m]. The cut instruction uses it, so a spool
+    that cannot hold the full spare gives one length to cut, not a second competing one."""
+    spare = CUT_LONG_FRACTION * leg_m
+    if spool_m is None:
+        return spare
+    left = (spool_m - 2 * (leg_m + 2 * wrap_allowance_m)) / 2
+    return max(0.0, min(spare, left))
+
+
 def trim_cm_per_leg(res: Resonance, shift_hz: float) -> float:
     """Leg change that moves the resonance by ``shift_hz``, as shown (mm) [cm]."""
     return round(-shift_hz / res.dfres_dleg_hz_per_m * 100, 1)
@@ -389,8 +401,10 @@ def cut_json(
     wire: KitWire,
     wrap_allowance_m: float = WRAP_ALLOWANCE_M,
     bare_leg_m: float | None = None,
+    instruction: CutInstruction | None = None,
 ) -> dict[str, Any]:
-    """The option's cut block: per-leg lengths, wrap, cut-long spare, rule of thumb, trim steps."""
+    """The option's cut block: per-leg lengths, wrap, cut-long spare, the one cut instruction (made
+    here for a plain dipole when the caller does not pass it), rule of thumb, trim steps."""
     leg = res.leg_m
     wrap = wrap_allowance_m
     spare = CUT_LONG_FRACTION * leg
@@ -398,6 +412,16 @@ def cut_json(
     diff = (leg - rule) / rule * 100
     sens = res.dfres_dleg_hz_per_m  # Hz per metre, negative
     total, with_spare = wire_needed_m(leg_m=leg, wrap_allowance_m=wrap)
+
+    if instruction is None:
+        instruction = cut_instruction(legs_m=[leg, leg], wrap_allowance_m=wrap, spare_m=spare)
+    spare_read = instruction.pieces[-1].spare  # the spare as the marks give it, in both units
+    spare_words = (
+        f"the length to cut includes {spare_read.both} of spare at the outer end of each leg: fold "
+        "it back at the end insulator, because"
+        if spare_read is not None and spare_read.m > 0
+        else "the spool leaves no spare: cut to the marks and trim carefully, because"
+    )
 
     def step_cm(shift_hz: float) -> float:
         return round(-shift_hz / sens * 100, 1)
@@ -410,10 +434,11 @@ def cut_json(
         "total_wire_m": total,
         "cut_long_m": round(spare, 3),
         "cut_long_advice": (
-            f"cut each leg {spare * 100:.0f} cm long ({leg + 2 * wrap + spare:.2f} m) and fold the spare back at "
-            "the end insulator: nearby trees, the real soil and the coax usually pull resonance a percent or "
-            "two below any model, and wire cannot be added back in the field; trim after the first SWR check"
+            f"{spare_words} nearby trees, the real soil and the coax usually pull resonance a percent "
+            "or two below any model, and wire cannot be added back in the field; trim after the first "
+            "SWR check"
         ),
+        "instruction": instruction.to_json(),
         "cut_with_spare_total_m": with_spare,
         "rule_of_thumb": {
             "leg_m": round(rule, 3),

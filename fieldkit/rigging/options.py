@@ -1,9 +1,10 @@
 """Evaluate a layout at a channel with the engine: resonance, height sweep, cut list, SWR, loads.
 
-Engine budget per layout and channel: one resonance at the highest setting (2–3 calls of 2
-frequencies; warm-started from a neighbouring channel), one single-frequency solve per other swept
-height at that leg length (the gain pattern hardly changes with a few kHz of detuning), a second
-resonance at the recommended height (usually 1–2 calls, warm-started) and one SWR curve.
+Engine budget per layout and channel: the plan's first resonance (2–3 calls of 2 frequencies,
+stopped at 0.5 %), one single-frequency solve per swept height at a leg scaled from it (the gain
+pattern hardly changes with a few kHz of detuning; a coarse grid 0.05 wavelength apart over each
+axis and 0–3 refinement points), a resonance at the recommended heights (usually 1–2 calls,
+warm-started) and one SWR curve.
 """
 
 from __future__ import annotations
@@ -28,13 +29,8 @@ from fieldkit.rigging.cut import (
     wire_needed_m,
 )
 from fieldkit.rigging.feedline import Coax, total_loss_db
-from fieldkit.rigging.heights import (
-    MIN_END_HEIGHT_M,
-    WITHIN_BEST_DB,
-    HeightPoint,
-    nvis_figure_dbi,
-    recommend,
-)
+from fieldkit.rigging.height_search import sweep_layout
+from fieldkit.rigging.heights import HeightPoint, point_from_solution
 from fieldkit.rigging.hung import HungDipole, recut
 from fieldkit.rigging.layouts import Layout, Mechanics
 from fieldkit.rigging.mast import MastLoad
@@ -124,9 +120,13 @@ def max_chord_m(frequency_hz: float) -> float:
     return SPEED_OF_LIGHT_M_S / f_top / SEGMENTS_PER_WAVELENGTH * (1 - 1e-3)
 
 
-def _build(layout: Layout, setting: dict[str, float], leg_m: float, f: float) -> HungDipole:
-    """The layout hung at this leg, its polyline cut to the engine's segment length at channel f."""
-    return recut(layout.build(setting, leg_m), max_chord_m=max_chord_m(f))
+def _build(
+    layout: Layout, setting: dict[str, float], leg_m: float, f: float, exact: bool = False
+) -> HungDipole:
+    """The layout hung at this leg, its polyline cut to the engine's segment length at channel f
+    (``exact``: the cut's own leg, which may exceed the rope or the clearing a little)."""
+    hang = layout.hang if exact and layout.hang is not None else layout.build
+    return recut(hang(setting, leg_m), max_chord_m=max_chord_m(f))
 
 
 def _resonate_at(
@@ -144,7 +144,7 @@ def _resonate_at(
         leg = leg_guess_m
     try:
         res = resonate(
-            lambda L: _build(layout, setting, L, f),
+            lambda L: _build(layout, setting, L, f, exact=not screening),
             engine=engine,
             wire=kit.wire,
             ground=kit.ground,
@@ -191,10 +191,15 @@ def screen(
 ) -> Screened:
     """Sweep the layout's rope heights at a near-resonant leg length (one frequency per height).
 
+    Each axis of the layout (a flat pair's ropes, a sloping pair's higher rope, an inverted-V's apex
+    and then its ends) is swept over its whole range, from the minimum end height to the support's
+    limit, the kit's rope and the clearing (:func:`fieldkit.rigging.height_search.sweep_layout`):
+    a coarse grid 0.05 wavelength apart and parabolic steps around the peak.
+
     The leg comes from the nearest resonance already found (same channel on another layout, or another
     channel scaled by f·L ≈ const, within a percent or two); only the very first screen solves a
-    resonance. The gain
-    pattern of a dipole a percent off resonance is the same to a few hundredths of a dB.
+    resonance. The gain pattern of a dipole a percent off resonance is the same to a few hundredths of
+    a dB.
 
     ``only`` restricts the sweep to one setting: a channel within a few percent of one already swept on
     this layout keeps that channel's chosen heights (heights in wavelengths differ by that few percent;
@@ -203,10 +208,12 @@ def screen(
     Raises
     ------
     Refusal
-        When the wire cannot hang here at any setting or the spool is clearly short.
+        When the site rules the layout out, the wire cannot hang here at any setting or the spool is
+        clearly short.
     """
     f = frequency_hz
-    settings = list(layout.settings) if only is None else [dict(only)]
+    if layout.blocked is not None:
+        raise Refusal(layout.blocked)
     spool = kit.wire.spool_m
     rough = 2 * (FIRST_GUESS_FRACTION * rule_of_thumb_leg_m(f) * 0.95 + 2 * kit.wrap_allowance_m)
     if spool is not None and rough > spool:  # clearly short: say so before any engine work
@@ -214,68 +221,61 @@ def screen(
             f"wire spool too short: a {f / 1e6:g} MHz dipole needs about {rough:.0f} m of wire, "
             f"the spool holds {spool:g} m"
         )
-    seeded: dict[int, Any] = {}
     if not warm.by_frequency:  # nothing to scale from yet: one resonance to start the chain
-        last = "cannot hang"
-        for i in reversed(range(len(settings))):
-            try:
-                seeded[i] = _resonate_at(
-                    layout, settings[i], f, kit, engine, warm, screening=True
-                ).solution
-                break
-            except Refusal as e:
-                last = str(e)
-        if not seeded:
-            raise Refusal(_short_span_words(layout, f, warm) or last)
+        _seed(layout, f, kit, engine, warm)
     leg = warm.guess(f)[0]
-    points: list[HeightPoint] = []
-    seen_shapes: set[tuple[float, ...]] = set()
-    last = "cannot hang"
-    # from the top down; stop once the figure falls, and is already more than 0.3 dB below the best:
-    # between 0.03 and 0.3 wavelength the NVIS figure has one peak in height, so nothing lower can
-    # come back within 0.3 dB (REFERENCES.md, NEC-2 zenith gains versus height)
-    for i in reversed(range(len(settings))):
-        s = settings[i]
-        if (
-            len(points) >= 2
-            and points[-1].nvis_dbi < points[-2].nvis_dbi
-            and points[-1].nvis_dbi < max(p.nvis_dbi for p in points) - WITHIN_BEST_DB
-        ):
-            break
+
+    def build(setting: dict[str, float]) -> HungDipole:
+        return _build(layout, setting, leg, f)
+
+    def solve(hung: HungDipole):
+        return engine.solve(hung, kit.wire, frequencies_hz=[f], ground=kit.ground)[0]
+
+    if only is not None:
         try:
-            hung = _build(layout, s, leg, f)
+            hung = build(dict(only))
         except HangError as e:
-            last = str(e)
-            continue
-        shape_key = (round(hung.feedpoint_height_m, 2), *(round(h, 2) for h in hung.end_heights_m))
-        if shape_key in seen_shapes:  # two settings that hang the same way (e.g. ends clamped)
-            continue
-        seen_shapes.add(shape_key)
-        sol = (
-            seeded.get(i) or engine.solve(hung, kit.wire, frequencies_hz=[f], ground=kit.ground)[0]
+            raise Refusal(str(e)) from None
+        points = (
+            point_from_solution(
+                solve(hung), rope_heights_m=dict(only), feedpoint_height_m=hung.feedpoint_height_m
+            ),
         )
-        points.append(
-            HeightPoint(
-                rope_heights_m=dict(s),
-                feedpoint_height_m=hung.feedpoint_height_m,
-                nvis_dbi=nvis_figure_dbi(sol),
-                zenith_dbi=float(sol.zenith_gain_dbi),
-                efficiency=float(sol.radiation_efficiency),
-                resistance_ohm=float(sol.impedance_ohm.real),
-                reactance_ohm=float(sol.impedance_ohm.imag),
+        pick = 0
+        why = (
+            f"heights as swept at {swept_at_hz / 1e6:g} MHz on this layout (within a few percent "
+            "of this channel)"
+        )
+    else:
+        try:
+            sweep = sweep_layout(
+                layout,
+                build=build,
+                solve=solve,
+                wavelength_m=SPEED_OF_LIGHT_M_S / f,
+                ground_name=kit.ground_name,
             )
-        )
-    if not points:
-        raise Refusal(_short_span_words(layout, f, warm) or last)
-    points.sort(key=lambda p: p.feedpoint_height_m)
-    pick, why = recommend(points, ground_name=kit.ground_name)
-    if only is not None and swept_at_hz is not None:
-        why = f"heights as swept at {swept_at_hz / 1e6:g} MHz on this layout (within a few percent of this channel)"
+        except HangError as e:
+            raise Refusal(_short_span_words(layout, f, warm) or str(e)) from None
+        points, pick, why = sweep.points, sweep.pick, sweep.why
     # rank by the NVIS figure less the feedline loss at the resistance the dipole shows at resonance
-    r = points[pick].resistance_ohm
-    swr_est = max(r / 50.0, 50.0 / r)
-    loss = total_loss_db(matched_loss_db=kit.coax.matched_loss_db(f), swr=swr_est)
+    loss = total_loss_db(matched_loss_db=kit.coax.matched_loss_db(f), swr=points[pick].swr_estimate)
     return Screened(layout, f, tuple(points), pick, why, leg, points[pick].nvis_dbi - loss)
+
+
+def _seed(layout: Layout, f: float, kit: Kit, engine: EngineCounter, warm: Warm) -> None:
+    """The plan's first resonance, on this layout: at its start setting, else its coarse settings
+    from the top down (stopped at 0.5 %: it only has to give the screening leg)."""
+    tries = [layout.setting_for(layout.start())] if layout.setting_for else []
+    tries += list(reversed(layout.settings))
+    last = "cannot hang"
+    for setting in tries:
+        try:
+            _resonate_at(layout, setting, f, kit, engine, warm, screening=True)
+            return
+        except Refusal as e:
+            last = str(e)
+    raise Refusal(_short_span_words(layout, f, warm) or last)
 
 
 def _short_span_words(layout: Layout, f: float, warm: Warm) -> str | None:
@@ -288,7 +288,7 @@ def _short_span_words(layout: Layout, f: float, warm: Warm) -> str | None:
     a, b = layout.supports_used
     return (
         f"{layout.span_m:.0f} m between {a} and {b}; a {f / 1e6:g} MHz dipole needs about {need:.0f} m: "
-        f"drooping the ends would bring them below {MIN_END_HEIGHT_M:g} m here, so use an inverted-V on "
+        f"drooping the ends would bring them below {layout.min_end_height_m:g} m here, so use an inverted-V on "
         "a mast, or choose a higher channel"
     )
 
@@ -356,8 +356,8 @@ def _spool_words(res: Resonance, f: float, kit: Kit) -> list[str]:
         )
     if spare_need > spool:
         return [
-            f"the spool ({spool:g} m) covers the cut list ({need:.1f} m) but not the cut-long spare "
-            f"({spare_need:.1f} m): cut to the list and trim carefully"
+            f"the spool ({spool:g} m) holds both legs but not the full cut-long spare: the cut "
+            "instruction keeps the spare the spool leaves; trim carefully"
         ]
     return []
 
@@ -366,8 +366,9 @@ def _rope_words(layout: Layout, hung: HungDipole, chosen: dict[str, float], kit:
     need = round(rope_needed_m(layout, hung, chosen), 1)
     if not need or kit.rope_length_m is None or need <= kit.rope_length_m:
         return []
+    shown = f"{need:.1f}" if need - kit.rope_length_m < 2.0 else f"{need:.0f}"
     return [
-        f"rope short: this hang needs about {need:.0f} m of rope "
+        f"rope short: this hang needs about {shown} m of rope "
         f"({'halyards' if layout.mast is None else 'stake ropes'}), the kit has {kit.rope_length_m:g} m: "
         "use the throw lines for the tie-offs or add rope"
     ]
@@ -415,6 +416,8 @@ def finish(sc: Screened, *, kit: Kit, engine: EngineCounter, warm: Warm) -> Rigg
     bare_leg = _bare_leg_m(res, kit=kit, engine=engine, warm=warm)
     hung = res.hung
     warnings = [*hung.notes, *layout.notes, *_spool_words(res, f, kit)]
+    if layout.advice is not None:
+        warnings += layout.advice(hung)
     warnings += _rope_words(layout, hung, sc.chosen, kit)
     warnings = _droop_words(layout, res, f) + warnings
     mast = _mast_load(layout, hung)

@@ -15,13 +15,15 @@ import numpy as np
 
 from fieldkit.constants import SPEED_OF_LIGHT_M_S, STANDARD_GRAVITY_M_S2
 from fieldkit.fields import Record, arr, nested, num, string
-from fieldkit.rigging.cut import Resonance, SwrCurve, cut_json
+from fieldkit.rigging.cut import Resonance, SwrCurve, cut_json, spare_m
 from fieldkit.rigging.feedline import feedline_json
 from fieldkit.rigging.heights import HeightPoint, sweep_json
 from fieldkit.rigging.hung import HungDipole
+from fieldkit.rigging.instruction import CutInstruction, cut_instruction
 from fieldkit.rigging.layouts import Layout
 from fieldkit.rigging.mast import MastLoad
-from fieldkit.rigging.supports import halyard_rope_m
+from fieldkit.rigging.supports import HALYARD_TIE_OFF_M, halyard_rope_m
+from fieldkit.rigging.vee import stakes
 
 LINKED_NOTE = (
     "with a link open, the wire beyond it still hangs there and lowers that channel's resonance by "
@@ -59,11 +61,27 @@ RIGGED_OPTION = Record(
         num("swr", "", required=True),
         nested("swr_curve", required=True),
         nested("nvis", required=True, description="zenith gain, beamwidth, mean NVIS gain"),
-        arr("height_sweep", required=True, schema={"items": _OBJECT}),
+        arr(
+            "height_sweep",
+            required=True,
+            schema={"items": _OBJECT},
+            description=(
+                "every swept setting: rope heights, feedpoint height, NVIS figure, zenith gain, "
+                "efficiency; swept (ropes, a support id, apex or ends), swept_height_m, "
+                "max_gain_elevation_deg, swr_estimate"
+            ),
+        ),
         string("height_choice", required=True),
         nested("mast", required=True, nullable=True),
         nested("feedline", required=True, description="loss and mass"),
-        nested("rigging", required=True, description="loads and rope"),
+        nested(
+            "rigging",
+            required=True,
+            description=(
+                "loads and rope; an inverted-V's stakes_m: one {x_m, y_m, bearing_deg, distance_m} "
+                "per end, from the mast or the point under the apex"
+            ),
+        ),
         arr("warnings", required=True, schema={"items": {"type": "string"}}),
         num("score_db", "dB", required=True),
         num("apex_angle_deg", "deg", description="inverted-V only"),
@@ -150,7 +168,11 @@ def rope_needed_m(layout: Layout, hung: HungDipole, setting: dict[str, float]) -
 
 
 def _end_rope_m(hung: HungDipole, setting: dict[str, float]) -> float:
-    return math.hypot(hung.stake_distance_m - _reach(hung), setting["ends"]) + 1.5
+    """One stake rope: from the end insulator (as it hangs) down its leg's line to the stake, with
+    the tie-off [m]."""
+    return (
+        math.hypot(hung.stake_distance_m - _reach(hung), hung.end_heights_m[0]) + HALYARD_TIE_OFF_M
+    )
 
 
 def _apex_rope_m(hung: HungDipole) -> float:
@@ -172,6 +194,12 @@ def _inverted_v_json(r: RiggedOption, kit) -> dict[str, Any]:
         "end_rope_m": round(rope_each, 1),
         "rope_needed_m": round(rope_needed_m(layout, hung, r.chosen), 1),
         "top_load_kg": round(hung.top_load_n / g, 3),
+        "stakes_m": [st.to_json() for st in stakes(hung)],
+        "stakes_from": (
+            f"bearing and distance from {layout.mast.id}"
+            if layout.mast is not None
+            else f"bearing and distance from the point under the apex on {layout.supports_used[0]}"
+        ),
     }
     if layout.mast is None:  # apex hauled up over a branch on its own halyard
         out["apex_halyard_rope_m"] = round(_apex_rope_m(hung), 1)
@@ -233,7 +261,7 @@ def _mast_json(r: RiggedOption) -> dict[str, Any] | None:
     if r.mast is None:
         return None
     mast = r.mast.to_json()
-    mast["x_m"], mast["y_m"] = r.layout.mast_xy
+    mast["x_m"], mast["y_m"] = (round(float(v), 2) + 0.0 for v in r.layout.mast_xy)
     return mast
 
 
@@ -250,6 +278,17 @@ def _nvis_json(r: RiggedOption) -> dict[str, Any]:
     }
 
 
+def option_cut_instruction(r: RiggedOption, kit) -> CutInstruction:
+    """The option's one cut instruction: what the cut block, the Card and the checklist item say."""
+    leg, wrap = r.resonance.leg_m, kit.wrap_allowance_m
+    return cut_instruction(
+        legs_m=[leg, leg],
+        wrap_allowance_m=wrap,
+        spare_m=spare_m(leg_m=leg, wrap_allowance_m=wrap, spool_m=kit.wire.spool_m),
+        sections_m=None if r.linked is None else r.linked.sections_m,
+    )
+
+
 def _cut_json(r: RiggedOption, kit) -> dict[str, Any]:
     cut = cut_json(
         r.resonance,
@@ -257,6 +296,7 @@ def _cut_json(r: RiggedOption, kit) -> dict[str, Any]:
         wire=kit.wire,
         wrap_allowance_m=kit.wrap_allowance_m,
         bare_leg_m=r.bare_leg_m,
+        instruction=option_cut_instruction(r, kit),
     )
     if r.linked is not None:
         cut["sections_m"] = list(r.linked.sections_m)

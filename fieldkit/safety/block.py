@@ -19,9 +19,16 @@ from fieldkit.safety.checked_option import CheckedOption, MastAtSite, option_fro
 from fieldkit.safety.checklists import ChecklistItem, slug
 from fieldkit.safety.duty import Radio, parse_radio
 from fieldkit.safety.exposure import KeepOut, Landmark, keep_out
-from fieldkit.safety.hazards import Path, PowerLine, parse_hazards
+from fieldkit.safety.hazards import Path, PowerLine, hazard_names, parse_hazards
 from fieldkit.safety.items import OptionFindings, option_items
-from fieldkit.safety.limits import LIMIT_SETS, ExposureLimit, exposure_limit, parse_limit_set
+from fieldkit.safety.limits import (
+    LIMIT_SET_WORDS,
+    LIMIT_SETS,
+    ExposureLimit,
+    exposure_limit,
+    parse_limit_set,
+)
+from fieldkit.safety.low_wire import low_wire_zones
 from fieldkit.safety.oet65 import oet65_estimate
 from fieldkit.safety.plan_view import compass_word
 from fieldkit.safety.powerlines import Clearance, Rig, RiggedSupport, line_clearances
@@ -44,6 +51,11 @@ SAFETY_BLOCK = Record(
     "SafetyBlock",
     (
         string("limit_set", *LIMIT_SETS, required=True),
+        string(
+            "limit_set_name",
+            required=True,
+            description='the limit set in words ("US general public limits (47 CFR 1.1310)")',
+        ),
         num(
             "keep_out_m",
             "m",
@@ -55,6 +67,11 @@ SAFETY_BLOCK = Record(
             "keep_out_outline_m",
             required=True,
             description="the zone at 1.8 m: a polygon [[x, y], ...]",
+        ),
+        arr(
+            "low_wire_zones_m",
+            required=True,
+            description="the ground under the wire where it hangs below 3 m, to fence: polygons",
         ),
         num(
             "min_end_height_m",
@@ -188,6 +205,8 @@ class SafetyResult:
     clearances: tuple[Clearance, ...]
     reasons: tuple[str, ...]
     checklist: tuple[ChecklistItem, ...]
+    hazard_names: tuple[str, ...] = ()  # each hazard's name in every text (hazards.hazard_names)
+    low_wire_zones_m: tuple = ()  # ground under the wire below 3 m, to fence (low_wire.py)
 
     @property
     def raise_ok(self) -> bool:
@@ -203,10 +222,15 @@ class SafetyResult:
         return SAFETY_BLOCK.written(
             {
                 "limit_set": self.limit.limit_set,
+                "limit_set_name": LIMIT_SET_WORDS[self.limit.limit_set],
                 "keep_out_m": round(ko.keep_out_m, 2),
                 "keep_out_outline_m": ko.outline_m,
+                "low_wire_zones_m": list(self.low_wire_zones_m),
                 "min_end_height_m": self.min_end_height_m,
-                "clearances": [c.to_json() for c in self.clearances],
+                "clearances": [
+                    {**c.to_json(), "hazard_name": self.hazard_names[c.hazard]}
+                    for c in self.clearances
+                ],
                 "raise_ok": self.raise_ok,
                 "reasons": list(self.reasons),
                 "checklist": [it.to_json() for it in self.checklist],
@@ -251,9 +275,11 @@ def _exposure_json(r: SafetyResult) -> dict[str, Any]:
     }
 
 
-def _reasons(clearances: list[Clearance], supports: Sequence[Support], rig: Rig) -> tuple[str, ...]:
-    """Why the option must not be raised as planned (empty: it may)."""
-    reasons = [f"power line {c.hazard}: {c.why}" for c in clearances if not c.ok]
+def _reasons(
+    clearances: list[Clearance], supports: Sequence[Support], rig: Rig, names: Sequence[str]
+) -> tuple[str, ...]:
+    """Why the option must not be raised as planned (empty: it may); hazards by their ``names``."""
+    reasons = [f"{names[c.hazard]}: {c.why}" for c in clearances if not c.ok]
     used = {r.id for r in rig.supports}
     reasons += [
         f"support {s.id} is marked unsafe and must not be used"
@@ -315,6 +341,7 @@ def check_option(
         if isinstance(hz, PowerLine)
         for c in line_clearances(i, hz, rig)
     ]
+    names = hazard_names(list(hazards))
     findings = OptionFindings(
         option=option,
         radio=radio,
@@ -334,8 +361,10 @@ def check_option(
         oet65=oet65_estimate(average_power_w=radio.average_power_w, s_limit_w_m2=limit.s_w_per_m2),
         input_impedance_ohm=complex(sol.impedance_ohm),
         clearances=tuple(clearances),
-        reasons=_reasons(clearances, supports, rig),
+        reasons=_reasons(clearances, supports, rig, names),
         checklist=tuple(option_items(findings)),
+        hazard_names=tuple(names),
+        low_wire_zones_m=tuple(low_wire_zones(wire)),
     )
 
 
@@ -374,8 +403,10 @@ def safety_block(
     -------
     dict
         ``limit_set``, ``keep_out_m``, ``keep_out_outline_m``, ``min_end_height_m``, ``clearances``,
-        ``raise_ok``, ``checklist``, ``cautions``; and ``reasons`` (why not to raise) and ``exposure``
-        (per end and height, OET 65 estimate, power for no zone, near-field points used).
+        ``raise_ok``, ``checklist``, ``cautions``; ``low_wire_zones_m`` (the ground under the wire
+        where it hangs below 3 m, to fence: :mod:`fieldkit.safety.low_wire`); and ``reasons`` (why
+        not to raise) and ``exposure`` (per end and height, OET 65 estimate, power for no zone,
+        near-field points used).
     """
     limit_name = parse_limit_set(limit_set)
     rad = parse_radio(radio)

@@ -55,6 +55,8 @@ class CheckedOption:
     mast : the centre mast, or None
     swr : SWR at the channel, for the after-raise item
     trim_cm_per_100khz : leg change that moves the dip 100 kHz [cm], for the re-trim item
+    cut_text : the option's one cut instruction with every length in both units
+        (:mod:`fieldkit.rigging.instruction`), for the cut-and-mark item; None without one
     """
 
     frequency_hz: float
@@ -67,6 +69,7 @@ class CheckedOption:
     mast: MastAtSite | None = None
     swr: float | None = None
     trim_cm_per_100khz: float | None = None
+    cut_text: str | None = None
 
 
 def feed_point(wire: np.ndarray, distance_m: float) -> np.ndarray:
@@ -175,6 +178,15 @@ def _trim_cm(option: Mapping[str, Any]) -> float | None:
     )
 
 
+def _cut_text(option: Mapping[str, Any]) -> str | None:
+    """The cut instruction's text in both units, when the option carries it (``cut.instruction``)."""
+    cut = option.get("cut") if isinstance(option.get("cut"), Mapping) else {}
+    instruction = cut.get("instruction") if isinstance(cut.get("instruction"), Mapping) else {}
+    texts = instruction.get("text") if isinstance(instruction.get("text"), Mapping) else {}
+    text = texts.get("both")
+    return text if isinstance(text, str) else None
+
+
 def _frequency_hz(option: Mapping[str, Any]) -> float:
     f_mhz = number(
         option.get("frequency_mhz"),
@@ -220,4 +232,5 @@ def option_from_json(option: Any, *, with_wire: bool = True) -> CheckedOption:
         mast=_mast(option.get("mast"), feed),
         swr=float(swr) if isinstance(swr, int | float) and not isinstance(swr, bool) else None,
         trim_cm_per_100khz=_trim_cm(option),
+        cut_text=_cut_text(option),
     )

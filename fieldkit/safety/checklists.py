@@ -27,15 +27,19 @@ class ChecklistItem:
     text: str
     required: bool
     rule: str = ""
+    title: str = ""  # a few words for the field card; the text is the check itself
 
     def to_json(self) -> dict[str, Any]:
-        return {
+        out = {
             "id": self.id,
             "stage": self.stage,
             "text": self.text,
             "required": self.required,
             "rule": self.rule,
         }
+        if self.title:
+            out["title"] = self.title
+        return out
 
 
 def slug(value: str) -> str:
@@ -50,8 +54,8 @@ def item_id(stage: str, rule: str, obj: str | int | None = None) -> str:
     return base if obj is None else f"{base}-{slug(str(obj))}"
 
 
-def _t(stage: str, rule: str, text: str, required: bool = True) -> ChecklistItem:
-    return ChecklistItem(item_id(stage, rule), stage, text, required, rule)
+def _t(stage: str, rule: str, text: str, required: bool = True, *, title: str) -> ChecklistItem:
+    return ChecklistItem(item_id(stage, rule), stage, text, required, rule, title)
 
 
 # The fixed items of each stage (fieldkit's own wording). Sources: US NWS lightning guidance; the rest is
@@ -63,78 +67,92 @@ _TEMPLATES: tuple[ChecklistItem, ...] = (
         "No thunder heard and no lightning seen for 30 minutes. At the first thunder stop and go to "
         "shelter (US National Weather Service: when thunder roars, go indoors; flash-to-bang 30 s or "
         "less means shelter now).",
+        title="No thunder or lightning for 30 minutes",
     ),
     _t(
         "pre-raise",
         "supports-inspected",
         "Every support looked over from all sides: no dead wood, cracked or hanging branches above the "
         "rope, no loose or damaged mast sections. An unsafe support is not used.",
+        title="Supports looked over: no dead wood",
     ),
     _t(
         "pre-raise",
         "throw-zone",
         "Throw zone clear of people and vehicles, with nobody downrange; thrower and helpers wear eye "
         "protection.",
+        title="Throw zone clear, eye protection on",
     ),
     _t(
         "pre-raise",
         "feedline-route",
         "Feedline routed off paths and walkways (or covered and flagged where it must cross one).",
+        title="Feedline off paths, or covered and flagged",
     ),
     _t(
         "pre-raise",
         "briefing",
         "Team briefed: fieldkit is a planning aid; the local codes, the utility's rules, the landowner, "
         "licensed practice and the local regulator's RF exposure rules come first.",
+        title="Team briefed: local rules come first",
     ),
     _t(
         "raise",
         "transmitter-off",
         "Transmitter off and the coax unplugged at the radio while anyone handles the antenna.",
+        title="Transmitter off, coax unplugged",
     ),
     _t(
         "raise",
         "nobody-under",
         "Nobody stands under a support, rope or mast while it is being hauled; gloves on for the ropes.",
+        title="Nobody under a load; gloves on",
     ),
     _t(
         "raise",
         "static-discharge",
         "Before connecting the coax to the radio, discharge static from the antenna to a ground stake.",
+        title="Static discharged before connecting",
     ),
     _t(
         "after-raise",
         "no-touch",
         "Wire, end insulators and balun out of reach, or nobody near them while transmitting: RF burns "
         "happen on contact even below the exposure limits.",
+        title="Wire and insulators out of reach",
     ),
     _t(
         "after-raise",
         "log-measurement",
         "Measured SWR dip (or R and X) written down for the re-trim and the deployment record.",
         required=False,
+        title="SWR dip written down",
     ),
     _t(
         "tear-down",
         "transmitter-off",
         "Transmitter off and the coax unplugged before anyone lowers the antenna.",
+        title="Transmitter off before lowering",
     ),
     _t(
         "tear-down",
         "lower-under-control",
         "Lower the wire under control, paying out the halyards slowly, clear of any power line.",
+        title="Wire lowered under control",
     ),
     _t(
         "tear-down",
         "recover",
         "Guys, stakes, flags, weak links and all rope recovered; trees left as found.",
         required=False,
+        title="Guys, stakes and rope recovered",
     ),
     _t(
         "tear-down",
         "count-kit",
         "Kit counted back: wire, insulators, balun, coax, rope, throw lines and weights.",
         required=False,
+        title="Kit counted back",
     ),
 )
 

@@ -72,6 +72,7 @@ class PowerLine:
     voltage_kv: float | None = None
     note: str = ""
     kind: str = "power_line"
+    id: str = ""  # the operator's name for it, if any
 
 
 @dataclass(frozen=True)
@@ -81,6 +82,7 @@ class Path:
     points_m: np.ndarray
     note: str = ""
     kind: str = "path"
+    id: str = ""  # the operator's name for it, if any
 
 
 def _plan_points(value: Any, field: str) -> np.ndarray:
@@ -108,18 +110,43 @@ def _note(obj: Mapping[str, Any], field: str) -> str:
     return text(obj["note"], join(field, "note"), max_length=500) if "note" in obj else ""
 
 
+def _id(obj: Mapping[str, Any], field: str) -> str:
+    return text(obj["id"], join(field, "id"), max_length=40).strip() if "id" in obj else ""
+
+
+#: How a hazard without a name of its own is called, numbered from 1 within its kind.
+KIND_WORDS = {"power_line": "power line", "path": "path"}
+
+
+def hazard_names(hazards: list[PowerLine | Path]) -> list[str]:
+    """The name each hazard goes by in every text: the id the operator gave, else its kind numbered
+    from 1 within that kind ("power line 1", "path 1")."""
+    seen: dict[str, int] = {}
+    out = []
+    for hz in hazards:
+        seen[hz.kind] = seen.get(hz.kind, 0) + 1
+        out.append(hz.id or f"{KIND_WORDS[hz.kind]} {seen[hz.kind]}")
+    return out
+
+
 def _power_line(obj: Mapping[str, Any], f: str) -> PowerLine:
     POWER_LINE.check(obj, f)
     pts = _plan_points(obj["points_m"], join(f, "points_m"))
     POWER_LINE.require(obj, f, ("height_m",))
     height = POWER_LINE.number(obj, f, "height_m")
     volts = POWER_LINE.number(obj, f, "voltage_kv") if "voltage_kv" in obj else None
-    return PowerLine(points_m=pts, height_m=height, voltage_kv=volts, note=_note(obj, f))
+    return PowerLine(
+        points_m=pts, height_m=height, voltage_kv=volts, note=_note(obj, f), id=_id(obj, f)
+    )
 
 
 def _path(obj: Mapping[str, Any], f: str) -> Path:
     PATH.check(obj, f)
-    return Path(points_m=_plan_points(obj["points_m"], join(f, "points_m")), note=_note(obj, f))
+    return Path(
+        points_m=_plan_points(obj["points_m"], join(f, "points_m")),
+        note=_note(obj, f),
+        id=_id(obj, f),
+    )
 
 
 def parse_hazards(value: Any, field: str = "site.hazards") -> list[PowerLine | Path]:

@@ -31,6 +31,14 @@ LIMIT_SETS: tuple[str, ...] = (
     "icnirp-occupational",
 )
 
+#: The limit sets in the words every text uses (the codes stay in the JSON's ``limit_set``).
+LIMIT_SET_WORDS = {
+    "fcc-uncontrolled": "US general public limits (47 CFR 1.1310)",
+    "fcc-controlled": "US occupational limits (47 CFR 1.1310)",
+    "icnirp-public": "ICNIRP 2020 general public limits",
+    "icnirp-occupational": "ICNIRP 2020 occupational limits",
+}
+
 #: Impedance of free space [ohm] (μ0·c, fieldkit.constants) — plane-wave equivalent power density S = E²/η0.
 FREE_SPACE_IMPEDANCE_OHM = ETA0
 #: 1 mW/cm² in W/m² (unit conversion).

@@ -29,6 +29,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from fieldkit.readable import distance_text
 from fieldkit.safety.hazards import ASSUMED_LINE_VOLTAGE_KV, PowerLine
 from fieldkit.safety.plan_view import compass_word, densify, distance_to_polyline
 
@@ -196,21 +197,26 @@ def _approach(index: int, line: PowerLine, rig: Rig, required: float) -> Clearan
     return Clearance(index, "people and handled objects", "approach", d, required, why)
 
 
-def line_summary(index: int, line: PowerLine, rig: Rig, clearances: list[Clearance]) -> str:
-    """One sentence for the checklist: where the line is, the nearest support and the verdict."""
+def line_summary(
+    index: int, line: PowerLine, rig: Rig, clearances: list[Clearance], *, name: str = ""
+) -> str:
+    """One sentence for the checklist: the line by its name, where it is, the nearest support and the
+    verdict. ``name`` is the line's name in every text (:func:`fieldkit.safety.hazards.hazard_names`)."""
     centre = rig.feed_m[:2]
     d_centre = distance_to_polyline(centre[None], line.points_m)[0]
     nearest_pt = _nearest_point(centre, line.points_m)
-    where = f"{d_centre:.0f} m {compass_word(*(nearest_pt - centre))}"
+    where = f"{distance_text(d_centre)} {compass_word(*(nearest_pt - centre))} of the feedpoint"
     mine = [c for c in clearances if c.hazard == index]
     bad = [c for c in mine if not c.ok]
     sup = [c for c in mine if c.rule == "fall" and c.object.startswith("support ")]
-    head = f"Power line {index} ({where})"
+    label = name or f"power line {index + 1}"
+    head = f"{label[:1].upper()}{label[1:]} ({where})"  # a sentence starts with a capital
     if sup:
         near = min(sup, key=lambda c: c.distance_m)
+        reach = near.required_m - LINE_CLEARANCE_M
         head += (
             f": nearest support {near.object.removeprefix('support ')} is {near.distance_m:.1f} m "
-            f"from it, falling reach {near.required_m - LINE_CLEARANCE_M:.1f} m + 3.05 m"
+            f"from it and needs {near.required_m:.1f} m (falling reach {reach:.1f} m + 3.05 m)"
         )
     if bad:
         return head + " — TOO CLOSE, do not raise: " + "; ".join(c.why for c in bad)

@@ -6,18 +6,23 @@ once per channel) → reach per channel per hour → best channel per hour → s
 
 from __future__ import annotations
 
+from collections.abc import Mapping
+from dataclasses import dataclass
 from typing import Any
+
+import numpy as np
 
 from fieldkit.fields import Field, Record, arr, nested, num, string
 from fieldkit.sky import path_geometry
-from fieldkit.sky.gain import elevation_gains
+from fieldkit.sky.gain import ElevationGain, elevation_gains
 from fieldkit.sky.inputs import SkySpec, parse_sky_spec
 from fieldkit.sky.iri import sky_estimate
-from fieldkit.sky.ranking import best_by_hour, clock_text, recommend
-from fieldkit.sky.reach import DISTANCES_KM, EXCESS_LOSS_DB, Radio, channel_reach
+from fieldkit.sky.ranking import best_by_hour, clock_text, recommend, schedule_hours, table_row
+from fieldkit.sky.reach import DISTANCES_KM, EXCESS_LOSS_DB, HourReach, Radio, channel_reach
 from fieldkit.sky.solar import sunspot_from_f107
 from fieldkit.sky.sounding import SOUNDING_SPAN_H, apply_sounding
 from fieldkit.sky.sun import solar_zenith_deg, sun_times
+from fieldkit.sky.what_works import idle_hours, nvis_ceiling, summary, working_bands
 
 HOURS_UTC = tuple(range(24))
 NOTICE = (
@@ -62,7 +67,11 @@ SKY_RESULT = Record(
         string("date", required=True, schema={"format": "date"}),
         nested("solar", required=True),
         nested("radio", required=True),
-        nested("antenna", required=True, description="the given model spec, or the default dipole"),
+        nested(
+            "antenna",
+            required=True,
+            description="the given model spec, the default dipole, or the planned hung wire",
+        ),
         arr("hours_utc", required=True),
         arr("local_times", required=True),
         arr("fof2_mhz", required=True, description="per hour"),
@@ -89,17 +98,65 @@ SKY_RESULT = Record(
             schema={"items": {"type": "object"}},
         ),
         arr("best_by_hour", required=True, schema={"items": {"type": "object"}}),
-        nested("schedule", required=True, nullable=True, description="with a schedule input"),
+        nested(
+            "schedule",
+            required=True,
+            nullable=True,
+            description="with a schedule input; when_none_works at hours no channel works",
+        ),
         Field("sources", required=True),
         arr("limitations", required=True, schema={"items": {"type": "string"}}),
         nested("sounding", description="with a sounding input"),
+        nested(
+            "nvis_ceiling",
+            required=True,
+            description="the day's largest foF2 (frequency_mhz, hour_utc): the top of the NVIS range",
+        ),
     ),
     "the `fieldkit sky` result: the channel day",
 )
 
 
-def channel_day(spec: SkySpec) -> dict[str, Any]:
-    """Compute the channel day for a validated input (see :func:`sky_json`)."""
+@dataclass(frozen=True)
+class SkyContext:
+    """The sky estimate for one site and day, computed once: what every channel's reach is worked from.
+
+    Attributes
+    ----------
+    spec : the validated input
+    sky : the IRI estimate after the sounding [MHz, km]
+    zenith_deg : solar zenith angle per hour [deg]
+    sun : sunrise, sunset, noon
+    sunspot_number : R12 for the absorption law
+    radio : power, bandwidth and required SNR
+    """
+
+    spec: SkySpec
+    sky: Any
+    zenith_deg: Any
+    sun: Any
+    sunspot_number: float
+    radio: Radio
+
+    def reach(self, frequency_mhz: float, gain: ElevationGain, hours=None) -> list[HourReach]:
+        """Reach of one channel with this antenna gain, every hour (or the hour indices given)."""
+        idx = list(range(len(self.sky.hours_utc))) if hours is None else list(hours)
+        return channel_reach(
+            frequency_mhz=frequency_mhz,
+            gain=gain,
+            hours_utc=np.asarray(self.sky.hours_utc)[idx],
+            fof2_mhz=np.asarray(self.sky.fof2_mhz)[idx],
+            reflection_height_km=np.asarray(self.sky.reflection_height_km)[idx],
+            solar_zenith_deg=np.asarray(self.zenith_deg)[idx],
+            gyro_frequency_mhz=self.sky.gyro_frequency_mhz,
+            sunspot_number=self.sunspot_number,
+            radio=self.radio,
+            noise_environment=self.spec.noise_environment,
+        )
+
+
+def sky_context(spec: SkySpec) -> SkyContext:
+    """The estimate, the sounding, the sun and the radio for a validated input."""
     estimate = sky_estimate(
         day=spec.day,
         lat_deg=spec.lat_deg,
@@ -108,9 +165,8 @@ def channel_day(spec: SkySpec) -> dict[str, Any]:
         hours_utc=HOURS_UTC,
     )
     sky = apply_sounding(estimate, spec.sounding)
-    hours = sky.hours_utc
     zenith = solar_zenith_deg(
-        day=spec.day, utc_hours=hours, lat_deg=spec.lat_deg, lon_deg=spec.lon_deg
+        day=spec.day, utc_hours=sky.hours_utc, lat_deg=spec.lat_deg, lon_deg=spec.lon_deg
     )
     sun = sun_times(day=spec.day, lat_deg=spec.lat_deg, lon_deg=spec.lon_deg)
     r12 = (
@@ -124,25 +180,37 @@ def channel_day(spec: SkySpec) -> dict[str, Any]:
         required_snr_db=spec.mode.required_snr_db,
         mode=spec.mode.name,
     )
-    gains = elevation_gains(
-        frequencies_mhz=spec.channels_mhz, antenna=spec.antenna, ground=spec.ground
-    )
+    return SkyContext(spec, sky, zenith, sun, r12, radio)
+
+
+def channel_day(
+    spec: SkySpec, *, gains: Mapping[float, ElevationGain] | None = None
+) -> dict[str, Any]:
+    """Compute the channel day for a validated input (see :func:`sky_json`).
+
+    ``gains``, when given, is the antenna gain against elevation per channel [MHz] of the antenna
+    being planned (:func:`fieldkit.sky.gain.elevation_gain_of` on its engine solution); the channels
+    it does not hold use the spec's antenna or the default dipole.
+    """
+    ctx = sky_context(spec)
+    sky, zenith, sun, r12 = ctx.sky, ctx.zenith_deg, ctx.sun, ctx.sunspot_number
+    hours = sky.hours_utc
+    gains = dict(gains or {})
+    missing = [f for f in spec.channels_mhz if f not in gains]
+    if missing:
+        gains.update(
+            zip(
+                missing,
+                elevation_gains(frequencies_mhz=missing, antenna=spec.antenna, ground=spec.ground),
+                strict=True,
+            )
+        )
 
     per_channel = []
     channels_out = []
-    for f, gain in zip(spec.channels_mhz, gains, strict=True):
-        rows = channel_reach(
-            frequency_mhz=f,
-            gain=gain,
-            hours_utc=hours,
-            fof2_mhz=sky.fof2_mhz,
-            reflection_height_km=sky.reflection_height_km,
-            solar_zenith_deg=zenith,
-            gyro_frequency_mhz=sky.gyro_frequency_mhz,
-            sunspot_number=r12,
-            radio=radio,
-            noise_environment=spec.noise_environment,
-        )
+    for f in spec.channels_mhz:
+        gain = gains[f]
+        rows = ctx.reach(f, gain)
         per_channel.append((f, rows))
         channels_out.append(
             {
@@ -203,7 +271,13 @@ def channel_day(spec: SkySpec) -> dict[str, Any]:
             "defaults_used": list(spec.defaults_used),
         },
         "antenna": (
-            {"kind": "given", "spec": spec.antenna}
+            {
+                "kind": "planned",
+                "description": "the planned hung wire (gain from the plan's own engine solution)",
+                "channels_mhz": sorted(f for f in spec.channels_mhz if f not in missing),
+            }
+            if len(missing) < len(spec.channels_mhz)
+            else {"kind": "given", "spec": spec.antenna}
             if spec.antenna is not None
             else {
                 "kind": "default",
@@ -230,7 +304,11 @@ def channel_day(spec: SkySpec) -> dict[str, Any]:
         "distances_km": _round(DISTANCES_KM, 0),
         "channels": channels_out,
         "best_by_hour": best,
-        "schedule": recommend(spec.schedule, per_channel, hours) if spec.schedule else None,
+        "schedule": _schedule(ctx, per_channel, gains) if spec.schedule else None,
+        "nvis_ceiling": dict(
+            zip(("frequency_mhz", "hour_utc"), _ceiling(ctx), strict=True),
+            why="the day's largest foF2: above it no frequency comes back from straight overhead",
+        ),
         "sources": SOURCES,
         "limitations": list(LIMITATIONS),
     }
@@ -251,7 +329,55 @@ def channel_day(spec: SkySpec) -> dict[str, Any]:
     return SKY_RESULT.written(out)
 
 
-def sky_json(spec: dict) -> dict:
+def _nearest(gains: Mapping[float, ElevationGain], f: float) -> ElevationGain:
+    return gains[min(gains, key=lambda c: abs(np.log(c / f)))]
+
+
+def _schedule(ctx: SkyContext, per_channel, gains) -> dict[str, Any]:
+    """The schedule's recommendation; when no channel works at some of its hours, what would."""
+    sched = ctx.spec.schedule
+    out = recommend(sched, per_channel, ctx.sky.hours_utc)
+    idle = idle_hours(sched, per_channel, ctx.sky.hours_utc)
+    if idle:
+        bands = working_bands(
+            ctx, idle, lambda f: _nearest(gains, f), distances_km=sched.distances_km
+        )
+        out["when_none_works"] = summary(bands, sched.distances_km)
+    return out
+
+
+def schedule_fit(ctx: SkyContext, gains: Mapping[float, ElevationGain]) -> dict[str, Any]:
+    """The schedule's table and recommendation with the given antenna gain per channel [MHz] (and,
+    at hours no channel works, what would); the channels without a gain use the spec's antenna or
+    the default dipole."""
+    gains = dict(gains)
+    missing = [f for f in ctx.spec.channels_mhz if f not in gains]
+    if missing:
+        found = elevation_gains(
+            frequencies_mhz=missing, antenna=ctx.spec.antenna, ground=ctx.spec.ground
+        )
+        gains.update(zip(missing, found, strict=True))
+    per_channel = [(f, ctx.reach(f, gains[f])) for f in ctx.spec.channels_mhz]
+    return _schedule(ctx, per_channel, gains)
+
+
+def schedule_row(
+    ctx: SkyContext, frequency_mhz: float, gain: ElevationGain
+) -> dict[str, Any] | None:
+    """One channel's row of the schedule table with this antenna gain (None without a window)."""
+    sched = ctx.spec.schedule
+    idx = schedule_hours(sched, ctx.sky.hours_utc) if sched is not None else []
+    if not idx:
+        return None
+    return table_row(sched, frequency_mhz, ctx.reach(frequency_mhz, gain), idx)
+
+
+def _ceiling(ctx: SkyContext) -> tuple[float, int]:
+    f, hour = nvis_ceiling(ctx)
+    return round(f, 2), hour
+
+
+def sky_json(spec: dict, *, gains: Mapping[float, ElevationGain] | None = None) -> dict:
     """The `fieldkit sky` calculation: JSON input in, JSON output out.
 
     Parameters
@@ -278,4 +404,4 @@ def sky_json(spec: dict) -> dict:
     fieldkit.errors.InputError
         For any bad input, naming the field.
     """
-    return channel_day(parse_sky_spec(spec))
+    return channel_day(parse_sky_spec(spec), gains=gains)

@@ -106,6 +106,29 @@ def _reduce(result: dict, azimuths, frequency_mhz: float) -> ElevationGain:
     )
 
 
+def elevation_gain_of(solution, *, frequency_mhz: float | None = None) -> ElevationGain:
+    """Azimuth-averaged gain against elevation of an antenna the caller has already solved.
+
+    Parameters
+    ----------
+    solution : fieldkit.antenna.Solution
+        The engine's solution of the antenna at the channel (a plan option's hung wire, say).
+    frequency_mhz : float, optional
+        The channel [MHz]; default the solution's frequency.
+    """
+    f = solution.frequency_hz / 1e6 if frequency_mhz is None else float(frequency_mhz)
+    gains = np.asarray(
+        solution.gain_dbi(list(ELEVATIONS_DEG), list(AZIMUTHS_FULL_DEG)), dtype=float
+    )
+    result = {
+        "gain_dbi": gains,
+        "zenith_gain_dbi": float(solution.zenith_gain_dbi),
+        "swr": float(solution.swr),
+        "radiation_efficiency": float(solution.radiation_efficiency),
+    }
+    return _reduce(result, AZIMUTHS_FULL_DEG, f)
+
+
 def _solve(spec: dict, frequencies_mhz: tuple[float, ...], azimuths, field: str) -> list[dict]:
     spec = copy.deepcopy(spec)
     for key in FREQUENCY_KEYS:

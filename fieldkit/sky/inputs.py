@@ -193,7 +193,8 @@ SKY = Record(
 TOP_KEYS = SKY.names
 
 
-def _date(value: Any, field: str) -> dt.date:
+def parse_date(value: Any, field: str) -> dt.date:
+    """A UTC day as YYYY-MM-DD, between the years the sky estimate covers."""
     if not isinstance(value, str) or not re.fullmatch(r"\d{4}-\d{2}-\d{2}", value):
         raise InputError(field, f"expected a date as YYYY-MM-DD, got {value!r}", value=value)
     try:
@@ -329,7 +330,7 @@ def parse_sky_spec(spec: Any) -> SkySpec:
     SKY.check(spec, "")
     SKY.require(spec, "")
     lat, lon, offset, ground = _site(spec["site"])
-    day = _date(spec["date"], "date")
+    day = parse_date(spec["date"], "date")
     f107, r12, solar_given = _solar(spec["solar"])
     channels = _channels(spec["channels_mhz"])
     sounding = _sounding(spec["sounding"]) if "sounding" in spec else None

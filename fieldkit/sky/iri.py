@@ -1,9 +1,10 @@
 """Monthly-median F2 layer for one site and UTC day from the International Reference Ionosphere.
 
-A thin wrapper round PyIRI (which ships the CCIR/URSI coefficient maps, so nothing is fetched at run
-time). PyIRI re-reads and re-parses the coefficient files of two months on every call (about 0.3 s);
-this module keeps the parsed maps in memory, so after the first call in a process a whole day costs
-a few tens of milliseconds.
+The IRI's CCIR maps as PyIRI implements them (PyIRI ships the coefficient maps, so nothing is
+fetched at run time), evaluated by :mod:`fieldkit.sky.iri_maps` from the compact tables of
+:mod:`fieldkit.sky.iri_tables`: the numbers are PyIRI's to the last bit, without importing PyIRI,
+scipy or matplotlib, so a cold `fieldkit sky` costs a few tens of milliseconds here instead of about
+a second. Results are also kept in memory per site, day and solar flux.
 
 References
 ----------
@@ -18,44 +19,15 @@ from __future__ import annotations
 
 import datetime as dt
 import functools
-import threading
 from dataclasses import dataclass
 
 import numpy as np
 
+from fieldkit.sky import igrf, iri_maps, iri_tables
 from fieldkit.sky.path_geometry import reflection_height_km
 
-CCIR = 0  # PyIRI switch: CCIR (0) or URSI (1) foF2 maps; CCIR is the IRI default over land
 GYRO_HZ_PER_TESLA = 2.7992e10  # e / (2 pi m_e); CODATA 2018
 ABSORPTION_FIELD_HEIGHT_KM = 100.0  # gyrofrequency taken near 100 km; ITU-R P.533 §5.3
-
-_lock = threading.Lock()
-_pyiri = None
-
-
-def _library():
-    """Import PyIRI once and keep its parsed coefficient maps in memory."""
-    global _pyiri
-    with _lock:
-        if _pyiri is None:
-            import PyIRI
-            import PyIRI.igrf_library as igrf
-            import PyIRI.main_library as ml
-
-            reader = ml.read_ccir_ursi_coeff
-            if not hasattr(reader, "cache_info"):
-
-                @functools.lru_cache(maxsize=24)
-                def cached_reader(mth, coeff_dir, output_deciles=False, output_quartiles=None):
-                    arrays = reader(mth, coeff_dir, output_deciles, output_quartiles)
-                    for a in arrays:
-                        a.setflags(write=False)  # shared between calls: must never be modified
-                    return arrays
-
-                cached_reader.__wrapped_reader__ = reader
-                ml.read_ccir_ursi_coeff = cached_reader
-            _pyiri = (PyIRI, ml, igrf)
-        return _pyiri
 
 
 @dataclass(frozen=True)
@@ -97,16 +69,14 @@ def _decimal_year(day: dt.date) -> float:
 
 @functools.lru_cache(maxsize=64)
 def _gyro_frequency_mhz(lat_deg: float, lon_deg: float, decimal_year: float) -> float:
-    pyiri, _, igrf = _library()
-    out = igrf.inclination(
-        pyiri.coeff_dir,
-        decimal_year,
-        np.array([lon_deg]),
-        np.array([lat_deg]),
-        ABSORPTION_FIELD_HEIGHT_KM,
-        only_inc=False,
+    _, total = igrf.field(
+        iri_tables.load().igrf,
+        decimal_year=decimal_year,
+        lat_deg=np.array([lat_deg]),
+        lon_deg=np.array([lon_deg]),
+        height_km=ABSORPTION_FIELD_HEIGHT_KM,
     )
-    total_nt = float(np.asarray(out[6]).ravel()[0])
+    total_nt = float(total[0])
     return GYRO_HZ_PER_TESLA * total_nt * 1e-9 / 1e6
 
 
@@ -114,28 +84,18 @@ def _gyro_frequency_mhz(lat_deg: float, lon_deg: float, decimal_year: float) -> 
 def _estimate(
     day: dt.date, lat_deg: float, lon_deg: float, f107: float, hours: tuple
 ) -> SkyEstimate:
-    pyiri, ml, _ = _library()
     hours_utc = np.array(hours, dtype=float)
-    f2, _, e, _, _, _, _ = ml.IRI_density_1day(
-        day.year,
-        day.month,
-        day.day,
-        hours_utc,
-        np.array([lon_deg]),
-        np.array([lat_deg]),
-        np.array([300.0]),
-        f107,
-        pyiri.coeff_dir,
-        CCIR,
+    peaks = iri_maps.peak_parameters(
+        iri_tables.load(), day=day, hours_utc=hours_utc, lat_deg=lat_deg, lon_deg=lon_deg, f107=f107
     )
-    m3000 = np.asarray(f2["M3000"], dtype=float)[:, 0]
+    m3000 = peaks.m3000
     result = SkyEstimate(
         hours_utc=hours_utc,
-        fof2_mhz=np.asarray(f2["fo"], dtype=float)[:, 0],
-        hmf2_km=np.asarray(f2["hm"], dtype=float)[:, 0],
+        fof2_mhz=peaks.fof2_mhz,
+        hmf2_km=peaks.hmf2_km,
         m3000=m3000,
         reflection_height_km=reflection_height_km(m3000=m3000),
-        foe_mhz=np.asarray(e["fo"], dtype=float)[:, 0],
+        foe_mhz=peaks.foe_mhz,
         gyro_frequency_mhz=_gyro_frequency_mhz(lat_deg, lon_deg, _decimal_year(day)),
     )
     for a in (result.hours_utc, result.fof2_mhz, result.hmf2_km, result.m3000):
@@ -148,7 +108,7 @@ def _estimate(
 def sky_estimate(
     *, day: dt.date, lat_deg: float, lon_deg: float, f107: float, hours_utc=tuple(range(24))
 ) -> SkyEstimate:
-    """Monthly-median foF2, hmF2 and M(3000)F2 per hour from IRI (PyIRI, CCIR maps).
+    """Monthly-median foF2, hmF2 and M(3000)F2 per hour from IRI (CCIR maps, as PyIRI).
 
     Parameters
     ----------

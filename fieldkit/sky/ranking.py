@@ -9,8 +9,8 @@ from __future__ import annotations
 import numpy as np
 
 from fieldkit.sky.inputs import Schedule
+from fieldkit.sky.reach import ABOVE_NVIS, ABSORBED, HourReach
 from fieldkit.sky.reach import NVIS_ZONE_KM as _ZONE_END_KM
-from fieldkit.sky.reach import HourReach
 
 NVIS_ZONE_KM = (0.0, _ZONE_END_KM)
 
@@ -65,10 +65,10 @@ def best_by_hour(channels: list[tuple[float, list[HourReach]]], distances_km=Non
 
 def _none_works(hour_rows) -> str:
     verdicts = [r.verdict for _, r in hour_rows]
-    if all(v == "above the usable frequency" for v in verdicts):
-        return "no channel works: all are above the usable frequency; a lower channel is needed"
-    if all(v == "too much absorption" for v in verdicts):
-        return "no channel works: all are absorbed; a higher channel is needed"
+    if all(v.startswith(ABOVE_NVIS) for v in verdicts):
+        return f"no channel works: all are {ABOVE_NVIS}; a lower channel is needed"
+    if all(v.startswith(ABSORBED) for v in verdicts):
+        return f"no channel works: all are {ABSORBED}; a higher channel is needed"
     return "no channel covers the NVIS zone at this hour"
 
 
@@ -82,6 +82,33 @@ def schedule_hours(schedule: Schedule, hours_utc) -> list[int]:
     return [int(i) for i in np.flatnonzero(inside)]
 
 
+def table_row(schedule: Schedule, f: float, rows: list[HourReach], idx: list[int]) -> dict:
+    """One channel's row of the schedule table: hours it works and covers the zone in the window,
+    below the FOT, its score and mean NVIS SNR, and its weakest hour's verdict."""
+    scores = [hour_score(rows[i], schedule.distances_km) for i in idx]
+    snrs = [rows[i].nvis_snr_db for i in idx if rows[i].nvis_snr_db is not None]
+    full = sum(
+        s >= (len(schedule.distances_km) if schedule.distances_km else NVIS_ZONE_KM[1])
+        for s in scores
+    )
+    return {
+        "frequency_mhz": f,
+        "hours_in_window": len(idx),
+        "hours_working": sum(s > 0 for s in scores),
+        "hours_full": full,
+        "hours_below_fot": sum(rows[i].below_fot for i in idx),
+        "score": round(sum(scores), 1),
+        "mean_nvis_snr_db": round(sum(snrs) / len(snrs), 1) if snrs else None,
+        "worst_verdict": min(((s, rows[i].verdict) for s, i in zip(scores, idx, strict=True)))[1],
+    }
+
+
+def row_key(row: dict) -> tuple:
+    """Sort key of a table row, best last: hours covering the zone, score, hours below the FOT, SNR."""
+    snr = row["mean_nvis_snr_db"] if row["mean_nvis_snr_db"] is not None else -999.0
+    return (row["hours_full"], row["score"], row["hours_below_fot"], snr)
+
+
 def recommend(schedule: Schedule, channels: list[tuple[float, list[HourReach]]], hours_utc) -> dict:
     """The one channel to use for a schedule window, and how it does at each hour of it."""
     idx = schedule_hours(schedule, hours_utc)
@@ -90,40 +117,8 @@ def recommend(schedule: Schedule, channels: list[tuple[float, list[HourReach]]],
         window["distances_km"] = list(schedule.distances_km)
     if not idx:
         return {**window, "recommended_mhz": None, "why": "the window contains no whole hour"}
-    table = []
-    for f, rows in channels:
-        scores = [hour_score(rows[i], schedule.distances_km) for i in idx]
-        hours_ok = sum(s > 0 for s in scores)
-        reliable = sum(rows[i].below_fot for i in idx)
-        snrs = [rows[i].nvis_snr_db for i in idx if rows[i].nvis_snr_db is not None]
-        full = sum(
-            s >= (len(schedule.distances_km) if schedule.distances_km else NVIS_ZONE_KM[1])
-            for s in scores
-        )
-        table.append(
-            {
-                "frequency_mhz": f,
-                "hours_in_window": len(idx),
-                "hours_working": hours_ok,
-                "hours_full": full,
-                "hours_below_fot": reliable,
-                "score": round(sum(scores), 1),
-                "mean_nvis_snr_db": round(sum(snrs) / len(snrs), 1) if snrs else None,
-                "worst_verdict": min(
-                    ((s, rows[i].verdict) for s, i in zip(scores, idx, strict=True))
-                )[1],
-            }
-        )
-    ranked = sorted(
-        table,
-        key=lambda t: (
-            t["hours_full"],
-            t["score"],
-            t["hours_below_fot"],
-            t["mean_nvis_snr_db"] if t["mean_nvis_snr_db"] is not None else -999.0,
-        ),
-        reverse=True,
-    )
+    table = [table_row(schedule, f, rows, idx) for f, rows in channels]
+    ranked = sorted(table, key=row_key, reverse=True)
     for rank, row in enumerate(ranked):
         row["rank"] = rank  # 0 = recommended; the table itself stays in channel order
     top = ranked[0]

@@ -219,13 +219,25 @@ def _zone_snr(distances, snr, propagates):
     return round(float(np.mean(snr[sel])), 1) if sel.any() else None
 
 
+#: The first words of a verdict that says the channel does not serve the NVIS zone at that hour, and
+#: why: too high for the ionosphere to return it nearby, eaten by the daytime D layer, or too weak.
+ABOVE_NVIS = "above the NVIS range"
+ABSORBED = "absorbed by day"
+BELOW_NOISE = "below the noise"
+MODE_WORDS = {"ssb": "SSB", "cw": "CW", "am": "AM", "fm": "FM", "data": "data"}
+
+
 def _verdict(*, covers, skip, fot_skip, propagates, margin, absorb, radio, last_km) -> str:
+    """The hour's reach in plain words; the first words say what it means (see ``ABOVE_NVIS`` …)."""
     if not propagates.any():
-        return "above the usable frequency"
+        if skip is None:
+            return f"{ABOVE_NVIS}: the ionosphere returns it nowhere on one hop"
+        return f"{ABOVE_NVIS}: skip zone to {skip:.0f} km, heard only farther away"
     if covers is None:
         if (propagates & (margin + absorb >= 0.0)).any():
-            return "too much absorption"
-        return f"too weak for {radio.mode} (needs {radio.required_snr_db:g} dB signal-to-noise)"
+            return f"{ABSORBED}: the D layer takes the signal at every distance"
+        mode = MODE_WORDS.get(radio.mode, radio.mode)
+        return f"{BELOW_NOISE}: {mode} needs {radio.required_snr_db:g} dB signal-to-noise"
     start, end = round(covers[0]), round(covers[1])
     beyond = " and beyond" if end >= last_km else ""
     if start == 0:
@@ -233,7 +245,7 @@ def _verdict(*, covers, skip, fot_skip, propagates, margin, absorb, radio, last_
     elif skip and abs(start - skip) <= 10.0:
         text = f"skip zone to {start} km; covers {start}–{end} km{beyond}"
     else:
-        text = f"covers {start}–{end} km{beyond}; too weak nearer"
+        text = f"covers {start}–{end} km{beyond}; below the noise nearer"
     if not _below_fot(fot_skip, start):
-        text += "; above the FOT near the station, not every day"
+        text += "; above the FOT close in: works on some days only"
     return text

@@ -93,6 +93,18 @@ def test_data_dir_override(tmp_path):
         del os.environ["FIELDKIT_HOME"]
 
 
+def test_cache_dir_override_and_default(tmp_path, monkeypatch):
+    monkeypatch.setenv("FIELDKIT_CACHE_DIR", str(tmp_path / "cache"))
+    assert paths.cache_dir() == tmp_path / "cache"
+    assert (tmp_path / "cache").is_dir()
+    # without the override: the platform's user cache directory (platformdirs; XDG on Linux)
+    import platformdirs
+
+    monkeypatch.delenv("FIELDKIT_CACHE_DIR")
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "xdg"))
+    assert paths.cache_dir() == Path(platformdirs.user_cache_dir("fieldkit", appauthor=False))
+
+
 def test_output_refuses_nan():
     with pytest.raises(ValueError):
         jsonio.dumps({"x": float("nan")})
@@ -133,3 +145,20 @@ def test_empty_key_still_names_a_field():
 def test_demo_files_are_json():
     for f in (ROOT / "assets" / "demo").glob("*.json"):
         json.loads(f.read_text())
+
+
+def test_output_is_complete_though_the_program_ends_without_teardown():
+    # `fieldkit model` ends with os._exit after flushing (issue 17): a long answer on a pipe must
+    # arrive whole, equal to the in-process result
+    from fieldkit.antenna import model_json
+
+    spec = json.loads((ROOT / "assets" / "demo" / "dipole-model.json").read_text())
+    sweep = []
+    for h in (6.0, 8.0, 10.0, 12.0, 14.0):
+        s = json.loads(json.dumps(spec))
+        for w in s["wires"]:
+            w["points_m"] = [[x, y, h] for x, y, _ in w["points_m"]]
+        sweep.append(s)
+    r = run("model", "-", stdin=json.dumps(sweep))
+    assert r.returncode == 0, r.stderr
+    assert json.loads(r.stdout) == json.loads(json.dumps(model_json(sweep)))

@@ -231,13 +231,15 @@ def test_rule_of_thumb_shown_and_marked():
 def test_option_that_may_not_be_raised_is_never_first():
     """Two pairs: A–B right beside a power line (fails the fall-distance rule of REFERENCES.md:
     antenna + support height + 3.05 m, 29 CFR 1910.333 / common practice), C–D well away and lower.
-    The A–B pair is higher and would score better on NVIS gain alone."""
+    The A–B pair is higher and would score better on NVIS gain alone. (C and D are 7 m: at 10 m both
+    pairs reach the 7.1 MHz optimum near 0.2 wavelength, 8–9 m, once the sweep covers the whole range,
+    and A–B would no longer be better on gain.)"""
     s = spec(
         supports=[
             {"id": "A", "kind": "tree", "height_m": 14.0, "x_m": -22, "y_m": -4},
             {"id": "B", "kind": "tree", "height_m": 14.0, "x_m": 22, "y_m": -4},
-            {"id": "C", "kind": "tree", "height_m": 10.0, "x_m": -22, "y_m": 80},
-            {"id": "D", "kind": "tree", "height_m": 10.0, "x_m": 22, "y_m": 80},
+            {"id": "C", "kind": "tree", "height_m": 7.0, "x_m": -22, "y_m": 80},
+            {"id": "D", "kind": "tree", "height_m": 7.0, "x_m": 22, "y_m": 80},
         ],
         channel_mhz=7.1,
         ground="average",
@@ -289,10 +291,14 @@ def test_one_tall_tree_makes_an_inverted_v_apex():
     )
     opt = plan(s)["options"][0]
     assert opt["form"] == "inverted-v" and opt["supports_used"] == ["A"] and opt["mast"] is None
-    assert opt["feedpoint_height_m"] == pytest.approx(12.0)
+    # the apex on the branch is swept too (issue 13): it hangs no higher than the 12 m branch, at the
+    # rope height the option gives for A (over perfect ground the figure is best low: NEC-2 over
+    # perfect ground, REFERENCES.md, 0.08 wavelength 8.88 dBi against 0.24 wavelength 7.62 dBi)
+    assert opt["feedpoint_height_m"] <= 12.0 + 1e-9
+    assert opt["feedpoint_height_m"] == pytest.approx(opt["rope_heights_m"]["A"], abs=0.01)
     assert min(opt["end_heights_m"]) >= 3.0  # the end minimum (common practice)
     # apex angle from the chord geometry of the hung polyline
     p = np.asarray(opt["hung_wire_m"])
     reach = np.hypot(*(p[-1, :2] - p[len(p) // 2, :2]))
-    drop = 12.0 - p[-1, 2]
+    drop = opt["feedpoint_height_m"] - p[-1, 2]
     assert opt["apex_angle_deg"] == pytest.approx(2 * np.degrees(np.arctan2(reach, drop)), abs=0.2)

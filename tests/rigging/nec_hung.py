@@ -85,3 +85,47 @@ def nec_resonance_mhz(points_m, *, feed_distance_m: float, guess_mhz: float, **k
             nec_impedance(points_m, feed_distance_m=feed_distance_m, frequency_mhz=f2, **kw).imag,
         )
     return f1
+
+
+def nec_pattern(
+    points_m,
+    *,
+    feed_distance_m: float,
+    frequency_mhz: float,
+    radius_m: float,
+    ground: tuple,
+    elevations_deg,
+    azimuths_deg,
+    conductivity_s_m: float | None = COPPER_S_M,
+    n_half: int = 30,
+) -> tuple[complex, np.ndarray]:
+    """Feed impedance and power gain [dBi] of the polyline from NEC-2 on a regular grid of directions
+    (one RP card; elevations ascending and evenly spaced, ending at the zenith).
+
+    Returns (Z, gain[i_azimuth, i_elevation]).
+    """
+    import PyNEC
+
+    el = np.asarray(elevations_deg, dtype=float)
+    az = np.asarray(azimuths_deg, dtype=float)
+    pts = _resample(np.asarray(points_m, dtype=float), feed_distance_m, n_half)
+    ctx = PyNEC.nec_context()
+    geo = ctx.get_geometry()
+    for tag in range(len(pts) - 1):
+        geo.wire(tag + 1, 1, *pts[tag], *pts[tag + 1], radius_m, 1.0, 1.0)
+    ctx.geometry_complete(0)
+    if conductivity_s_m is not None:
+        ctx.ld_card(5, 0, 0, 0, conductivity_s_m, 0.0, 0.0)
+    if ground[0] == "perfect":
+        ctx.gn_card(1, 0, 0, 0, 0, 0, 0, 0)
+    else:
+        ctx.gn_card(2, 0, float(ground[1]), float(ground[2]), 0, 0, 0, 0)
+    ctx.ex_card(0, n_half + 1, 1, 0, 1.0, 0, 0, 0, 0, 0)
+    ctx.fr_card(0, 1, frequency_mhz, 0)
+    theta = 90.0 - el[::-1]  # from the zenith down
+    dth = float(theta[1] - theta[0]) if len(theta) > 1 else 0.0
+    dph = float(az[1] - az[0]) if len(az) > 1 else 0.0
+    ctx.rp_card(0, len(theta), len(az), 0, 5, 0, 0, float(theta[0]), float(az[0]), dth, dph, 0, 0)
+    gain = np.asarray(ctx.get_radiation_pattern(0).get_gain(), dtype=float)  # [theta, phi]
+    z = complex(np.asarray(ctx.get_input_parameters(0).get_impedance()).ravel()[0])
+    return z, gain[::-1, :].T

@@ -71,7 +71,10 @@ def _plan_all() -> dict:
         schedule={"start_utc": "16:00", "end_utc": "20:00"},
         limit_set="icnirp-public",
         retrim={"frequency_mhz": 7.1, "dip_mhz": 7.02},
+        date="2026-12-01",
     )
+    s["site"].update(min_end_height_m=3.0, clearing_radius_m=200.0, mast_xy_m=[0.0, 5.0])
+    s["site"]["supports"][0]["trunk_radius_m"] = 0.4
     return s
 
 

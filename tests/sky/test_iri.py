@@ -1,4 +1,4 @@
-"""The PyIRI wrapper against a direct PyIRI call, and the sunspot relation against PyIRI's."""
+"""The sky estimate against a direct PyIRI call, and the sunspot relation against PyIRI's."""
 
 import datetime as dt
 import json
@@ -50,7 +50,7 @@ def direct():
 def test_wrapper_equals_direct_pyiri(direct, k):
     lat, lon, date, f107 = CASES[k]
     est = sky_estimate(day=dt.date.fromisoformat(date), lat_deg=lat, lon_deg=lon, f107=f107)
-    # PyIRI (Forsythe et al. 2024) is the reference; the wrapper only caches its coefficient maps
+    # PyIRI (Forsythe et al. 2024) is the reference; fieldkit evaluates its maps from cached tables
     np.testing.assert_allclose(est.fof2_mhz, direct[k]["fo"], rtol=1e-12)
     np.testing.assert_allclose(est.hmf2_km, direct[k]["hm"], rtol=1e-12)
     np.testing.assert_allclose(est.m3000, direct[k]["m3000"], rtol=1e-12)

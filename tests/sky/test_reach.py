@@ -12,7 +12,7 @@ import pytest
 
 from fieldkit.sky.gain import ELEVATIONS_DEG, ElevationGain
 from fieldkit.sky.noise import man_made_fa_db
-from fieldkit.sky.path_geometry import elevation_deg, slant_path_km
+from fieldkit.sky.path_geometry import elevation_deg, skip_distance_km, slant_path_km
 from fieldkit.sky.reach import EXCESS_LOSS_DB, Radio, channel_reach
 
 SSB = Radio(power_w=100.0, bandwidth_hz=2700.0, required_snr_db=10.0, mode="ssb")
@@ -85,8 +85,18 @@ def test_above_fof2_skip_zone_verdict():
 
 def test_above_the_usable_frequency():
     (row,) = reach(12.0, 3.0)
-    assert row.verdict == "above the usable frequency"
+    # issue 16: the words say what it means. 12 MHz on foF2 3 MHz: sec φ = 4 needs a ray below the
+    # horizon (secant law with earth curvature, Davies 1990 ch. 6), so no one-hop skip distance exists
+    assert row.skip_km is None
+    assert row.verdict == "above the NVIS range: the ionosphere returns it nowhere on one hop"
     assert row.max_range_km == 0.0
+    # 7.2 MHz on foF2 2.5 MHz at 300 km: the skip zone ends past the 600 km grid (computed below)
+    (far,) = reach(7.2, 2.5)
+    skip = skip_distance_km(frequency_mhz=7.2, fof2_mhz=2.5, virtual_height_km=300.0)
+    assert skip > 600.0 and far.max_range_km == 0.0
+    assert (
+        far.verdict == f"above the NVIS range: skip zone to {skip:.0f} km, heard only farther away"
+    )
 
 
 def test_too_much_absorption_at_noon_on_the_lowest_channel():
@@ -94,13 +104,13 @@ def test_too_much_absorption_at_noon_on_the_lowest_channel():
     cw = Radio(power_w=1.0, bandwidth_hz=500.0, required_snr_db=3.0, mode="cw")
     (row,) = reach(1.85, 6.0, zenith=24.0, r12=150.0, radio=cw)
     assert row.absorption_db > 40.0
-    assert row.verdict == "too much absorption"
+    assert row.verdict.startswith("absorbed by day")
 
 
 def test_too_weak():
     tiny = Radio(power_w=1e-4, bandwidth_hz=2700.0, required_snr_db=10.0, mode="ssb")
     (row,) = reach(3.6, 5.0, radio=tiny, env="business")
-    assert row.verdict.startswith("too weak for ssb")
+    assert row.verdict == "below the noise: SSB needs 10 dB signal-to-noise"
 
 
 def test_fot_note():

@@ -50,7 +50,7 @@ function setStatus() {
   el.append(h("span", { class: `dot ${st.online ? "ok" : "off"}`, "aria-hidden": "true" }));
   el.append(h("span", { "data-testid": "online-state", text: st.online ? "service connected" : "service unreachable — working from this device" }));
   if (st.pending.length) {
-    el.append(h("span", { class: "pending-count", "data-testid": "pending-count", text: `${st.pending.length} tick(s) pending` }));
+    el.append(h("span", { class: "pending-count", "data-testid": "pending-count", text: `${st.pending.length} ${st.pending.length === 1 ? "tick" : "ticks"} pending` }));
   }
   if (st.fromCache) el.append(h("span", { class: "cached", text: "saved copy" }));
 }
@@ -287,7 +287,7 @@ async function createDeployment(name, kitFrom = "__service") {
   try {
     if (kitFrom === "__service") {
       const out = (await call(api.kit)) ?? {};
-      kit = out.kit ?? out;
+      kit = out.kit ?? {};
     } else {
       kit = readDeployment(await call(() => api.getDeployment(kitFrom))).dep.kit ?? {};
     }

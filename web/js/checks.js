@@ -3,6 +3,7 @@
 import { clear, h } from "./dom.js";
 import { field } from "./fields.js";
 import { EntryError } from "./units.js";
+import { count } from "./words.js";
 
 const INITIALS_KEY = "fieldkit.initials";
 const STAGE_NAMES = { "pre-raise": "Before raising", raise: "While raising", "after-raise": "After raising", "tear-down": "Taking down" };
@@ -31,13 +32,13 @@ function readyBox(app) {
   if (!r.option) box.append(h("p", { class: "big", text: "No plan yet" }));
   else if (r.raiseOk === false) {
     box.append(h("p", { class: "big", text: "Do not raise" }));
-    for (const c of r.option.safety?.clearances ?? []) if (!c.ok) box.append(h("p", { text: c.why }));
+    for (const c of r.option.safety?.clearances ?? []) if (!c.ok) box.append(h("p", { text: `${c.hazard_name ?? "power line"}: ${c.why}` }));
   } else if (r.ready) {
     box.append(h("p", { class: "big", text: "Ready to raise" }));
-    box.append(h("p", { text: r.pending.length ? `All required checks are ticked; ${r.pending.length} tick(s) are still waiting to reach the service.` : "All required pre-raise checks are ticked." }));
+    box.append(h("p", { text: r.pending.length ? `All required checks are ticked; ${count(r.pending.length, "tick")} still waiting to reach the service.` : "All required pre-raise checks are ticked." }));
   } else {
     box.append(h("p", { class: "big", text: "Not ready to raise" }));
-    box.append(h("p", { text: `${r.open.length} required pre-raise check(s) still open.` }));
+    box.append(h("p", { text: `${count(r.open.length, "required pre-raise check")} still open.` }));
   }
   return box;
 }

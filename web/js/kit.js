@@ -4,9 +4,7 @@
 import { clear, h } from "./dom.js";
 import { field, lengthField, numberField, selectField } from "./fields.js";
 import { EntryError } from "./units.js";
-
-const CONDUCTORS = [["copper", "copper"], ["aluminium", "aluminium"], ["copper-clad-steel", "copper-clad steel"], ["steel", "steel"]];
-const COAX = [["rg-58", "RG-58 class (thin)"], ["rg-8x", "RG-8X class"], ["rg-213", "RG-213 class (thick)"]];
+import { COAX, coaxWord, conductorWord, CONDUCTORS, count } from "./words.js";
 const DEFAULT_JACKET_PERMITTIVITY = 3.5; // PVC, typical (from memory; cable makers quote 3–4)
 
 export function kitEditor(app) {
@@ -15,7 +13,7 @@ export function kitEditor(app) {
   const kit = st.dep.kit ?? (st.dep.kit = {});
   const box = h("details", { class: "card", "data-testid": "kit", open: !kit.wire || st.kitOpen === true });
   box.addEventListener("toggle", () => (st.kitOpen = box.open));
-  box.append(h("summary", { text: kit.wire ? `Kit: ${kit.wire.diameter_mm} mm ${kit.wire.conductor} wire, ${kit.coax?.class ?? "coax"}, ${(kit.masts ?? []).length} mast(s)` : "Kit: tell fieldkit what you carry" }));
+  box.append(h("summary", { text: kit.wire ? `Kit: ${kit.wire.diameter_mm} mm ${conductorWord(kit.wire.conductor)} wire, ${kit.coax?.class ? `${coaxWord(kit.coax.class)} coax` : "coax"}, ${count((kit.masts ?? []).length, "mast")}` : "Kit: tell fieldkit what you carry" }));
   const set = (fn) => app.change((d) => fn((d.kit = d.kit ?? {})));
   const wire = () => (kit.wire = kit.wire ?? { conductor: "copper" });
   const grid = h("div", { class: "grid-form" });

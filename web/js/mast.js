@@ -6,6 +6,8 @@ import { pointAlong, supportsById } from "./shapes.js";
 import { scheduleHours, skyInput } from "./sky.js";
 import { distanceUnit, formatLength, formatMass, toDisplayDistance, toDisplayLength, lengthUnit } from "./units.js";
 import { chosen, modelSpec } from "./wire.js";
+import { stakeRows } from "./card.js";
+import { groundWord, kindWord, modeWord } from "./words.js";
 
 const PERSON_M = 1.8; // the height the exposure limits are evaluated at (ARCHITECTURE.md, safety block)
 const PATTERN_STEP_DEG = 3;
@@ -121,7 +123,7 @@ export function sideView(dep, o, units) {
   for (const e of ends) svg.append(s("rect", { x: X(ax.along(e)) - 2.5, y: Z(e[2]) - 2.5, width: 5, height: 5, class: "insulator" }));
   svg.append(s("line", { x1: X(feedS), y1: Z(feed[2]), x2: X(feedS), y2: Z(0), class: "coax" }));
   svg.append(s("circle", { cx: X(feedS), cy: Z(feed[2]), r: 4, class: "feedpoint" }));
-  svg.append(s("text", { x: X(feedS) + 6, y: Z(feed[2]) + 14, class: "small-label", text: `feed ${formatLength(feed[2], { units, digits: 1 })}` }));
+  svg.append(s("text", { x: X(feedS) + 6, y: Z(feed[2]) + 14, class: "small-label", text: `feed ${formatLength(o.feedpoint_height_m, { units, digits: 1 })}` })); // the plan's figure, as in the table
   // a 1.8 m person for scale
   const px = X(personS);
   const u = scale;
@@ -150,10 +152,11 @@ function ropeTable(dep, o, units) {
   const dl = h("dl", { class: "big-list" });
   for (const [id, m] of Object.entries(o.rope_heights_m ?? {})) {
     const sp = byId.get(id);
-    dl.append(h("dt", { text: `${id}${sp ? ` (${sp.kind}, up to ${formatLength(sp.height_m, { units, digits: 1 })})` : ""}` }), h("dd", { "data-testid": `rope-${id}`, text: formatLength(m, { units, digits: 1 }) }));
+    dl.append(h("dt", { text: `${id}${sp ? ` (${kindWord(sp.kind)}, up to ${formatLength(sp.height_m, { units, digits: 1 })})` : ""}` }), h("dd", { "data-testid": `rope-${id}`, text: formatLength(m, { units, digits: 1 }) }));
   }
+  for (const r of stakeRows(o, units)) dl.append(h("dt", { text: r.label }), h("dd", { class: r.cls, text: r.value }));
   dl.append(h("dt", { text: "Feedpoint height" }), h("dd", { text: formatLength(o.feedpoint_height_m, { units, digits: 1 }) }));
-  if (Number.isFinite(o.safety?.min_end_height_m)) dl.append(h("dt", { text: "Lowest safe end height" }), h("dd", { text: formatLength(o.safety.min_end_height_m, { units, digits: 1 }) }));
+  if (Number.isFinite(o.safety?.min_end_height_m)) dl.append(h("dt", { text: "Lowest end height for RF exposure" }), h("dd", { text: formatLength(o.safety.min_end_height_m, { units, digits: 1 }) }));
   box.append(dl);
   return box;
 }
@@ -180,7 +183,7 @@ function mastBlock(o, units) {
 function sweepPlot(o, units) {
   const box = h("div", { class: "card", "data-testid": "sweep" });
   box.append(h("h3", { text: "Rope-height sweep" }));
-  const pts = o.height_sweep ?? o.sweep ?? o.rope_height_sweep;
+  const pts = o.height_sweep;
   if (!Array.isArray(pts) || !pts.length) {
     box.append(h("p", { class: "note", text: "The plan carries no height sweep for this option." }));
     return box;
@@ -236,7 +239,7 @@ async function drawPatterns(app, o, box) {
   }
   clear(box).append(h("h3", { text: "Elevation pattern" }), polarPattern(res, elevation), h("p", { class: "legend-line" }, [
     h("span", { class: "key key-series" }), "across the wire (broadside) ", h("span", { class: "key key-series2" }), "along the wire",
-  ]), h("p", { class: "hint", text: `Total gain at ${o.frequency_mhz} MHz over ${st.dep.site.ground} ground; outer ring ${res.max_gain_dbi.toFixed(1)} dBi, rings every 10 dB. Zenith ${res.zenith_gain_dbi.toFixed(1)} dBi.` }));
+  ]), h("p", { class: "hint", text: `Total gain at ${o.frequency_mhz} MHz over ${groundWord(st.dep.site.ground)} ground; outer ring ${res.max_gain_dbi.toFixed(1)} dBi, rings every 10 dB. Zenith ${res.zenith_gain_dbi.toFixed(1)} dBi.` }));
 }
 
 /** A half-circle elevation plot: horizon left and right, zenith up; two planes. */
@@ -250,10 +253,11 @@ function polarPattern(res, elevation) {
   const gmax = res.max_gain_dbi;
   const r = (g) => (Math.max(0, g - gmax + RANGE_DB) / RANGE_DB) * R;
   const svg = s("svg", { viewBox: `0 0 ${W} ${H}`, class: "plot polar", role: "img", "aria-label": "Elevation pattern in two planes", "data-testid": "pattern-plot" });
+  const rings = []; // ring labels go on top of the curves (drawn last)
   for (let dB = 0; dB < RANGE_DB; dB += 10) {
     const rr = r(gmax - dB);
     svg.append(s("path", { d: `M${cx - rr} ${cy}A${rr} ${rr} 0 0 1 ${cx + rr} ${cy}`, class: "grid" }));
-    svg.append(s("text", { x: cx + 3, y: cy - rr + 12, class: "tick", text: dB === 0 ? `${gmax.toFixed(1)} dBi` : `−${dB} dB` }));
+    rings.push(s("text", { x: cx + 3, y: cy - rr + 12, class: "tick", text: dB === 0 ? `${gmax.toFixed(1)} dBi` : `−${dB} dB` }));
   }
   for (const e of [0, 30, 60, 90, 120, 150, 180]) {
     const t = (e * Math.PI) / 180;
@@ -274,6 +278,7 @@ function polarPattern(res, elevation) {
   };
   curve(0, 1, "series");
   curve(2, 3, "series2");
+  svg.append(...rings);
   svg.append(s("text", { x: 6, y: cy + 18, class: "tick", text: "horizon" }));
   svg.append(s("text", { x: W - 6, y: cy + 18, class: "tick", "text-anchor": "end", text: "horizon" }));
   return svg;
@@ -318,8 +323,8 @@ async function drawReach(app, o, box) {
     x: { min: 0, max: toDisplayDistance(Math.max(...dists, 300), st.units), label: `distance (${distanceUnit(st.units)})` },
     y: { min: lo, max: hi, label: "SNR (dB)" },
     series,
-    hlines: Number.isFinite(need) ? [{ y: need, cls: "limit", label: `needed for ${sky.radio.mode}` }] : [],
+    hlines: Number.isFinite(need) ? [{ y: need, cls: "limit", label: `needed for ${modeWord(sky.radio.mode)}` }] : [],
     legend,
   });
-  clear(box).append(h("h3", { text: "Reach against distance" }), plot, h("p", { class: "hint", text: `Sky estimate for ${sky.date}, the planned wire as it hangs, ${sky.radio?.power_w ?? ""} W ${sky.radio?.mode ?? ""}. Above the line the link works.` }));
+  clear(box).append(h("h3", { text: "Reach against distance" }), plot, h("p", { class: "hint", text: `Sky estimate for ${sky.date}, the planned wire as it hangs, ${sky.radio?.power_w ?? ""} W ${modeWord(sky.radio?.mode)}. Above the line the link works.` }));
 }

@@ -1,54 +1,43 @@
-// Reading the service's answers. The contract (ARCHITECTURE.md) fixes the required fields; these helpers
-// accept the documented wrappers and report clearly when a required field is missing.
+// Reading the service's answers, in the one shape the service sends (fieldkit/service/deployments_api.py,
+// checks_api.py; ARCHITECTURE.md): nothing else is guessed at, so a change of the contract shows here.
 
+/** GET /api/deployments → {deployments: [{id, name, ...}]}. */
 export function deploymentList(data) {
-  const list = Array.isArray(data) ? data : data?.deployments ?? data?.items ?? [];
-  return list.map((d) => ({ id: String(d.id), name: d.name || d.site_name || String(d.id) }));
+  return (data?.deployments ?? []).map((d) => ({ id: String(d.id), name: d.name }));
 }
 
-/** The plan input of a stored deployment (with `name`), the stored plan result and its revision. */
+/**
+ * GET/PUT /api/deployments/<id> → {id, name, input, result, plan_error, planning, revision, ...}: the
+ * plan input (with `name` added back), the stored plan result, its error and revision.
+ */
 export function readDeployment(data) {
-  if (!data || typeof data !== "object") throw new Error("the service sent no deployment");
-  const inner = data.deployment && typeof data.deployment === "object" ? data.deployment : data;
-  const input =
-    (inner.plan_input && typeof inner.plan_input === "object" && inner.plan_input) ||
-    (inner.input && typeof inner.input === "object" && inner.input) ||
-    (inner.spec && typeof inner.spec === "object" && inner.spec) ||
-    inner;
-  const dep = structuredClone(input);
-  delete dep.id;
-  delete dep.plan_result;
-  delete dep.plan;
-  delete dep.revision;
-  delete dep.result;
-  dep.name = inner.name ?? input.name ?? "deployment";
-  const result = inner.result ?? inner.plan_result ?? inner.plan ?? null;
+  if (!data || typeof data !== "object" || typeof data.input !== "object" || data.input === null) throw new Error("the service sent no deployment");
+  const dep = structuredClone(data.input);
+  dep.name = data.name;
+  const result = data.result;
   return {
-    id: String(inner.id ?? data.id),
+    id: String(data.id),
     dep,
     plan: result && Array.isArray(result.options) ? result : null,
-    planError: inner.plan_error ?? null,
-    planning: inner.planning === true,
-    revision: inner.revision ?? null,
+    planError: data.plan_error ?? null,
+    planning: data.planning === true,
+    revision: data.revision ?? null,
   };
 }
 
-/** Checklist items with their state: [{id, stage, text, required, done, by, at, history}]. */
+/** GET /api/deployments/<id>/checks → {items: [{id, stage, text, title, required, done, by, at, acknowledgements}]}. */
 export function readChecks(data) {
-  const list = Array.isArray(data) ? data : data?.items ?? data?.checks ?? data?.checklist ?? [];
-  return list.map((it) => {
-    const st = it.state && typeof it.state === "object" ? it.state : it;
-    return {
-      id: String(it.id ?? it.item_id),
-      stage: it.stage || "pre-raise",
-      text: it.text || it.id,
-      required: it.required !== false,
-      done: Boolean(st.done),
-      by: st.by || "",
-      at: st.at || "",
-      acknowledgements: it.acknowledgements ?? 0,
-    };
-  });
+  return (data?.items ?? []).map((it) => ({
+    id: String(it.id),
+    stage: it.stage,
+    text: it.text,
+    title: it.title || it.text,
+    required: it.required !== false,
+    done: it.done === true,
+    by: it.by || "",
+    at: it.at || "",
+    acknowledgements: it.acknowledgements ?? 0,
+  }));
 }
 
 /** The plan input without fields only the store knows. */
@@ -65,12 +54,14 @@ export function supportsById(dep) {
   return map;
 }
 
+/** The electrical leg lengths of an option, feedpoint to end insulator (the model's figure) [m]. */
 export function legLengths(option) {
-  const leg = option?.cut?.leg_m;
-  if (Array.isArray(leg)) return leg;
-  if (Number.isFinite(leg)) return [leg, leg];
-  if (leg && typeof leg === "object") return Object.values(leg);
-  return [];
+  return option?.cut?.leg_m ?? [];
+}
+
+/** The option's cut instruction (fieldkit.rigging.instruction), or null for a plan made before it. */
+export function cutInstruction(option) {
+  return option?.cut?.instruction ?? null;
 }
 
 /** Horizontal length of a polyline [[x, y, z], ...] and its points' distance along it. */

@@ -5,15 +5,10 @@ import { coordField, field, lengthField, numberField, selectField, showFieldErro
 import { kitEditor } from "./kit.js";
 import { siteSketch } from "./sketch.js";
 import { EntryError, formatLength } from "./units.js";
+import { FORMS, formWord, GROUNDS, hazardNames, SUPPORT_KINDS as KINDS } from "./words.js";
 
 export { showFieldError };
 
-const KINDS = [["tree", "tree"], ["mast", "mast"], ["pole", "pole"], ["building", "building corner"], ["vehicle", "vehicle mast"]];
-const GROUNDS = [
-  ["poor", "poor (rocky)"], ["average", "average (clay)"], ["very-good", "very good (rich soil)"], ["very-poor", "very poor (city)"],
-  ["medium-dry", "medium dry"], ["very-dry", "very dry"], ["wet", "wet"], ["fresh-water", "fresh water"], ["sea-water", "sea water"],
-];
-const FORMS = [["auto", "best of all"], ["flat", "flat"], ["inverted-v", "inverted-V"], ["sloping", "sloping"], ["linked", "linked"]];
 const EYE_HEIGHT_M = 1.6; // typical standing eye height, common practice for clinometer readings
 const PACE_M_DEFAULT = 0.75; // one step of an adult walking on rough ground, common practice
 
@@ -36,8 +31,8 @@ function planStatus(app) {
   if (!opt) return h("p", { class: "note", "data-testid": "plan-status", text: "No plan yet." });
   const heights = Object.entries(opt.rope_heights_m ?? {}).map(([id, m]) => `${id} ${formatLength(m, { units: st.units, digits: 1 })}`);
   return h("p", { class: "note ok", "data-testid": "plan-status" }, [
-    h("b", { text: `Plan: ${opt.form} on ${opt.frequency_mhz} MHz` }),
-    ` between ${(opt.supports_used ?? []).join(" and ")}; rope heights ${heights.join(", ")}.`,
+    h("b", { text: `Plan: ${formWord(opt.form)} on ${opt.frequency_mhz} MHz` }),
+    ` ${opt.supports_used.length > 1 ? "between" : "on"} ${opt.supports_used.join(" and ")}; rope heights ${heights.join(", ")}.`,
     st.planError ? h("span", { class: "warn", text: ` ${st.planError}` }) : null,
   ]);
 }
@@ -236,11 +231,12 @@ function powerLines(app) {
   const box = h("div", { class: "card", "data-testid": "power-lines" });
   box.append(h("h3", { text: "Power lines" }));
   box.append(h("p", { class: "caution", text: "Keep every wire, rope and throw line well clear of power lines: a line falling or swinging onto one can kill. The clearances fieldkit checks are a minimum, not a permission — follow local rules." }));
+  const names = hazardNames(hazards);
   hazards.forEach((hz, i) => {
     if (hz.kind !== "power_line") return;
     const [a, b] = hz.points_m;
     box.append(h("div", { class: "row hazard-row", "data-testid": `power-line-${i}` }, [
-      h("span", { text: `From (${formatLength(a[0], { units, digits: 0 })}, ${formatLength(a[1], { units, digits: 0 })}) to (${formatLength(b[0], { units, digits: 0 })}, ${formatLength(b[1], { units, digits: 0 })}), ${formatLength(hz.height_m, { units, digits: 1 })} high` }),
+      h("span", {}, [h("b", { "data-testid": `hazard-name-${i}`, text: names[i] }), `: from (${formatLength(a[0], { units, digits: 0 })}, ${formatLength(a[1], { units, digits: 0 })}) to (${formatLength(b[0], { units, digits: 0 })}, ${formatLength(b[1], { units, digits: 0 })}), ${formatLength(hz.height_m, { units, digits: 1 })} high${hz.note ? ` — ${hz.note}` : ""}`]),
       h("button", { type: "button", class: "danger small", text: "Remove", on: { click: () => { app.change((dep) => dep.site.hazards.splice(i, 1)); app.render(); } } }),
     ]));
   });

@@ -2,6 +2,7 @@
 
 import { drawingWidth, fmtTick, s, ticks } from "./dom.js";
 import { formatLength, FOOT_M } from "./units.js";
+import { hazardNames } from "./words.js";
 
 function niceBar(spanM, units) {
   const unitM = units === "imperial" ? FOOT_M : 1;
@@ -45,9 +46,11 @@ export function siteSketch(dep, option, units) {
   let x1 = Math.max(...pts.map((p) => p[0]));
   let y0 = Math.min(...pts.map((p) => p[1]));
   let y1 = Math.max(...pts.map((p) => p[1]));
-  const hazards = (dep.site?.hazards ?? []).filter((hz) => Array.isArray(hz.points_m) && hz.points_m.length >= 2);
+  const names = hazardNames(dep.site?.hazards);
+  const hazards = (dep.site?.hazards ?? []).map((hz, i) => ({ ...hz, name: names[i] })).filter((hz) => Array.isArray(hz.points_m) && hz.points_m.length >= 2);
   // Keep a power line in view when it is near (within 60 m of the supports): it matters for the layout.
   for (const hz of hazards) {
+    let labelled = false;
     for (let i = 1; i < hz.points_m.length; i++) {
       const seg = clipSegment(hz.points_m[i - 1], hz.points_m[i], { x0: x0 - 60, x1: x1 + 60, y0: y0 - 60, y1: y1 + 60 });
       if (seg) for (const p of seg) {
@@ -84,12 +87,17 @@ export function siteSketch(dep, option, units) {
     svg.append(s("polygon", { points: outline.map((p) => `${X(p[0]).toFixed(1)},${Y(p[1]).toFixed(1)}`).join(" "), class: "keep-out", "data-testid": "sketch-keep-out" }));
   }
   for (const hz of hazards) {
+    let labelled = false;
     for (let i = 1; i < hz.points_m.length; i++) {
       const seg = clipSegment(hz.points_m[i - 1], hz.points_m[i], { x0, x1, y0, y1 });
       if (!seg) continue;
-      svg.append(s("line", { x1: X(seg[0][0]), y1: Y(seg[0][1]), x2: X(seg[1][0]), y2: Y(seg[1][1]), class: "power-line" }));
-      const lx = Math.min(Math.max(X((seg[0][0] + seg[1][0]) / 2), 70), W - 70);
-      svg.append(s("text", { x: lx, y: Y((seg[0][1] + seg[1][1]) / 2) - 6, class: "hazard-label", "text-anchor": "middle", text: `power line ${formatLength(hz.height_m, { units, digits: 1 })} high` }));
+      const line = hz.kind === "power_line";
+      svg.append(s("line", { x1: X(seg[0][0]), y1: Y(seg[0][1]), x2: X(seg[1][0]), y2: Y(seg[1][1]), class: line ? "power-line" : "path-line" }));
+      if (labelled) continue; // one label per hazard, on its first visible segment
+      labelled = true;
+      const lx = Math.min(Math.max(X((seg[0][0] + seg[1][0]) / 2), 80), W - 80);
+      const label = line ? `${hz.name}, ${formatLength(hz.height_m, { units, digits: 1 })} high` : hz.name;
+      svg.append(s("text", { x: lx, y: Y((seg[0][1] + seg[1][1]) / 2) - 6, class: line ? "hazard-label" : "hazard-label path-label", "text-anchor": "middle", text: label }));
     }
   }
   if (wire.length >= 2) {

@@ -1,6 +1,7 @@
 // Sky: the channel day (hours × channels, coloured by reach), sunrise and sunset, the sounding entry, and
 // the recommended channel for the schedule window.
 
+import { noChannelBanner } from "./advice.js";
 import { ApiError, UnreachableError } from "./api.js";
 import { clear, h } from "./dom.js";
 import { field, numberField } from "./fields.js";
@@ -113,6 +114,8 @@ export function refresh(app, panel) {
     return;
   }
   const hours = scheduleHours(st.dep);
+  const banner = noChannelBanner(st);
+  if (banner) body.append(banner);
   const rise = hourOf(sky.sunrise_utc);
   const set = hourOf(sky.sunset_utc);
   body.append(recommendation(sky, units));
@@ -139,7 +142,7 @@ function recommendation(sky, units) {
   box.append(h("p", { text: rec.why }));
   if (Array.isArray(rec.channels) && rec.channels.length) {
     const t = h("table", { class: "plain compact" });
-    t.append(h("thead", {}, [h("tr", {}, [h("th", { text: "MHz" }), h("th", { text: "hours working" }), h("th", { text: "full reach" }), h("th", { text: "weakest hour" })])]));
+    t.append(h("thead", {}, [h("tr", {}, [h("th", { text: "MHz" }), h("th", { text: "hours it works" }), h("th", { text: "hours of full reach" }), h("th", { text: "weakest hour" })])]));
     const tb = h("tbody");
     for (const c of rec.channels) {
       tb.append(h("tr", { class: c.frequency_mhz === rec.recommended_mhz ? "best" : "" }, [

@@ -80,13 +80,59 @@ export function toDisplayLength(metres, units = currentUnits()) {
   return units === "imperial" ? metres / FOOT_M : metres;
 }
 
+// Rounding half up on floor(x + 0.5 + 1e-9): the same arithmetic as fieldkit/readable.py, so a length the
+// service and the app both write reads the same (e2e/test_words.py compares them).
+const EPS = 1e-9;
+const halfUp = (x) => Math.floor(x + 0.5 + EPS);
+
+/** v with d decimals, halves up (toFixed rounds the binary value: 19.795 would read 19.79). */
+export function fixed(v, d) {
+  const n = halfUp(Math.abs(v) * 10 ** d);
+  const text = d > 0 ? `${Math.floor(n / 10 ** d)}.${String(n % 10 ** d).padStart(d, "0")}` : String(n);
+  return v < 0 && n !== 0 ? `-${text}` : text;
+}
+
 /** "12.3 m" or "40.4 ft". */
 export function formatLength(metres, { units = currentUnits(), digits = null, unit = true } = {}) {
   if (metres === null || metres === undefined || !Number.isFinite(metres)) return "–";
   const v = toDisplayLength(metres, units);
   const d = digits ?? (Math.abs(v) < 10 ? 2 : 1);
-  const s = v.toFixed(d);
+  const s = fixed(v, d);
   return unit ? `${s} ${lengthUnit(units)}` : s;
+}
+
+const INCH_M = 0.0254; // international inch, exact
+const FRACTIONS = ["", "¼", "½", "¾"];
+const NBSP = "\u00a0"; // a tape reading never breaks across lines (as fieldkit.readable)
+
+/** A length as a metric tape reads it: "20.53 m", "59 cm" (fieldkit.readable.tape_metric). */
+export function tapeMetric(metres) {
+  const cm = halfUp(Math.abs(metres) * 100);
+  const sign = metres < 0 && cm ? "-" : "";
+  if (cm < 100) return `${sign}${cm}${NBSP}cm`;
+  return `${sign}${Math.floor(cm / 100)}.${String(cm % 100).padStart(2, "0")}${NBSP}m`;
+}
+
+/** A length as an imperial tape reads it: "67 ft 4½ in", "23¼ in" (fieldkit.readable.tape_imperial). */
+export function tapeImperial(metres) {
+  const q = halfUp((Math.abs(metres) / INCH_M) * 4);
+  const sign = metres < 0 && q ? "-" : "";
+  const feet = Math.floor(q / 48);
+  const inches = Math.floor((q % 48) / 4);
+  const frac = FRACTIONS[q % 4];
+  const inch = inches === 0 && frac ? `${frac}${NBSP}in` : `${inches}${frac}${NBSP}in`;
+  return feet ? `${sign}${feet}${NBSP}ft${NBSP}${inch}` : `${sign}${inch}`;
+}
+
+/** A length to cut or to trim, in the units shown, as a tape reads it. */
+export function formatTape(metres, units = currentUnits()) {
+  if (metres === null || metres === undefined || !Number.isFinite(metres)) return "–";
+  return units === "imperial" ? tapeImperial(metres) : tapeMetric(metres);
+}
+
+/** The string the service made for the units shown: {metric, imperial} → one of them. */
+export function pick(strings, units = currentUnits()) {
+  return (units === "imperial" ? strings?.imperial : strings?.metric) ?? "–";
 }
 
 /** Value for an input box: short, no unit suffix needed, but with it the entry is unambiguous. */
@@ -117,10 +163,4 @@ export function formatMass(kg, units = currentUnits()) {
 export function formatMHz(mhz) {
   if (!Number.isFinite(mhz)) return "–";
   return `${+mhz.toFixed(4)} MHz`;
-}
-
-/** Short lengths (trim steps): centimetres or inches. */
-export function formatShort(metres, units = currentUnits()) {
-  if (!Number.isFinite(metres)) return "–";
-  return units === "imperial" ? `${(metres / 0.0254).toFixed(1)} in` : `${(metres * 100).toFixed(1)} cm`;
 }

@@ -1,11 +1,15 @@
-// Wire: the ranked options; for the chosen one the cut list in big type, the trim steps, the SWR curve
-// from the model of the hung wire, and the re-trim from a measured SWR dip.
+// Wire: the ranked options; for the chosen one the cut instruction in big type (one length to cut per
+// piece and where to mark it, the strings of the plan's cut instruction), the trim steps, the SWR curve
+// from the model of the hung wire, and the re-trim from a measured SWR dip. Cards in that order; a later
+// measured curve belongs in the SWR card ([data-swr]) and an analyser file in the re-trim card.
 
+import { noChannelBanner } from "./advice.js";
 import { ApiError } from "./api.js";
 import { clear, h, linePlot } from "./dom.js";
 import { numberField } from "./fields.js";
-import { legLengths } from "./shapes.js";
-import { formatLength, formatMHz, formatShort } from "./units.js";
+import { cutInstruction, legLengths } from "./shapes.js";
+import { formatMHz, formatTape, pick } from "./units.js";
+import { formWord, groundWord } from "./words.js";
 
 const SWEEP_SPAN = 0.05; // ±5 % around the channel: wide enough to show the dip after a poor first cut
 const SWEEP_POINTS = 21;
@@ -13,7 +17,7 @@ const TRIM_STEPS_KHZ = [10, 25, 50, 100, 200];
 
 /** Model spec of an option's hung wire, as ARCHITECTURE.md's model contract. */
 export function modelSpec(option, dep, extra = {}) {
-  const w = option.wire ?? dep.kit?.wire ?? {};
+  const w = option.wire;
   const wire = { points_m: option.hung_wire_m, diameter_mm: w.diameter_mm, conductor: w.conductor ?? "copper" };
   if (w.insulation) wire.insulation = { thickness_mm: w.insulation.thickness_mm, relative_permittivity: w.insulation.relative_permittivity };
   return { ground: dep.site.ground ?? "average", wires: [wire], feed: { wire: 0, distance_m: option.feed_distance_m }, power_w: dep.radio?.power_w ?? 100, ...extra };
@@ -36,6 +40,8 @@ export function render(app, panel) {
   const st = app.state;
   clear(panel);
   panel.append(h("h2", { text: "Wire — what to cut" }));
+  const banner = noChannelBanner(st);
+  if (banner) panel.append(banner);
   const options = st.plan?.options ?? [];
   if (!options.length) {
     panel.append(h("p", { class: "note warn", text: st.planError || "No plan yet: add the supports in Site." }));
@@ -43,9 +49,10 @@ export function render(app, panel) {
   }
   const list = h("ol", { class: "options", "data-testid": "options" });
   options.forEach((o, i) => {
+    const zenith = o.nvis?.zenith_gain_dbi;
     const b = h("button", { type: "button", class: `option ${i === st.chosen ? "current" : ""}`, "aria-pressed": String(i === st.chosen), "data-testid": `option-${i}` }, [
-      h("b", { text: `${i + 1}. ${o.form}, ${formatMHz(o.frequency_mhz)}` }),
-      h("span", { text: ` ${(o.supports_used ?? []).join("–")} · SWR ${Number.isFinite(o.swr) ? o.swr.toFixed(2) : "–"} · zenith ${Number.isFinite(o.nvis?.zenith_gain_dbi ?? o.zenith_gain_dbi) ? (o.nvis?.zenith_gain_dbi ?? o.zenith_gain_dbi).toFixed(1) : "–"} dBi` }),
+      h("b", { text: `${i + 1}. ${formWord(o.form)}, ${formatMHz(o.frequency_mhz)}` }),
+      h("span", { text: ` ${o.supports_used.join("–")} · SWR ${Number.isFinite(o.swr) ? o.swr.toFixed(2) : "–"} · zenith gain ${Number.isFinite(zenith) ? zenith.toFixed(1) : "–"} dBi` }),
       o.safety && o.safety.raise_ok === false ? h("span", { class: "warn", text: " · not safe to raise" }) : null,
     ]);
     b.addEventListener("click", () => app.choose(i));
@@ -54,8 +61,8 @@ export function render(app, panel) {
   panel.append(h("h3", { text: "Options, best first" }), list);
   if (st.chosen !== 0) panel.append(h("p", { class: "note", text: "You are viewing another option than the plan's first choice. The checks and the field card follow the first choice; change the antenna form in Site to make the plan choose this one." }));
   const o = chosen(app);
-  panel.append(cutList(o, st.units));
-  for (const w of o.warnings ?? []) panel.append(h("p", { class: "note warn", text: typeof w === "string" ? w : w.text ?? JSON.stringify(w) }));
+  for (const w of o.warnings ?? []) panel.append(h("p", { class: "note warn", text: sentence(w) }));
+  panel.append(cutCard(o, st.units));
   panel.append(trimTable(o, st.units));
   const swrBox = h("div", { class: "card", "data-swr": "1" });
   panel.append(swrBox);
@@ -67,19 +74,81 @@ export function refresh(app, panel) {
   render(app, panel);
 }
 
-function cutList(o, units) {
-  const legs = legLengths(o);
-  const cut = o.cut ?? {};
+/** What to do at a mark, in the units shown (the lengths come from the instruction, never recomputed). */
+export function markWords(mark, piece, units) {
+  if (mark.kind === "feedpoint") return "feedpoint fold: through the centre insulator or balun";
+  if (mark.kind === "link") return "link fold: through the link insulator";
+  if (mark.kind === "end insulator") return "end insulator: pass through and fold back";
+  return `the ${pick(piece.spare, units)} spare starts here: fold it back and tape it; cut it off only after the SWR check`;
+}
+
+const LEG_NAMES = ["A", "B"];
+
+/** A message of the service as a sentence: capital first letter, full stop. */
+export function sentence(text) {
+  const t = String(text).trim();
+  return `${t.charAt(0).toUpperCase()}${t.slice(1)}${/[.!?]$/.test(t) ? "" : "."}`;
+}
+
+/**
+ * Each leg's electrical length, feedpoint fold to end insulator, as the instruction reads it between
+ * its marks (one piece per leg); a linked dipole's leg is several pieces: its whole leg as a tape reads it.
+ */
+export function electricalLegs(o, units) {
+  const ins = cutInstruction(o);
+  return legLengths(o).map((leg, i) => {
+    const own = ins?.pieces.filter((p) => p.legs.includes(LEG_NAMES[i])) ?? [];
+    return own.length === 1 ? pick(own[0].electrical, units) : formatTape(leg, units);
+  });
+}
+
+/** A linked dipole: which links to open for which channel (from the plan's `links`). */
+export function linkWords(o) {
+  if (o.form !== "linked" || !Array.isArray(o.links) || !o.links.length) return null;
+  const low = o.frequency_mhz;
+  // the links sit between the sections, innermost first: name them by section, not by a second length
+  const byDistance = [...o.links].sort((a, b) => a.link_from_feed_m - b.link_from_feed_m);
+  const parts = byDistance.map((lk, k) => `for ${formatMHz(lk.frequency_mhz)} open the links after section ${k + 1} (and close any nearer the feedpoint)`);
+  return `Links: for ${formatMHz(low)} close every link; ${parts.join("; ")}.`;
+}
+
+/** "2 pieces, legs A and B" / "1 piece, leg A, section 2 of 2". */
+export function pieceWords(piece) {
+  return `${piece.count} ${piece.count === 1 ? "piece" : "pieces"}, ${piece.name}`;
+}
+
+/** The one cut instruction: per piece the length to cut and the marks from the feedpoint end. */
+function cutCard(o, units) {
   const box = h("div", { class: "card cut-list", "data-testid": "cut-list" });
-  box.append(h("h3", { text: "Cut list" }));
-  const dl = h("dl", { class: "big-list" });
-  legs.forEach((leg, i) => dl.append(h("dt", { text: legs.length === 2 ? `Leg ${i === 0 ? "A" : "B"}` : `Piece ${i + 1}` }), h("dd", { "data-testid": `leg-${i}`, text: formatLength(leg, { units, digits: 2 }) })));
-  dl.append(h("dt", { text: "Wrap allowance (each end of a leg)" }), h("dd", { "data-testid": "wrap", text: formatLength(cut.wrap_allowance_m, { units, digits: 2 }) }));
-  if (Number.isFinite(cut.cut_each_leg_m)) dl.append(h("dt", { text: "Cut each leg" }), h("dd", { "data-testid": "cut-each", text: formatLength(cut.cut_each_leg_m, { units, digits: 2 }) }));
-  dl.append(h("dt", { text: "Total wire" }), h("dd", { class: "total", "data-testid": "total-wire", text: formatLength(cut.total_wire_m, { units, digits: 2 }) }));
-  box.append(dl);
-  box.append(h("p", { class: "hint", text: "A leg is feedpoint to end insulator (electrical length). Each piece is the leg plus a wrap allowance at both ends, folded back through the insulator and the feedpoint." }));
-  if (cut.cut_long_advice) box.append(h("p", { class: "note", text: `Advice: ${cut.cut_long_advice}.` }));
+  box.append(h("h3", { text: "Cut and mark" }));
+  const ins = cutInstruction(o);
+  if (!ins) {
+    box.append(h("p", { class: "note warn", text: "This plan was made before fieldkit wrote one cut instruction: press Save and plan in Site to get it." }));
+  } else {
+    ins.pieces.forEach((piece, k) => {
+      const block = h("div", { class: "piece", "data-testid": `piece-${k}` });
+      block.append(h("p", { class: "cut-line" }, [
+        h("span", { class: "cut-what", text: `Cut ${pieceWords(piece)}, each` }),
+        h("span", { class: "cut-length", "data-testid": k === 0 ? "cut-length" : `cut-length-${k}`, text: pick(piece.cut, units) }),
+      ]));
+      block.append(h("p", { class: "label", text: `Mark each piece, measured from ${piece.marks[0].kind === "feedpoint" ? "its feedpoint end" : "its end nearer the feedpoint"}:` }));
+      const marks = h("ol", { class: "marks" });
+      for (const mk of piece.marks) {
+        marks.append(h("li", { "data-kind": mk.kind }, [h("span", { class: "mark-at", text: pick(mk.from_feedpoint_end, units) }), h("span", { class: "mark-what", text: markWords(mk, piece, units) })]));
+      }
+      block.append(marks);
+      box.append(block);
+    });
+    const links = linkWords(o);
+    if (links) box.append(h("p", { class: "note", "data-testid": "links", text: links }));
+    box.append(h("p", { class: "spool" }, ["Wire off the spool: ", h("b", { "data-testid": "total-wire", text: pick(ins.total, units) })]));
+  }
+  // The model's figure stays visible, marked as such: the electrical leg between the marks.
+  const model = h("p", { class: "hint model-figures", "data-testid": "model-figures" }, [`The model's electrical leg (feedpoint fold to end insulator: the length that resonates at ${formatMHz(o.frequency_mhz)} as the wire hangs): `]);
+  electricalLegs(o, units).forEach((text, i) => model.append(`${i ? ", " : ""}leg ${LEG_NAMES[i]} `, h("span", { "data-testid": `leg-${i}`, text })));
+  model.append(". Wrap: ", h("span", { "data-testid": "wrap", text: ins ? pick(ins.pieces[0].wrap_each_end, units) : formatTape(o.cut.wrap_allowance_m, units) }), " at each end of a piece, folded back through the insulator.");
+  box.append(model);
+  if (o.cut.cut_long_advice) box.append(h("p", { class: "hint", text: `Why the spare: ${o.cut.cut_long_advice}.` }));
   return box;
 }
 
@@ -89,21 +158,21 @@ function trimTable(o, units) {
   const box = h("div", { class: "card", "data-testid": "trim-table" });
   box.append(h("h3", { text: "Trim steps" }));
   const t = h("table", { class: "plain" });
-  t.append(h("thead", {}, [h("tr", {}, [h("th", { text: "Move the dip by" }), h("th", { text: "cut per leg (dip goes up)" }), h("th", { text: "add per leg (dip goes down)" })])]));
+  t.append(h("thead", {}, [h("tr", {}, [h("th", { text: "Dip this far off the channel" }), h("th", { text: "Dip below: shorten each leg" }), h("th", { text: "Dip above: lengthen each leg" })])]));
   const tb = h("tbody");
   const given = o.cut?.trim_steps;
   let rows;
   let source;
   if (Array.isArray(given) && given.length) {
     rows = given.map((r) => [r.shift_khz, r.cut_cm_per_leg_to_raise / 100, r.add_cm_per_leg_to_lower / 100]);
-    source = "From the model of the hung wire (its resonance moves by " + (o.cut.sensitivity_khz_per_cm ?? "–") + " kHz per cm of each leg).";
+    source = `From the model of the hung wire (its resonance moves ${o.cut.sensitivity_khz_per_cm ?? "–"} kHz per cm of each leg).`;
   } else {
     rows = TRIM_STEPS_KHZ.map((k) => [k, trimPerLeg(leg, o.frequency_mhz, k / 1000), -trimPerLeg(leg, o.frequency_mhz, -k / 1000)]);
     source = "From length ∝ 1/frequency (common practice).";
   }
-  for (const [khz, cutM, addM] of rows) tb.append(h("tr", {}, [h("td", { text: `${khz} kHz` }), h("td", { text: formatShort(cutM, units) }), h("td", { text: formatShort(addM, units) })]));
+  for (const [khz, cutM, addM] of rows) tb.append(h("tr", {}, [h("td", { text: `${khz} kHz` }), h("td", { text: formatTape(cutM, units) }), h("td", { text: formatTape(addM, units) })]));
   t.append(tb);
-  box.append(h("div", { class: "table-wrap" }, [t]), h("p", { class: "hint", text: `${source} Trim in small steps and measure again.` }));
+  box.append(h("div", { class: "table-wrap" }, [t]), h("p", { class: "hint", text: `${source} Shorten by moving the end-insulator fold toward the feedpoint; lengthen by letting out spare. Trim both legs alike, in small steps, and measure again.` }));
   return box;
 }
 
@@ -112,7 +181,7 @@ async function drawSwr(app, o, box) {
   const f0 = o.frequency_mhz;
   const key = `swr:${st.planFor}:${st.chosen}`;
   clear(box).append(h("h3", { text: "SWR across the channel" }), h("p", { class: "note", text: "Modelling the hung wire…" }));
-  let results = st.extra[key] ?? o.swr_curve?.points ?? o.cut?.swr_curve?.points;
+  let results = st.extra[key] ?? o.swr_curve?.points;
   if (!results) {
     const freqs = Array.from({ length: SWEEP_POINTS }, (_, i) => +(f0 * (1 - SWEEP_SPAN + (2 * SWEEP_SPAN * i) / (SWEEP_POINTS - 1))).toFixed(5));
     try {
@@ -138,7 +207,7 @@ async function drawSwr(app, o, box) {
     vlines: [{ x: f0, cls: "mark", label: `channel ${f0}` }, ...(Number.isFinite(measured) ? [{ x: measured, cls: "measured", label: `measured ${measured}`, row: 1 }] : [])],
     points: [{ x: minPt[0], y: minPt[1], label: `dip ${minPt[0].toFixed(3)}`, cls: "dot" }],
   });
-  clear(box).append(h("h3", { text: "SWR across the channel" }), plot, h("p", { class: "hint", text: `Model of the wire as it hangs, over ${st.dep.site.ground} ground, without the coax. Dip at ${minPt[0].toFixed(3)} MHz, SWR ${minPt[1].toFixed(2)}.` }));
+  clear(box).append(h("h3", { text: "SWR across the channel" }), plot, h("p", { class: "hint", text: `Model of the wire as it hangs, over ${groundWord(st.dep.site.ground)} ground, without the coax. Dip at ${minPt[0].toFixed(3)} MHz, SWR ${minPt[1].toFixed(2)}.` }));
 }
 
 function retrim(app, o) {
@@ -148,7 +217,7 @@ function retrim(app, o) {
   const box = h("div", { class: "card", "data-testid": "retrim" });
   box.append(h("h3", { text: "Re-trim after raising" }));
   box.append(h("p", { class: "hint", text: "Measure the SWR across the channel with a low-power analyser at the feedpoint or through the coax, and type the frequency of the lowest SWR." }));
-  const out = h("p", { class: "result big-result", "data-testid": "retrim-result", text: "—" });
+  const out = h("p", { class: "result big-result", "data-testid": "retrim-result", text: "Type the measured dip: fieldkit says how much to cut off or add to each leg." });
   const show = (dip) => {
     st.extra.dipMHz = dip;
     let change;
@@ -164,9 +233,12 @@ function retrim(app, o) {
       // length ∝ 1/f: new leg = leg · f_dip / f_target (common practice)
       change = leg - (leg * dip) / o.frequency_mhz;
     }
+    const spare = cutInstruction(o)?.pieces?.at(-1)?.spare?.m ?? 0;
+    const amount = formatTape(Math.abs(change), st.units);
     if (Math.abs(change) < 0.005) out.textContent = "The dip is on the channel: leave the wire as it is.";
-    else if (change > 0) out.textContent = `Cut ${formatLength(change, { units: st.units, digits: 2 })} from each leg (dip is low: wire too long).`;
-    else out.textContent = `Add ${formatLength(-change, { units: st.units, digits: 2 })} to each leg (dip is high: wire too short).`;
+    else if (change > 0) out.textContent = `Cut ${amount} off each leg: move each end insulator ${amount} toward the feedpoint and fold the extra back with the spare (the dip is below the channel: the wire is too long).`;
+    else if (-change <= spare + 1e-9) out.textContent = `Add ${amount} to each leg: let out that much of the spare at the end insulator (the dip is above the channel: the wire is too short).`;
+    else out.textContent = `Add ${amount} to each leg: more than the ${formatTape(spare, st.units)} spare, so splice on wire and measure again (the dip is above the channel: the wire is too short).`;
   };
   box.append(numberField({ label: "Measured dip (MHz)", value: st.extra.dipMHz ?? "", min: o.frequency_mhz * 0.7, max: o.frequency_mhz * 1.3, what: "a frequency in MHz near the channel", testid: "dip", fieldPath: "retrim.dip_mhz", onValid: show }));
   box.append(out);
