@@ -46,16 +46,6 @@ def _plan(spec: Any) -> Any:
 CALCULATORS: dict[str, Callable[[Any], Any]] = {"model": _model, "sky": _sky, "plan": _plan}
 
 
-def _keep_fits_across_runs() -> None:
-    """Fitted ground images persist in the cache directory: a scripted run pays each fit once."""
-    from fieldkit import disk_cache, paths
-    from fieldkit.antenna import sommerfeld
-
-    sommerfeld.keep_images_in(
-        disk_cache.ArrayDir(paths.cache_dir() / f"complex-images-{sommerfeld.IMAGE_FIT_ID}")
-    )
-
-
 def _parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
         prog="fieldkit",
@@ -97,7 +87,9 @@ def _calculate(command: str, path: str) -> int:
     from fieldkit import jsonio
 
     spec = jsonio.read(path)
-    _keep_fits_across_runs()
+    from fieldkit import disk_cache
+
+    disk_cache.keep_image_fits()
     result = CALCULATORS[command](spec)
     # indented for a person at a terminal; compact (and fast) when piped to a script
     sys.stdout.write(jsonio.dumps(result, pretty=sys.stdout.isatty()) + "\n")
@@ -108,17 +100,19 @@ def _serve(args: argparse.Namespace) -> int:
     if not 0 < args.port < 65536:
         raise InputError("--port", f"expected a port number 1-65535, got {args.port}")
     host = args.host or ("0.0.0.0" if args.lan else "127.0.0.1")
+    from fieldkit import disk_cache
     from fieldkit.service import serve
 
-    _keep_fits_across_runs()
+    disk_cache.keep_image_fits()
     serve(host=host, port=args.port, data_dir=args.data_dir, lan=args.lan)
     return 0
 
 
 def _desktop(args: argparse.Namespace) -> int:
+    from fieldkit import disk_cache
     from fieldkit.desktop import run
 
-    _keep_fits_across_runs()
+    disk_cache.keep_image_fits()
     return int(run(data_dir=getattr(args, "data_dir", None)) or 0)
 
 

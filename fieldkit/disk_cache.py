@@ -69,3 +69,14 @@ class ArrayDir:
         files.sort(key=lambda e: e.stat().st_mtime_ns)
         for e in files[: len(files) - int(self.max_files * 0.8)]:
             Path(e.path).unlink(missing_ok=True)
+
+
+def keep_image_fits() -> None:
+    """Fitted ground images persist in the cache directory: every process (a CLI run, a plan worker)
+    pays each fit once. The engine does no file I/O itself; this hands it the store."""
+    from fieldkit import paths
+    from fieldkit.antenna import sommerfeld
+
+    sommerfeld.keep_images_in(
+        ArrayDir(paths.cache_dir() / f"complex-images-{sommerfeld.IMAGE_FIT_ID}")
+    )

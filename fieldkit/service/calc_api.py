@@ -37,7 +37,7 @@ def plan():
 def warm_up() -> None:
     """Load the calculators in a background thread, so the first request after a start is not slow.
 
-    Importing the engine and PyIRI's coefficient reader costs 1-2 s of CPU; done at start, the first
+    Importing the engine and reading the IRI tables costs a few hundred ms of CPU; done at start, the first
     model or sky request from the window or a phone does not pay it (plans run in worker processes,
     which load the planner themselves). Failures are left for the request itself to report.
     """
@@ -45,9 +45,9 @@ def warm_up() -> None:
     def load() -> None:
         try:
             import fieldkit.antenna  # noqa: F401
-            from fieldkit.sky import iri
+            from fieldkit.sky import iri_tables
 
-            iri._library()
+            iri_tables.load()
         except Exception:  # noqa: BLE001 - the request that needs the layer reports it properly
             pass
 

@@ -125,11 +125,14 @@ def plan(spec: Any, report) -> Any:
 
 
 def warm_up() -> None:
-    """Load the plan chain and PyIRI's coefficients before the first job (1-2 s of CPU)."""
+    """Load the plan chain and the IRI tables before the first job, and keep the engine's fitted
+    ground images in the cache directory as the CLI does (a worker pays each fit once)."""
     import fieldkit.planning  # noqa: F401
-    from fieldkit.sky import iri
+    from fieldkit import disk_cache
+    from fieldkit.sky import iri_tables
 
-    iri._library()
+    disk_cache.keep_image_fits()
+    iri_tables.load()
 
 
 def main(argv: list[str] | None = None) -> int:

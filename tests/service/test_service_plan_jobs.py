@@ -30,6 +30,18 @@ def demo_variant(demo_input: dict, n: int) -> dict:
     return spec
 
 
+def long_variant(demo_input: dict, n: int) -> dict:
+    """The demo variant with six more trees: 45 pairs to sweep, several seconds of work even on a
+    fast machine (the demo alone now plans in under a second warm, too close to a 1 s deadline)."""
+    spec = demo_variant(demo_input, n)
+    extra = [
+        {"id": f"X{i}", "kind": "tree", "height_m": 9.0 + i, "x_m": -40.0 + 16 * i, "y_m": 45.0}
+        for i in range(6)
+    ]
+    spec["site"] = {**spec["site"], "supports": [*spec["site"]["supports"], *extra]}
+    return spec
+
+
 def poll(client, job_id: str, *, until=("done", "failed", "cancelled"), timeout_s: float = 120.0):
     end = time.monotonic() + timeout_s
     while time.monotonic() < end:
@@ -79,7 +91,7 @@ def test_the_same_input_shares_one_job(client, demo_input):
 
 
 def test_progress_is_reported_while_a_plan_runs(client, demo_input):
-    job_id = client.post("/api/plans", json=demo_variant(demo_input, 2)).json["id"]
+    job_id = client.post("/api/plans", json=long_variant(demo_input, 2)).json["id"]
     seen = []
     while (status := client.get(f"/api/plans/{job_id}").json)["state"] not in ("done", "failed"):
         seen.append((status["state"], status["stage"], status["done"], status["total"]))
@@ -91,7 +103,7 @@ def test_progress_is_reported_while_a_plan_runs(client, demo_input):
 
 def test_a_full_queue_answers_503_with_retry_after(tight, demo_input):
     client = tight.test_client()
-    running = client.post("/api/plans", json=demo_variant(demo_input, 10)).json
+    running = client.post("/api/plans", json=long_variant(demo_input, 10)).json
     poll(client, running["id"], until=("running",))  # taken by the one worker
     queued = client.post("/api/plans", json=demo_variant(demo_input, 11)).json
     refused = client.post("/api/plans", json=demo_variant(demo_input, 12))
@@ -118,7 +130,7 @@ def test_a_plan_past_its_deadline_is_stopped_with_a_clear_error(tight, demo_inpu
     client.post("/api/plan", json=SMALL_PLAN)  # the worker is up and warm
     worker = tight.extensions["fieldkit_plan_board"]._slots[0].worker.proc
     started = time.monotonic()
-    response = client.post("/api/plan", json=demo_variant(demo_input, 20))
+    response = client.post("/api/plan", json=long_variant(demo_input, 20))
     took = time.monotonic() - started
     assert response.status_code == 422, response.json
     assert response.json["error"] == "plan too long"
@@ -141,7 +153,7 @@ def test_a_client_that_gives_up_stops_its_plan(tmp_path, demo_input):
     running = start_in_thread(app)
     try:
         alias = str(uuid.uuid4())
-        body = json.dumps(demo_variant(demo_input, 30)).encode()
+        body = json.dumps(long_variant(demo_input, 30)).encode()
         with socket.create_connection(("127.0.0.1", running.port), timeout=10) as sock:
             sock.sendall(
                 b"POST /api/plan HTTP/1.1\r\nHost: 127.0.0.1\r\nContent-Type: application/json\r\n"
