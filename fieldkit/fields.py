@@ -53,6 +53,13 @@ class Field:
     refers: tuple[Record, ...] = ()  # records named in ``schema`` (a oneOf of objects)
     nullable: bool = False  # null is accepted (and means "not given")
 
+    def missing_detail(self) -> str:
+        """What to give when the field is missing: its own words, else its description and unit."""
+        if self.missing != "required" or not self.description:
+            return self.missing
+        unit = f" in {self.unit}" if self.unit else ""
+        return f"required: {self.description}{unit}"
+
     def read_number(self, value: Any, path: str) -> float:
         """The value as a number within this field's bounds (the error names ``path``)."""
         return number(
@@ -165,7 +172,7 @@ class Record:
         """Refuse the object when a required field (of ``names``, default all) is missing."""
         for name in self.required if names is None else names:
             if name not in obj:
-                raise InputError(join(path, name), self.field(name).missing)
+                raise InputError(join(path, name), self.field(name).missing_detail())
 
     def number(self, obj: Mapping[str, Any], path: str, name: str, default: Any = None) -> float:
         """``obj[name]`` (or ``default``) checked against the field's bounds."""

@@ -87,3 +87,13 @@ def test_the_window_needs_both_ends_with_a_sky_block():
     assert e.value.field == "schedule.end_utc"
     s.pop("sky")
     assert parse_plan(s).schedule.end_text is None  # without a sky the window is context only
+
+
+def test_a_missing_field_says_what_to_give_and_in_which_unit():
+    # found planning a one-mast site: "kit.masts[0].top_load_kg: required" did not say what it is
+    s = spec(supports=two_trees(40, 10.0), channel_mhz=7.1, ground="perfect")
+    s["kit"]["masts"] = [{"id": "M1", "height_m": 9}]
+    with pytest.raises(InputError) as e:
+        parse_plan(s)
+    assert e.value.field == "kit.masts[0].top_load_kg"
+    assert e.value.detail == "required: the maker's top-load rating in kg"
