@@ -272,6 +272,11 @@ def hang_inverted_v(
     )
 
 
+# A cut landing this close past a vertex drops the vertex instead of leaving a piece the engine
+# refuses (shorter than 4 wire radii); the chord then shortens the leg by far less than 1 mm.
+MIN_CUT_PIECE_M = 0.05
+
+
 def _cut_polyline(points: np.ndarray, length_m: float) -> np.ndarray:
     """The first ``length_m`` of a polyline."""
     out = [points[0]]
@@ -279,6 +284,8 @@ def _cut_polyline(points: np.ndarray, length_m: float) -> np.ndarray:
     for p, q in zip(points[:-1], points[1:], strict=True):
         d = float(np.linalg.norm(q - p))
         if d >= left - 1e-12:
+            if left < MIN_CUT_PIECE_M and len(out) > 1:
+                out.pop()
             out.append(p + (q - p) * (left / d))
             return np.array(out)
         out.append(q)

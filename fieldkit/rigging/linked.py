@@ -11,67 +11,52 @@ inside the trim the operator does at the links anyway.
 from __future__ import annotations
 
 from dataclasses import replace
-from typing import Any
 
-from fieldkit.rigging.cut import EngineCounter, resonate, swr_curve
+from fieldkit.rigging.cut import EngineCounter, ResonanceError, resonate, swr_curve
 from fieldkit.rigging.hung import truncate_about_feed
 from fieldkit.rigging.layouts import Layout
 from fieldkit.rigging.options import Kit, Refusal, Refused, Warm, evaluate
-from fieldkit.rigging.rigged import LINKED_NOTE, LinkedWire, RiggedOption
+from fieldkit.rigging.rigged import LINKED_NOTE, LinkedWire, LinkPosition, RiggedOption
 
 MAX_LINKED_LAYOUTS = 3  # longest spans first: a linked dipole is long
 
 
 def link_sections(
     hung_full, *, leg_full_m: float, channels_hz: list[float], kit: Kit, engine: EngineCounter
-) -> list[dict[str, Any]]:
-    """Link positions (distance from the feedpoint along each leg) for each channel above the lowest."""
+) -> tuple[tuple[float, ...], tuple[LinkPosition, ...]]:
+    """Each leg's sections, feedpoint outward [m], and the link position of each channel above
+    the lowest (distance from the feedpoint along each leg)."""
     links = []
     outer = leg_full_m
-    for f in sorted(channels_hz[1:], reverse=False):
-        guess = leg_full_m * channels_hz[0] / f
-        res = resonate(
-            lambda L: truncate_about_feed(hung_full, L),
-            engine=engine,
-            wire=kit.wire,
-            ground=kit.ground,
-            frequency_hz=f,
-            leg_guess_m=guess,
-        )
+    for f in sorted(channels_hz[1:]):
+        try:
+            res = resonate(
+                lambda L: truncate_about_feed(hung_full, L),
+                engine=engine,
+                wire=kit.wire,
+                ground=kit.ground,
+                frequency_hz=f,
+                leg_guess_m=leg_full_m * channels_hz[0] / f,
+            )
+        except ResonanceError as e:
+            raise Refusal(f"no link position found for {f / 1e6:g} MHz: {e}") from None
         if res.leg_m >= outer:
             raise Refusal("the channels are too close together for links on one wire")
         curve = swr_curve(res, engine=engine, wire=kit.wire, ground=kit.ground)
-        links.append(
-            {
-                "frequency_mhz": round(f / 1e6, 6),
-                "link_from_feed_m": round(res.leg_m, 3),
-                "impedance_ohm": {
-                    "r": round(res.solution.impedance_ohm.real, 2),
-                    "x": round(res.solution.impedance_ohm.imag, 2),
-                },
-                "swr": round(float(res.solution.swr), 3),
-                "bandwidth_2to1": curve["bandwidth_2to1"],
-                "links": "open the links at this distance from the feedpoint; close every link nearer the feedpoint",
-            }
-        )
+        links.append(LinkPosition.of(res, frequency_hz=f, bandwidth_2to1=curve["bandwidth_2to1"]))
         outer = res.leg_m
-    # sections per leg, feedpoint outward
-    marks = sorted([lk["link_from_feed_m"] for lk in links]) + [leg_full_m]
-    prev = 0.0
-    sections = []
-    for m in marks:
-        sections.append(round(m - prev, 3))
-        prev = m
-    return [{"sections_m": sections}, *links]
+    marks = [*sorted(round(lk.from_feed_m, 3) for lk in links), leg_full_m]
+    sections = tuple(round(m - prev, 3) for prev, m in zip([0.0, *marks[:-1]], marks, strict=True))
+    return sections, tuple(links)
 
 
 def _linked(rigged: RiggedOption, channels_hz: list[float], *, kit: Kit, engine) -> RiggedOption:
     """The lowest channel's option with the link positions of the others."""
     res = rigged.resonance
-    first, *links = link_sections(
+    sections, links = link_sections(
         res.hung, leg_full_m=res.leg_m, channels_hz=channels_hz, kit=kit, engine=engine
     )
-    wire = LinkedWire(tuple(first["sections_m"]), tuple(links), tuple(channels_hz))
+    wire = LinkedWire(sections, links, tuple(channels_hz))
     return replace(rigged, linked=wire, warnings=(*rigged.warnings, LINKED_NOTE))
 
 

@@ -93,11 +93,40 @@ RIGGED_OPTION = Record(
 
 
 @dataclass(frozen=True)
+class LinkPosition:
+    """Where to open the links for one channel of a linked dipole, and the wire's figures there."""
+
+    frequency_hz: float
+    from_feed_m: float  # along each leg, from the feedpoint
+    impedance_ohm: complex
+    swr: float
+    bandwidth_2to1: Any  # as swr_curve gives it
+
+    @classmethod
+    def of(cls, res, *, frequency_hz: float, bandwidth_2to1: Any) -> LinkPosition:
+        z = complex(res.solution.impedance_ohm)
+        return cls(frequency_hz, res.leg_m, z, float(res.solution.swr), bandwidth_2to1)
+
+    def json(self) -> dict[str, Any]:
+        return {
+            "frequency_mhz": round(self.frequency_hz / 1e6, 6),
+            "link_from_feed_m": round(self.from_feed_m, 3),
+            "impedance_ohm": {
+                "r": round(self.impedance_ohm.real, 2),
+                "x": round(self.impedance_ohm.imag, 2),
+            },
+            "swr": round(self.swr, 3),
+            "bandwidth_2to1": self.bandwidth_2to1,
+            "links": "open the links at this distance from the feedpoint; close every link nearer the feedpoint",
+        }
+
+
+@dataclass(frozen=True)
 class LinkedWire:
     """A linked dipole's sections and link positions (one per channel above the lowest)."""
 
     sections_m: tuple[float, ...]
-    links: tuple[dict[str, Any], ...]
+    links: tuple[LinkPosition, ...]
     channels_hz: tuple[float, ...]
 
 
@@ -340,6 +369,6 @@ def rigged_json(r: RiggedOption, kit) -> dict[str, Any]:
     if r.layout.form == "inverted-v":
         option["apex_angle_deg"] = round(hung.apex_angle_deg, 1)
     if r.linked is not None:
-        option["links"] = list(r.linked.links)
+        option["links"] = [lk.json() for lk in r.linked.links]
         option["channels_mhz"] = [round(c / 1e6, 6) for c in r.linked.channels_hz]
     return RIGGED_OPTION.written(option)

@@ -302,3 +302,16 @@ def test_one_tall_tree_makes_an_inverted_v_apex():
     reach = np.hypot(*(p[-1, :2] - p[len(p) // 2, :2]))
     drop = opt["feedpoint_height_m"] - p[-1, 2]
     assert opt["apex_angle_deg"] == pytest.approx(2 * np.degrees(np.arctan2(reach, drop)), abs=0.2)
+
+
+def test_the_demo_as_a_linked_dipole_plans_every_channel():
+    # found by the lead: the demo's five channels as one linked wire crashed with a traceback
+    # (a link 2.3 mm past a vertex of the hung wire)
+    spec = json.loads((assets_dir() / "demo" / "larch-basin-plan.json").read_text())
+    spec["form"] = "linked"
+    out = plan(spec)
+    first = out["options"][0]
+    assert first["form"] == "linked"
+    links = [lk["frequency_mhz"] for lk in first["links"]]
+    assert links == sorted(spec["channels_mhz"])[1:]
+    assert len(first["cut"]["sections_m"]) == len(spec["channels_mhz"])

@@ -94,3 +94,16 @@ def test_one_engine_segment_per_chord(f_mhz):
     # and the engine would need about that many anyway: wire length / its segment length
     need = _length(r.points_m) / (299_792_458.0 / (f_hz * 1.04) / SEGMENTS_PER_WAVELENGTH)
     assert len(mesh.start) <= math.ceil(need) + 2
+
+
+def test_a_cut_just_past_a_vertex_leaves_no_piece_the_engine_refuses():
+    # found planning the demo as a linked dipole: the 3.79 MHz link landed 2.3 mm past a vertex
+    # and the engine refused the piece (thin-wire limit: 4 radii); the plan crashed
+    from fieldkit.rigging.hung import MIN_CUT_PIECE_M, _cut_polyline
+
+    pts = np.array([[0.0, 0, 10], [5.0, 0, 10], [10.0, 0, 9.5]])
+    out = _cut_polyline(pts, 5.0023)
+    assert len(out) == 2  # the vertex at 5 m is dropped, not kept 2.3 mm from the end
+    pieces = np.linalg.norm(np.diff(out, axis=0), axis=1)
+    assert pieces.min() >= MIN_CUT_PIECE_M
+    assert abs(pieces.sum() - 5.0023) < 1e-3  # the chord is under 1 mm short (computed)
