@@ -218,7 +218,7 @@ def screen(
     rough = 2 * (FIRST_GUESS_FRACTION * rule_of_thumb_leg_m(f) * 0.95 + 2 * kit.wrap_allowance_m)
     if spool is not None and rough > spool:  # clearly short: say so before any engine work
         raise Refusal(
-            f"wire spool too short: a {f / 1e6:g} MHz dipole needs about {rough:.0f} m of wire, "
+            f"wire spool too short: a {f / 1e6:g} MHz dipole needs about {rough:.1f} m of wire, "
             f"the spool holds {spool:g} m"
         )
     if not warm.by_frequency:  # nothing to scale from yet: one resonance to start the chain
