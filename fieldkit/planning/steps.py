@@ -162,7 +162,9 @@ def fit_options_to_sky(
 
 def plan_warnings(inp: PlanInput, sky: SkyFit | None) -> tuple[str, ...]:
     """The plan's own warnings: first the schedule's hours at which no channel works and what would,
-    then channels above the NVIS range, then the input's (defaults used, supports left out)."""
+    then channels above the NVIS range, then licence notes on the channels, then the input's
+    (defaults used, supports left out)."""
+    from fieldkit.safety.licence import licence_notes
     from fieldkit.sky.what_works import above_nvis_words
 
     first = []
@@ -174,6 +176,7 @@ def plan_warnings(inp: PlanInput, sky: SkyFit | None) -> tuple[str, ...]:
         words = above_nvis_words(round(f / 1e6, 6), ceiling)
         if words:
             first.append(words)
+    first.extend(licence_notes(inp.channels_hz, power_w=inp.radio.power_w))
     return (*first, *inp.warnings)
 
 
