@@ -28,6 +28,7 @@ from fieldkit.rigging.cut import (
     swr_sweep,
     wire_needed_m,
 )
+from fieldkit.rigging.feed_advice import feedline_words
 from fieldkit.rigging.feedline import Coax, total_loss_db
 from fieldkit.rigging.height_search import sweep_layout
 from fieldkit.rigging.heights import HeightPoint, point_from_solution
@@ -463,6 +464,7 @@ def finish(sc: Screened, *, kit: Kit, engine: EngineCounter, warm: Warm) -> Rigg
     mast = _mast_load(layout, hung, loads)
     swr = float(res.solution.swr)
     loss = total_loss_db(matched_loss_db=kit.coax.matched_loss_db(f), swr=swr)
+    warnings += feedline_words(kit.coax, frequency_hz=f, swr=swr)
     if curve.width_khz == 0.0:
         warnings.append(
             "SWR stays above 2 near the channel: use a tuner or matching at the feedpoint"

@@ -16,6 +16,7 @@ import numpy as np
 from fieldkit.constants import SPEED_OF_LIGHT_M_S, STANDARD_GRAVITY_M_S2
 from fieldkit.fields import Record, arr, nested, num, string
 from fieldkit.rigging.cut import Resonance, SwrCurve, cut_json, spare_m
+from fieldkit.rigging.feed_advice import CHOKE_ADVICE
 from fieldkit.rigging.feedline import feedline_json
 from fieldkit.rigging.heights import HeightPoint, sweep_json
 from fieldkit.rigging.hung import HungDipole
@@ -308,6 +309,7 @@ def _cut_json(r: RiggedOption, kit) -> dict[str, Any]:
     if r.linked is not None:
         cut["sections_m"] = list(r.linked.sections_m)
         cut["sections_note"] = SECTIONS_NOTE
+    cut["choke_advice"] = CHOKE_ADVICE
     return cut
 
 
