@@ -88,6 +88,7 @@ class SupportLoad:
             "vertical_n": round(self.vertical_n, 1),
             "load_kg": round(self.still_n / STANDARD_GRAVITY_M_S2, 1),
             "in_wind_n": round(self.in_weather_n, 1),
+            "in_wind_kg": round(self.in_weather_n / STANDARD_GRAVITY_M_S2, 1),
         }
 
 

@@ -7,7 +7,7 @@ import { clear, h } from "./dom.js";
 import { qrSvg } from "./qr.js";
 import { readiness } from "./checks.js";
 import { cutInstruction, supportsById } from "./shapes.js";
-import { formatLength, formatMHz, formatTape, pick } from "./units.js";
+import { formatLength, formatMass, formatMHz, formatTape, pick } from "./units.js";
 import { electricalLegs, linkWords, markWords, pieceWords } from "./wire.js";
 import { count, formWord, kindWord, limitSetWord, modeWord } from "./words.js";
 
@@ -104,6 +104,7 @@ function cutBlock(o, units) {
   if (links) parts.push(h("p", { class: "fc-links", "data-testid": "card-links", text: links }));
   const legs = [...new Set(electricalLegs(o, units))].join(" / ");
   parts.push(h("p", { class: "fc-note" }, [`Wire off the spool ${pick(ins.total, units)}. Between the feedpoint fold and the end insulator: ${legs} (the model's electrical leg). Wrap ${pick(ins.pieces[0].wrap_each_end, units)} at each end.`]));
+  if (o.cut?.choke_advice) parts.push(h("p", { class: "fc-note", "data-testid": "card-choke", text: "Choke (current balun) at the feedpoint: true SWR readings for the trim, no RF back at the radio." }));
   return block("fc-cut", "Cut and mark", parts);
 }
 
@@ -116,6 +117,23 @@ function ropeBlock(dep, o, units) {
   list.push({ label: "feedpoint hangs at about", value: formatLength(o.feedpoint_height_m, { units, digits: 1 }) });
   list.push(...stakeRows(o, units));
   return block("fc-ropes", "Rope heights", [rows(list)]);
+}
+
+/** What the branches, the mast head and the guys carry (the plan's rigging.loads), in still air and in
+ * the wind the plan checked; the wire's pull against what it may carry. */
+export function loadRows(o, units) {
+  const L = o.rigging?.loads;
+  if (!L?.supports?.length) return [];
+  const list = L.supports.map((sp) => ({ label: `${sp.id} · ${sp.carries}`, sub: `${formatMass(sp.in_wind_kg, units)} in a ${L.wind_m_s} m/s wind`, value: formatMass(sp.load_kg, units), testid: `card-load-${sp.id}` }));
+  list.push({ label: "pull on the wire", sub: `it may carry ${L.wire_working_n} N`, value: `${Math.round(L.wire_tension_n)} N`, testid: "card-load-wire", cls: L.wire_tension_in_wind_n > L.wire_working_n ? "warn" : "" });
+  const guys = o.rigging?.guy_tension_n ?? [];
+  if (guys.length) list.push({ label: `each guy of ${o.mast?.id ?? "the mast"}`, sub: `in a ${L.guy_wind_m_s} m/s wind`, value: `${Math.round(Math.max(...guys))} N`, testid: "card-load-guys" });
+  return list;
+}
+
+function loadsBlock(o, units) {
+  const list = loadRows(o, units);
+  return list.length ? block("fc-loads", "Loads", [rows(list)]) : null;
 }
 
 function trimBlock(o, units) {
@@ -186,6 +204,7 @@ export function render(app, panel) {
     cutBlock(o, units),
     ropeBlock(st.dep, o, units),
     trimBlock(o, units),
+    loadsBlock(o, units),
     safeBlock(st.dep, o, units),
     checksBlock(app, o),
     cautions.length ? block("fc-cautions", "Cautions", [h("ul", {}, cautions.map((c) => h("li", { text: c })))]) : null,
