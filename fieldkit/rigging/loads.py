@@ -107,6 +107,7 @@ class Loads:
     guy_wind_m_s: float | None = None
     guy_head_force_n: float = 0.0
     most_pull_n: float = math.inf  # the largest still pull the wire allows in the weather
+    weight_n: float = 0.0  # what the span (or a leg) weighs with its ropes and mid load
 
 
 def _polyline_m(points: np.ndarray) -> float:
@@ -144,6 +145,11 @@ class _Chain:
     mid_n: float
     mid_drag_n: float
     compliance_m_per_n: float
+
+    @property
+    def weight_n(self) -> float:
+        """Its still-air weight [N]."""
+        return self.mid_n + sum(n * w for n, w, _ in self.parts)
 
     def in_weather_n(self, tension_n: float, weather: Weather) -> float:
         """Its tension in the weather when it pulls ``tension_n`` in still air [N]."""
@@ -206,7 +212,9 @@ def span_loads(
     for i, sid in enumerate(layout.supports_used):
         te, v = hung.end_tension_n[i], hung.support_vertical_n[i]
         supports.append(SupportLoad(sid, h, v + te, k * math.hypot(h, v + te), "branch"))
-    return Loads(tuple(supports), t, t_weather, t, t_weather, k, most_pull_n=most)
+    return Loads(
+        tuple(supports), t, t_weather, t, t_weather, k, most_pull_n=most, weight_n=chain.weight_n
+    )
 
 
 def vee_loads(
@@ -239,7 +247,9 @@ def vee_loads(
     if mast is not None:
         load = SupportLoad(mast.id, 0.0, apex, math.hypot(apex, head_h), "mast head")
         guys = guy_tensions_n(head_force_n=head_h, guys=mast.guys)
-        return Loads((load,), t, t_weather, t, t_weather, k, guys, wind, head_h, most)
+        return Loads(
+            (load,), t, t_weather, t, t_weather, k, guys, wind, head_h, most, chain.weight_n
+        )
     # the halyard that holds the apex runs down the trunk: the branch carries both of its parts
     weather_h = _head_wind_n(hung, mech, st, None, leg_m=leg_m, wind_m_s=st.weather.wind_m_s)
     load = SupportLoad(
@@ -250,7 +260,9 @@ def vee_loads(
         "branch at the apex",
     )
     rope_t = max(t, apex)
-    return Loads((load,), t, t_weather, rope_t, k * rope_t, k, most_pull_n=most)
+    return Loads(
+        (load,), t, t_weather, rope_t, k * rope_t, k, most_pull_n=most, weight_n=chain.weight_n
+    )
 
 
 def _guy_wind_m_s(mast: Mast | None, st: Strength) -> float:
@@ -296,7 +308,7 @@ def _kg(x_n: float) -> str:
 def wire_words(loads: Loads, st: Strength) -> list[str]:
     """The wire's tension, still and in the weather, against its working load."""
     w, t, tw = st.wire, loads.wire_tension_n, loads.wire_weather_n
-    about = f"{w.kind} breaks at about {_n(w.breaking_n)} (from memory)"
+    about = f"{w.kind} breaks at about {_n(w.breaking_n)}, from memory"
     keep = f"keep it under {_n(w.working_n)} (1/{w.safety_factor:g} of its breaking load)"
     if t > w.breaking_n:
         return [
@@ -310,9 +322,15 @@ def wire_words(loads: Loads, st: Strength) -> list[str]:
         ]
     if tw > w.working_n:
         most = loads.most_pull_n
+        pull = (
+            f"pull no more than {_n(most)}"
+            # under twice its weight a span sags more than 1/16 of its length (H = wL²/8s): no hang
+            if most >= 2 * loads.weight_n
+            else "no pull that holds the wire up keeps it within that"
+        )
         return [
             f"in {st.weather.words()} the tied-off wire pulls about {_n(tw)}, more than the "
-            f"{_n(w.working_n)} it may carry ({about}): pull no more than {_n(most)}, or take the "
+            f"{_n(w.working_n)} it may carry ({about}): {pull}; use stronger wire, or take the "
             "wire down before such weather"
         ]
     if w.soft_copper and t > SOFT_COPPER_STRETCH_FRACTION * w.breaking_n:

@@ -137,6 +137,18 @@ def test_wind_and_ice_raise_the_tension(demo):
     assert loads["wire_tension_in_wind_n"] > 2 * loads["wire_tension_n"]
 
 
+def test_a_wind_beyond_the_wire_names_the_pull_that_holds(demo):
+    o = _first(_with(demo, design_wind_m_s=30))
+    (words,) = [w for w in o["warnings"] if w.startswith("in a 30 m/s wind the tied-off wire")]
+    most = float(words.split("pull no more than ")[1].split(" N")[0])
+    assert 20 < most < 60  # the demo pulls 60 N
+    again = _first(_with(demo, design_wind_m_s=30, tension_n=most))["rigging"]["loads"]
+    # at that pull the wire in the same wind stays within what it may carry (shown to 1 N)
+    assert again["wire_tension_in_wind_n"] <= again["wire_working_n"] + 1.0
+    stormy = _first(_with(demo, design_wind_m_s=50))
+    assert any("no pull that holds the wire up" in w for w in stormy["warnings"])
+
+
 def test_500_m_of_rg58_warns_and_the_choke_is_in_the_checklist(demo):
     spec = copy.deepcopy(demo)
     spec["kit"]["coax"]["length_m"] = 500
