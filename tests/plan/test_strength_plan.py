@@ -93,6 +93,13 @@ def test_hard_drawn_wire_and_a_weak_link(demo):
     assert any("rope's working load of 40 N (the maker's)" in w for w in o["warnings"])
 
 
+def test_soft_copper_pulled_past_a_third_of_its_breaking_load_will_stretch(demo):
+    # 442 N breaking: above ~147 N (a third, from memory) soft-drawn copper stretches for good
+    o = _first(_with(demo, tension_n=180, design_wind_m_s=0))
+    assert any("soft-drawn copper stretches for good above about 147 N" in w for w in o["warnings"])
+    assert not any("breaks the wire" in w for w in o["warnings"])
+
+
 def test_a_branch_apex_at_2000_n_is_named_with_its_load(one_tree):
     spec = _with(one_tree, tension_n=2000, masts=[])
     o = _first(spec)
