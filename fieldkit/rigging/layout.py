@@ -81,6 +81,7 @@ class Layout:
     hang : like ``build``, but lets the rope and the clearing be exceeded a little (the exact cut);
         None: the same as ``build``
     advice : the finished hang -> warnings about the site's limits it meets (None: none)
+    kinds : the kind of each of ``supports_used`` (tree, mast, pole, ...; empty: not known)
     """
 
     form: str
@@ -97,6 +98,7 @@ class Layout:
     min_end_height_m: float = MIN_END_HEIGHT_M
     hang: Callable[[dict[str, float], float], HungDipole] | None = None
     advice: Callable[[HungDipole], tuple[str, ...]] | None = None
+    kinds: tuple[str, ...] = ()
 
     def start(self) -> dict[str, float]:
         """Axis values before any sweep."""

@@ -74,7 +74,9 @@ class SupportLoad:
     horizontal_n: float
     vertical_n: float
     in_weather_n: float
-    what: str  # "branch", "mast head", "branch at the apex"
+    what: (
+        str  # "branch", "branch at the apex", "mast head", "mast top", "pole top", "tie-off point"
+    )
 
     @property
     def still_n(self) -> float:
@@ -211,10 +213,16 @@ def span_loads(
     supports = []
     for i, sid in enumerate(layout.supports_used):
         te, v = hung.end_tension_n[i], hung.support_vertical_n[i]
-        supports.append(SupportLoad(sid, h, v + te, k * math.hypot(h, v + te), "branch"))
+        what = _end_support_words(layout.kinds[i] if layout.kinds else "tree")
+        supports.append(SupportLoad(sid, h, v + te, k * math.hypot(h, v + te), what))
     return Loads(
         tuple(supports), t, t_weather, t, t_weather, k, most_pull_n=most, weight_n=chain.weight_n
     )
+
+
+def _end_support_words(kind: str) -> str:
+    """What of an end support carries the span: a tree's branch, a mast's or pole's top."""
+    return {"tree": "branch", "mast": "mast top", "pole": "pole top"}.get(kind, "tie-off point")
 
 
 def vee_loads(
@@ -384,7 +392,10 @@ def support_words(loads: Loads, st: Strength) -> list[str]:
     """Branches asked to carry more than an adult's weight."""
     out = []
     for s in loads.supports:
-        if s.what == "mast head":
+        if s.what in ("mast top", "pole top"):
+            out.append(_end_top_words(s, st))
+            continue
+        if not s.what.startswith("branch"):  # a mast head's load is checked against its rating
             continue
         if s.still_n > BRANCH_CAUTION_N:
             size = f"{_n(s.still_n)} ({_kg(s.still_n)})"
@@ -398,6 +409,16 @@ def support_words(loads: Loads, st: Strength) -> list[str]:
             "cannot be judged from the ground; pull less, or use a limb close to the trunk or a mast"
         )
     return out
+
+
+def _end_top_words(s: SupportLoad, st: Strength) -> str:
+    """A mast or pole at an end of the span takes the wire's pull sideways at its top."""
+    kind = s.what.removesuffix(" top")
+    return (
+        f"the {kind} {s.id} takes the wire's pull at its top: {_n(s.horizontal_n)} sideways in "
+        f"still air, {_n(s.in_weather_n)} in all in {st.weather.words()}; guy it back in line with the wire, against "
+        "the pull, with guys rated for it, and stay within the maker's top-load rating"
+    )
 
 
 def guy_words(loads: Loads, mast: Mast | None, st: Strength) -> list[str]:

@@ -112,6 +112,7 @@ def span_site_layouts(
                     setting_for=flat,
                     blocked=blocked,
                     min_end_height_m=lowest,
+                    kinds=(a.kind, b.kind),
                 )
             )
         if "sloping" in forms and abs(a.height_m - b.height_m) >= SLOPING_MIN_DIFFERENCE_M:
@@ -142,6 +143,7 @@ def span_site_layouts(
                         setting_for=sloping,
                         blocked=blocked,
                         min_end_height_m=lowest,
+                        kinds=(a.kind, b.kind),
                     )
                 )
     return out

@@ -162,7 +162,7 @@ def test_500_m_of_rg58_warns_and_the_choke_is_in_the_checklist(demo):
     spec["channels_mhz"] = [3.605]
     o = _first(spec)
     loss = [w for w in o["warnings"] if w.startswith("the feedline loses")]
-    assert len(loss) == 1 and "11.3 dB" in loss[0] and "lmr-400 class" in loss[0]
+    assert len(loss) == 1 and "11.3 dB" in loss[0] and "LMR-400 class" in loss[0]
     assert o["feedline"]["total_loss_db"] == pytest.approx(11.3, abs=0.05)
     choke = next(i for i in o["safety"]["checklist"] if i["id"] == "pre-choke")
     assert choke["stage"] == "pre-raise" and "SWR" in choke["text"] and "feedpoint" in choke["text"]
@@ -203,3 +203,24 @@ def test_temper_is_for_copper_only(one_tree):
     with pytest.raises(InputError) as e:
         plan(spec)
     assert e.value.field == "kit.wire.temper" and "copper wire only" in e.value.detail
+
+
+def test_a_mast_or_pole_at_an_end_is_not_called_a_branch(demo):
+    # found by the lead on a one-oak-and-mast site: the mast at the far end "carried" a branch;
+    # the adult's-weight caution is for branches (common practice), a mast has the maker's rating
+    s = copy.deepcopy(demo)
+    s["form"] = "flat"
+    s["kit"]["tension_n"] = 1500
+    for sp in s["site"]["supports"]:
+        sp["kind"] = "pole" if sp["id"] == "T1" else sp.get("kind", "tree")
+    o = _first(s)
+    carries = {sp["id"]: sp["carries"] for sp in o["rigging"]["loads"]["supports"]}
+    assert carries["T1"] == "pole top"
+    assert not any("branch of T1" in w for w in o["warnings"])
+    # an end pole needs a back guy against the span's pull (common practice)
+    assert any(
+        w.startswith("the pole T1 takes the wire's pull at its top: 1.5 kN") for w in o["warnings"]
+    )
+    assert any(
+        f"branch of {i}" in w for i, v in carries.items() if v == "branch" for w in o["warnings"]
+    )

@@ -172,7 +172,7 @@ def test_500_m_of_rg58_at_3_6_mhz_warns_and_names_a_better_class():
     words = feedline_words(coax, frequency_hz=3.6e6, swr=1.0)
     # issue 14: 500 m of RG-58 loses 11.3 dB at 3.6 MHz (class figures, REFERENCES.md, from memory)
     assert len(words) == 1 and "11.3 dB" in words[0]
-    assert "lmr-400 class coax" in words[0] and "run of at most" in words[0]
+    assert "LMR-400 class coax" in words[0] and "run of at most" in words[0]
     run = longest_run_m(coax, frequency_hz=3.6e6, swr=1.0, limit_db=3.0)
     short = parse_coax({"class": "rg-58", "length_m": run})
     assert total_loss_db(matched_loss_db=short.matched_loss_db(3.6e6), swr=1.0) == pytest.approx(
