@@ -80,3 +80,34 @@ def keep_image_fits() -> None:
     sommerfeld.keep_images_in(
         ArrayDir(paths.cache_dir() / f"complex-images-{sommerfeld.IMAGE_FIT_ID}")
     )
+
+
+def source_fingerprint(*packages: str) -> str:
+    """A short hash of the Python source of ``packages`` (dotted names) and of numpy's version:
+    results derived by that code are kept under it, so an edited engine never reads old ones."""
+    import hashlib
+    import importlib.util
+
+    h = hashlib.sha256(np.__version__.encode())
+    for name in packages:
+        spec = importlib.util.find_spec(name)
+        origin = Path(spec.origin) if spec is not None and spec.origin else None
+        if origin is None or origin.suffix != ".py":
+            return "unknown"
+        files = sorted(origin.parent.glob("*.py")) if origin.name == "__init__.py" else [origin]
+        for f in files:
+            h.update(f.name.encode())
+            h.update(f.read_bytes())
+    return h.hexdigest()[:16]
+
+
+def keep_default_gains() -> None:
+    """The sky layer's default-dipole gains (one engine solve per channel, ~10 ms each) persist in
+    the cache directory, named by the source of the engine and of the gain reduction."""
+    from fieldkit import paths
+    from fieldkit.sky import gain
+
+    tag = source_fingerprint("fieldkit.antenna", "fieldkit.sky.gain")
+    if tag == "unknown":
+        return
+    gain.keep_default_gains_in(ArrayDir(paths.cache_dir() / f"default-gains-{tag}", max_files=512))
