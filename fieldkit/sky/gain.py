@@ -8,8 +8,8 @@ from __future__ import annotations
 
 import copy
 import functools
-import hashlib
 import json
+import zlib
 from dataclasses import dataclass
 from typing import Protocol
 
@@ -179,7 +179,8 @@ def _stored_gain(key: str, frequency_mhz: float) -> ElevationGain | None:
 
 @functools.lru_cache(maxsize=128)
 def _default_gain(frequency_mhz: float, ground_json: str) -> ElevationGain:
-    key = hashlib.sha256(f"{frequency_mhz!r} {ground_json}".encode()).hexdigest()[:32]
+    text = f"{frequency_mhz!r} {ground_json}"
+    key = f"{text[:80]}-{zlib.crc32(text.encode()):08x}"  # the store keeps file-safe characters
     got = _stored_gain(key, frequency_mhz)
     if got is not None:
         return got
