@@ -90,6 +90,8 @@ def _calculate(command: str, path: str) -> int:
     from fieldkit import disk_cache
 
     disk_cache.keep_image_fits()
+    if command != "model":  # the engine alone needs no sky layer
+        disk_cache.keep_default_gains()
     result = CALCULATORS[command](spec)
     # indented for a person at a terminal; compact (and fast) when piped to a script
     sys.stdout.write(jsonio.dumps(result, pretty=sys.stdout.isatty()) + "\n")

@@ -11,10 +11,15 @@ import os
 os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
 from .grounds import GROUND_PRESETS, Ground, parse_ground
+from .heap import retain_freed_memory
 from .materials import Insulation
 from .mesh import Antenna, Feed, Wire
 from .solver import Solution, solve
 from .spec import model_json
+
+# The engine's arrays are freed and allocated again thousands of times per plan: keep the freed
+# memory in the heap rather than page-faulting it in again each time (heap.py; glibc only).
+retain_freed_memory()
 
 __all__ = [
     "GROUND_PRESETS",

@@ -132,6 +132,7 @@ def warm_up() -> None:
     from fieldkit.sky import iri_tables
 
     disk_cache.keep_image_fits()
+    disk_cache.keep_default_gains()
     iri_tables.load()
 
 

@@ -9,7 +9,9 @@ from __future__ import annotations
 import copy
 import functools
 import json
+import zlib
 from dataclasses import dataclass
+from typing import Protocol
 
 import numpy as np
 
@@ -144,11 +146,51 @@ def _solve(spec: dict, frequencies_mhz: tuple[float, ...], azimuths, field: str)
     return out["results"]
 
 
+class GainStore(Protocol):
+    """Where default-dipole gains may be kept across processes (:class:`fieldkit.disk_cache.ArrayDir`)."""
+
+    def load(self, key: str) -> np.ndarray | None: ...
+
+    def save(self, key: str, array: np.ndarray) -> None: ...
+
+
+_store: GainStore | None = None
+
+
+def keep_default_gains_in(store: GainStore | None) -> None:
+    """Keep the default dipole's gains across processes in ``store`` (the CLI and the plan workers
+    set one in the cache directory, named by the engine's source: a changed engine starts afresh).
+    A stored gain is the engine's own result; the sky layer does no file I/O itself."""
+    global _store
+    _store = store
+
+
+def _stored_gain(key: str, frequency_mhz: float) -> ElevationGain | None:
+    row = _store.load(key) if _store is not None else None
+    n = len(ELEVATIONS_DEG)
+    if row is None or row.dtype != np.float64 or row.shape != (n + 3,) or np.isnan(row).any():
+        return None
+    elev, gain = np.array(ELEVATIONS_DEG), np.array(row[:n])
+    elev.setflags(write=False)
+    gain.setflags(write=False)
+    zenith, swr, efficiency = (float(x) for x in row[n:])
+    return ElevationGain(frequency_mhz, elev, gain, zenith, swr, efficiency)
+
+
 @functools.lru_cache(maxsize=128)
 def _default_gain(frequency_mhz: float, ground_json: str) -> ElevationGain:
+    text = f"{frequency_mhz!r} {ground_json}"
+    key = f"{text[:80]}-{zlib.crc32(text.encode()):08x}"  # the store keeps file-safe characters
+    got = _stored_gain(key, frequency_mhz)
+    if got is not None:
+        return got
     spec = default_dipole_spec(frequency_mhz=frequency_mhz, ground=json.loads(ground_json))
     (result,) = _solve(spec, (frequency_mhz,), AZIMUTHS_SYMMETRIC_DEG, "site")
-    return _reduce(result, AZIMUTHS_SYMMETRIC_DEG, frequency_mhz)
+    got = _reduce(result, AZIMUTHS_SYMMETRIC_DEG, frequency_mhz)
+    if _store is not None:
+        scalars = [got.zenith_gain_dbi, got.swr, got.radiation_efficiency]
+        _store.save(key, np.concatenate([got.gain_dbi, scalars]))
+    return got
 
 
 @functools.lru_cache(maxsize=32)
