@@ -18,6 +18,7 @@ from fieldkit.rigging.analyser import Sweep
 from fieldkit.rigging.cut import REFERENCE_IMPEDANCE_OHM, retrim
 from fieldkit.rigging.feedline import Coax
 
+NEAR_RESONANCE = 0.2  # |X| ≤ 0.2 R: R within ~1 % of its value at X = 0 (a dipole's R moves slowly)
 CURVE_POINTS = 401  # the measured curve as drawn: a phone screen is narrower than 401 px
 
 
@@ -236,7 +237,13 @@ def measured_retrim(
             measured_x_ohm=z.imag,
         )
         extra.update(moved)
-        r_res = z.real if reading.r_ohm is not None else None
+        near = reading.r_ohm is not None and abs(z.imag) <= NEAR_RESONANCE * z.real
+        r_res = z.real if near else None
+        if not near:
+            extra["ground_fit_note"] = (
+                "no ground fit: that needs R at resonance (X within ±20 % of R at the feedpoint, "
+                "read at the dip) or an analyser sweep"
+            )
     if r_res is not None and r_res > 0:
         extra["ground_fit"] = _ground_fit(res, out, r_res, engine, wire, site_ground)
     return {**out, **extra}
