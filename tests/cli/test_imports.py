@@ -27,7 +27,17 @@ print(json.dumps({"rc": rc, "modules": sorted(sys.modules)}))
 
 # the web service and desktop window, what PyIRI's package imports (plots, netCDF, tables), and
 # scikit-rf (only for a reading at the radio end or an analyser file)
-NEVER = ("flask", "waitress", "webview", "PySide6", "PyIRI", "matplotlib", "pandas", "netCDF4", "skrf")
+NEVER = (
+    "flask",
+    "waitress",
+    "webview",
+    "PySide6",
+    "PyIRI",
+    "matplotlib",
+    "pandas",
+    "netCDF4",
+    "skrf",
+)
 
 
 def _imported(*args: str) -> list[str]:

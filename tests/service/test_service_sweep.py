@@ -44,9 +44,14 @@ def test_too_large_a_sweep_is_413(client):
 @pytest.mark.parametrize(
     ("text", "field", "words"),
     [
-        ("frequency_mhz,r_ohm,x_ohm\n3.6,40,0\n3.7,4x,0\n3.8,40,0\n", "retrim.sweep.text", "line 3"),
         (
-            "frequency_mhz,swr\n" + "".join(f"{3 + i * 1e-4:.4f},2\n" for i in range(MAX_POINTS + 1)),
+            "frequency_mhz,r_ohm,x_ohm\n3.6,40,0\n3.7,4x,0\n3.8,40,0\n",
+            "retrim.sweep.text",
+            "line 3",
+        ),
+        (
+            "frequency_mhz,swr\n"
+            + "".join(f"{3 + i * 1e-4:.4f},2\n" for i in range(MAX_POINTS + 1)),
             "retrim.sweep.text",
             f"more than {MAX_POINTS} points",
         ),
