@@ -4,10 +4,11 @@ Two formats:
 
 * **Touchstone** ``.s1p`` (an open standard, one-port S, Z or Y data in any of its number formats),
   read by scikit-rf, imported only when such a file is given.
-* **CSV** with a header line naming the columns (any order, case and spaces ignored; separator ``,``
-  ``;`` or tab, the header's own): ``frequency_mhz`` (or ``frequency_khz`` / ``frequency_hz``) and
-  either ``r_ohm`` with ``x_ohm``, or ``swr`` (or all three). Lines starting with ``#`` and blank
-  lines are skipped. Frequencies rise from line to line.
+* **CSV** with a header line naming the columns (any order; separator ``,`` ``;`` or tab, the
+  header's own): ``frequency_mhz`` (or ``frequency_khz`` / ``frequency_hz``) and either ``r_ohm``
+  with ``x_ohm``, or ``swr`` (or all three). Case, spaces, brackets and Ω are read as in
+  ``Frequency (MHz), R (Ω), X (Ω)``. Lines starting with ``#`` and blank lines are skipped.
+  Frequencies rise from line to line.
 
 Either file holds 3 to :data:`MAX_POINTS` points and at most :data:`MAX_TEXT_BYTES`. A bad file is
 refused with the line and column of the first fault.
@@ -16,6 +17,7 @@ refused with the line and column of the first fault.
 from __future__ import annotations
 
 import io
+import re
 from dataclasses import dataclass
 
 import numpy as np
@@ -83,9 +85,15 @@ def _check_frequencies(f: np.ndarray, field: str) -> None:
         )
 
 
+def _column_name(cell: str) -> str:
+    """A header cell as its column's name: "Frequency (MHz)" and "frequency_mhz" are the same."""
+    text = cell.strip().lower().replace("ω", "ohm").replace("ohms", "ohm")
+    return re.sub(r"[\s\-()\[\]_]+", "_", text).strip("_")
+
+
 def _columns(header: str, line_no: int, field: str) -> tuple[str, list[str]]:
     sep = next((s for s in (",", ";", "\t") if s in header), ",")
-    names = [c.strip().lower() for c in header.split(sep)]
+    names = [_column_name(c) for c in header.split(sep)]
     for i, name in enumerate(names):
         if name not in FREQUENCY_COLUMNS and name not in VALUE_COLUMNS:
             raise InputError(

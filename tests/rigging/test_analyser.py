@@ -76,6 +76,9 @@ def test_csv_with_r_and_x_and_with_swr():
     )
     sweep = read_sweep(text, format="csv")
     assert sweep.z_ohm is None
+    # the header as a person writes it reads the same
+    same = read_sweep(text.replace("frequency_khz;swr", "Frequency (kHz); SWR"), format="csv")
+    np.testing.assert_array_equal(same.swr, sweep.swr)
     found = sweep_findings(sweep, at="feedpoint", coax=COAX, target_hz=F0)
     # the lowest SWR of a series RLC on 50 Ω lies at f0 (|Γ| smallest where X = 0)
     assert found.lowest_swr_hz == pytest.approx(F0, rel=2e-3)
