@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import io
 import re
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -30,6 +31,7 @@ MAX_TEXT_BYTES = 256 * 1024  # 2001 points of R, X and SWR at full precision fit
 FREQUENCY_COLUMNS = {"frequency_mhz": 1e6, "frequency_khz": 1e3, "frequency_hz": 1.0}
 VALUE_COLUMNS = ("r_ohm", "x_ohm", "swr")
 SWEEP_FORMATS = ("csv", "touchstone")
+MAX_REFLECTION = 0.9999  # |S11| of SWR ~20 000: beyond it a point is an open or a short
 MIN_SWEEP_HZ, MAX_SWEEP_HZ = 0.5e6, 60e6  # HF and a margin: an NVIS dipole resonates 1.8–30 MHz
 
 
@@ -171,7 +173,12 @@ def read_touchstone(text: str, field: str = "retrim.sweep") -> Sweep:
     buf = io.StringIO(text)
     buf.name = "sweep.s1p"
     try:
-        net = skrf.Network(buf)
+        # scikit-rf's parse warnings and the arithmetic of an open or short (Z = ∞) are checked below
+        with warnings.catch_warnings(), np.errstate(all="ignore"):
+            warnings.simplefilter("ignore")
+            net = skrf.Network(buf)
+            z = np.asarray(net.z[:, 0, 0], dtype=complex) if net.nports == 1 else None
+            s11 = np.abs(net.s[:, 0, 0]) if net.nports == 1 else None
     except (
         Exception
     ) as exc:  # scikit-rf raises several types for a bad file; all mean the same here
@@ -183,7 +190,12 @@ def read_touchstone(text: str, field: str = "retrim.sweep") -> Sweep:
     f = np.asarray(net.f, dtype=float)
     if len(f) >= 2 and not np.all(np.diff(f) > 0):
         raise InputError(f"{field}.text", "the frequencies do not rise from point to point")
-    z = np.asarray(net.z[:, 0, 0], dtype=complex)
-    if not np.all(np.isfinite(z)):
-        raise InputError(f"{field}.text", "a point is an open or short (no finite impedance)")
+    bad = ~np.isfinite(z) | ~(s11 < MAX_REFLECTION)
+    if np.any(bad):
+        i = int(np.argmax(bad))
+        what = "R < 0, an active load" if s11[i] > 1 else "an open or short (no finite impedance)"
+        raise InputError(
+            f"{field}.text",
+            f"point {i + 1} ({f[i] / 1e6:g} MHz) has |S11| = {s11[i]:.3g}: {what}, not an antenna",
+        )
     return Sweep(f, z, None, "touchstone")

@@ -128,3 +128,17 @@ def test_bad_touchstone_is_refused():
     with pytest.raises(InputError) as e:
         read_sweep("# MHz S RI R 50\n3.6 0.1\n", format="touchstone")
     assert e.value.field == "retrim.sweep.text" and "Touchstone" in e.value.detail
+
+
+def test_touchstone_open_short_and_active_points_are_refused(tmp_path):
+    f = np.linspace(3.5e6, 3.8e6, 5)
+    # S11 = 1 is an open (Z = ∞); |S11| > 1 is R < 0 (Pozar, Microwave Engineering, §4.3)
+    for s11, words in ((1.0, "open or short"), (1.5, "R < 0")):
+        s = np.full(5, 0.2 + 0j)
+        s[2] = s11
+        text = "# MHz S RI R 50\n" + "".join(
+            f"{a / 1e6:.4f} {b.real:.4f} {b.imag:.4f}\n" for a, b in zip(f, s, strict=True)
+        )
+        with pytest.raises(InputError) as e:
+            read_sweep(text, format="touchstone")
+        assert words in e.value.detail, e.value.detail
