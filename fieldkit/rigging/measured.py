@@ -97,6 +97,7 @@ def sweep_findings(sweep: Sweep, *, at: str, coax: Coax, target_hz: float) -> Sw
     if z is not None:
         if at == "radio":
             z = feedpoint_impedance(z, frequencies_hz=f, coax=coax)
+            _passive(z, f, coax, "retrim.sweep.text")
         swr = swr_of(z)
     else:
         swr = (
@@ -170,6 +171,22 @@ def sweep_json(found: SweepFindings, *, at: str, sweep: Sweep) -> dict[str, Any]
     }
 
 
+def _passive(z_feed: np.ndarray, f: np.ndarray, coax: Coax, field: str) -> None:
+    """Refuse a radio-end reading the coax cannot have carried: R < 0 once moved to the feedpoint."""
+    from fieldkit.errors import InputError
+
+    bad = z_feed.real < -0.5  # half an ohm: the rounding of an analyser's R near a short
+    if np.any(bad):
+        i = int(np.argmax(bad))
+        raise InputError(
+            field,
+            f"at {f[i] / 1e6:g} MHz this reading cannot have come through {coax.length_m:g} m of "
+            f"{coax.name} with {coax.matched_loss_db(f[i]):.2f} dB of loss: at the feedpoint it "
+            "would have R < 0. Check kit.coax (class, length, velocity factor), or whether it "
+            "was taken at the feedpoint",
+        )
+
+
 def _reading_at_feedpoint(reading: Reading, coax: Coax) -> tuple[complex, dict[str, Any]]:
     """A single R + jX reading at the feedpoint, with what was done to it."""
     from fieldkit.errors import InputError
@@ -184,6 +201,7 @@ def _reading_at_feedpoint(reading: Reading, coax: Coax) -> tuple[complex, dict[s
     if reading.at == "feedpoint":
         return z, {}
     (zf,) = feedpoint_impedance([z], frequencies_hz=[reading.at_hz], coax=coax)
+    _passive(np.array([zf]), np.array([reading.at_hz]), coax, "retrim.r_ohm")
     return complex(zf), {
         "feedpoint_r_ohm": round(zf.real, 2),
         "feedpoint_x_ohm": round(zf.imag, 2),

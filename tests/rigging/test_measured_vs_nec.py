@@ -87,3 +87,16 @@ def test_radio_end_reading_of_the_nec_antenna_lands_within_1_cm():
     # and a dip read at the radio is taken as it is, with the reason beside it
     dip = _retrim(s, at="radio", dip_mhz=3.62)
     assert "needs no moving through the coax" in dip["dip_note"]
+
+
+def test_a_reading_the_coax_cannot_carry_is_refused():
+    # 300 m of RG-58 loses ~ 6 dB at 3.65 MHz: |Γ| at the radio is at most 10^(−12/20) = 0.25,
+    # SWR 1.67 (Chipman 1968 ch. 5); an open-looking 500 Ω reading cannot have come through it
+    from fieldkit.errors import InputError
+
+    s = _site()
+    s["kit"]["coax"] = {"class": "rg-58", "length_m": 300}
+    s["retrim"] = {"frequency_mhz": 3.65, "at": "radio", "at_mhz": 3.65, "r_ohm": 500, "x_ohm": 0}
+    with pytest.raises(InputError) as e:
+        plan(s)
+    assert e.value.field == "retrim.r_ohm" and "R < 0" in e.value.detail
