@@ -221,7 +221,7 @@ function retrim(app, o) {
   const leg = legs.length ? legs.reduce((a, b) => a + b, 0) / legs.length : NaN;
   const box = h("div", { class: "card", "data-testid": "retrim" });
   box.append(h("h3", { text: "Re-trim after raising" }));
-  box.append(h("p", { class: "hint", text: "Measure the SWR across the channel with a low-power analyser at the feedpoint or through the coax, and type the frequency of the lowest SWR." }));
+  box.append(h("p", { class: "hint", text: "Measure the SWR across the channel with a low-power analyser at the feedpoint or through the coax, and type the frequency of the lowest SWR. Through the coax is fine for the dip: a 50 Ω line leaves the frequency of the lowest SWR where it is (R and X are another matter: for those use an analyser file below)." }));
   const out = h("p", { class: "result big-result", "data-testid": "retrim-result", text: "Type the measured dip: fieldkit says how much to cut off or add to each leg." });
   const show = (dip) => {
     st.extra.dipMHz = dip;
