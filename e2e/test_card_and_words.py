@@ -244,7 +244,14 @@ def test_the_printed_card_is_one_page(open_app, service, demo_planned):
         shot(page, f"card-{tag}-{kind}-{units}")
         text = page.get_by_test_id("field-card").inner_text()
         assert "Cut and mark" in text and "Rope heights" in text and "Keep clear" in text
+        # issue 14: what each support carries and the choke, on the card
+        loads = page.get_by_test_id("card-loads").inner_text()
+        option = service.get(f"/api/deployments/{dep}")["result"]["options"][0]
+        for sp in option["rigging"]["loads"]["supports"]:
+            assert sp["id"] in loads
+        assert "Choke" in page.get_by_test_id("card-spool").inner_text()
         if tag == "worst":
+            assert "guys up to" in loads
             option = service.get(f"/api/deployments/{dep}")["result"]["options"][0]
             assert option["form"] == "inverted-v" and option["mast"]["id"] == "M2"
             assert option["safety"]["keep_out_m"] > 0  # 1500 W data: a zone to mark

@@ -550,6 +550,14 @@ def test_kit_entered_in_the_app_becomes_the_operators_kit(open_app, service):
     page.get_by_test_id("kit-mast-height").fill("9 m")
     kit.get_by_role("button", name="Add mast").click()
     page.get_by_test_id("mast-M1").wait_for()
+    # issue 14: the strength figures the plan checks against
+    page.get_by_test_id("kit-wire-temper").select_option("hard")
+    page.get_by_test_id("kit-rope-wll").fill("400")
+    page.get_by_test_id("kit-weak-link").fill("300")
+    page.get_by_test_id("kit-design-wind").fill("15")
+    page.get_by_test_id("mast-M1-wind").fill("12")
+    page.get_by_test_id("mast-M1-guy-wll").fill("250")
+    page.get_by_test_id("mast-M1-guy-wll").blur()
     page.get_by_test_id("kit-store").click()
     page.get_by_test_id("kit-stored").filter(has_text="Stored").wait_for()
     stored = service.get("/api/kit")["kit"]
@@ -557,10 +565,15 @@ def test_kit_entered_in_the_app_becomes_the_operators_kit(open_app, service):
         "conductor": "copper",
         "diameter_mm": 1.6,
         "insulation": {"thickness_mm": 0.7, "relative_permittivity": 3.5},
+        "temper": "hard",
     }
     assert stored["coax"] == {"class": "rg-58", "length_m": 24.99}  # 82 ft = 24.99 m
     assert stored["rope"]["length_m"] == 60
     assert stored["masts"][0]["id"] == "M1" and stored["masts"][0]["height_m"] == 9
+    assert stored["masts"][0]["wind_limit_m_s"] == 12
+    assert stored["masts"][0]["guy_rope"] == {"working_load_n": 250}
+    assert stored["rope"]["working_load_n"] == 400 and stored["weak_link_n"] == 300
+    assert stored["design_wind_m_s"] == 15
     shot(page, "laptop-kit")
 
 

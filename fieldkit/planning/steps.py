@@ -266,7 +266,9 @@ def checked_option(r: RiggedOption, inp: PlanInput) -> CheckedOption:
     if r.mast is not None:
         x, y = r.layout.mast_xy
         shown = r.mast.to_json()
-        mast = MastAtSite(shown["id"], x, y, shown["height_m"], shown["guys"])
+        mast = MastAtSite(
+            shown["id"], x, y, shown["height_m"], shown["guys"], shown.get("wind_limit_m_s")
+        )
     w = inp.kit.wire
     return CheckedOption(
         frequency_hz=round(r.frequency_hz / 1e6, 6) * 1e6,

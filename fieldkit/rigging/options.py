@@ -28,13 +28,24 @@ from fieldkit.rigging.cut import (
     swr_sweep,
     wire_needed_m,
 )
+from fieldkit.rigging.feed_advice import feedline_words
 from fieldkit.rigging.feedline import Coax, total_loss_db
 from fieldkit.rigging.height_search import sweep_layout
 from fieldkit.rigging.heights import HeightPoint, point_from_solution
 from fieldkit.rigging.hung import HungDipole, recut
 from fieldkit.rigging.layouts import Layout, Mechanics
+from fieldkit.rigging.loads import (
+    Loads,
+    Strength,
+    guy_words,
+    rope_words,
+    span_loads,
+    support_words,
+    vee_loads,
+    wire_words,
+)
 from fieldkit.rigging.mast import MastLoad
-from fieldkit.rigging.rigged import RiggedOption, rope_needed_m
+from fieldkit.rigging.rigged import RiggedOption, end_rope_m, rope_needed_m
 from fieldkit.rigging.wire import KitWire
 
 # The insulated wire resonates a few percent shorter than bare wire; start the search there.
@@ -82,6 +93,7 @@ class Kit:
     wrap_allowance_m: float
     ground: Any
     ground_name: str
+    strength: Strength | None = None
 
 
 @dataclass
@@ -385,7 +397,7 @@ def _droop_words(layout: Layout, res: Resonance, f: float) -> list[str]:
     ]
 
 
-def _mast_load(layout: Layout, hung: HungDipole) -> MastLoad | None:
+def _mast_load(layout: Layout, hung: HungDipole, loads: Loads | None) -> MastLoad | None:
     """The centre mast's load.
 
     Raises
@@ -395,10 +407,37 @@ def _mast_load(layout: Layout, hung: HungDipole) -> MastLoad | None:
     """
     if layout.mast is None:
         return None
-    load = MastLoad(layout.mast, hung.feedpoint_height_m, hung.top_load_n)
+    guys = () if loads is None else loads.guys_n
+    load = MastLoad(layout.mast, hung.feedpoint_height_m, hung.top_load_n, guys_n=guys)
     if not load.ok:
         raise Refusal(load.why)
     return load
+
+
+def option_loads(layout: Layout, hung: HungDipole, kit: Kit, setting) -> Loads | None:
+    """What the supports, wire, ropes and guys carry (None when the kit has no strength figures)."""
+    if kit.strength is None:
+        return None
+    if layout.form == "inverted-v":
+        stake = end_rope_m(hung, setting)
+        return vee_loads(layout, hung, kit.mech, kit.strength, stake_rope_m=stake)
+    return span_loads(layout, hung, kit.mech, kit.strength, setting)
+
+
+def strength_words(layout: Layout, loads: Loads | None, kit: Kit) -> list[str]:
+    """Plain-words findings of the strength checks (wire, rope and weak link, branches, guys)."""
+    if loads is None or kit.strength is None:
+        return []
+    st = kit.strength
+    ropes = "stake ropes" if layout.form == "inverted-v" else "halyards"
+    if layout.form == "inverted-v" and layout.mast is None:
+        ropes = "stake ropes and the apex halyard"
+    return [
+        *wire_words(loads, st),
+        *rope_words(loads, st, ropes=ropes),
+        *support_words(loads, st),
+        *guy_words(loads, layout.mast, st),
+    ]
 
 
 def finish(sc: Screened, *, kit: Kit, engine: EngineCounter, warm: Warm) -> RiggedOption:
@@ -420,9 +459,12 @@ def finish(sc: Screened, *, kit: Kit, engine: EngineCounter, warm: Warm) -> Rigg
         warnings += layout.advice(hung)
     warnings += _rope_words(layout, hung, sc.chosen, kit)
     warnings = _droop_words(layout, res, f) + warnings
-    mast = _mast_load(layout, hung)
+    loads = option_loads(layout, hung, kit, sc.chosen)
+    warnings += strength_words(layout, loads, kit)
+    mast = _mast_load(layout, hung, loads)
     swr = float(res.solution.swr)
     loss = total_loss_db(matched_loss_db=kit.coax.matched_loss_db(f), swr=swr)
+    warnings += feedline_words(kit.coax, frequency_hz=f, swr=swr)
     if curve.width_khz == 0.0:
         warnings.append(
             "SWR stays above 2 near the channel: use a tuner or matching at the feedpoint"
@@ -439,4 +481,5 @@ def finish(sc: Screened, *, kit: Kit, engine: EngineCounter, warm: Warm) -> Rigg
         mast=mast,
         feed_loss_db=loss,
         warnings=tuple(warnings),
+        loads=loads,
     )

@@ -16,11 +16,13 @@ import numpy as np
 from fieldkit.constants import SPEED_OF_LIGHT_M_S, STANDARD_GRAVITY_M_S2
 from fieldkit.fields import Record, arr, nested, num, string
 from fieldkit.rigging.cut import Resonance, SwrCurve, cut_json, spare_m
+from fieldkit.rigging.feed_advice import CHOKE_ADVICE
 from fieldkit.rigging.feedline import feedline_json
 from fieldkit.rigging.heights import HeightPoint, sweep_json
 from fieldkit.rigging.hung import HungDipole
 from fieldkit.rigging.instruction import CutInstruction, cut_instruction
 from fieldkit.rigging.layouts import Layout
+from fieldkit.rigging.loads import Loads, loads_json
 from fieldkit.rigging.mast import MastLoad
 from fieldkit.rigging.supports import HALYARD_TIE_OFF_M, halyard_rope_m
 from fieldkit.rigging.vee import stakes
@@ -146,6 +148,7 @@ class RiggedOption:
     feed_loss_db : feedline loss at the option's SWR [dB]
     warnings : plain-words warnings of the rigging
     linked : sections and links of a linked dipole, or None
+    loads : what the supports, wire, ropes and guys carry, or None (no strength figures)
     """
 
     layout: Layout
@@ -160,6 +163,7 @@ class RiggedOption:
     feed_loss_db: float
     warnings: tuple[str, ...]
     linked: LinkedWire | None = None
+    loads: Loads | None = None
 
     @property
     def hung(self) -> HungDipole:
@@ -186,7 +190,7 @@ class RiggedOption:
 def rope_needed_m(layout: Layout, hung: HungDipole, setting: dict[str, float]) -> float:
     """All the rope this hang needs: halyards, or an inverted-V's stake ropes and apex halyard [m]."""
     if layout.form == "inverted-v":
-        rope_each = _end_rope_m(hung, setting)
+        rope_each = end_rope_m(hung, setting)
         if layout.mast is not None:
             return 2 * rope_each
         return 2 * rope_each + _apex_rope_m(hung)
@@ -196,7 +200,7 @@ def rope_needed_m(layout: Layout, hung: HungDipole, setting: dict[str, float]) -
     return total
 
 
-def _end_rope_m(hung: HungDipole, setting: dict[str, float]) -> float:
+def end_rope_m(hung: HungDipole, setting: dict[str, float]) -> float:
     """One stake rope: from the end insulator (as it hangs) down its leg's line to the stake, with
     the tie-off [m]."""
     return (
@@ -217,7 +221,7 @@ def _reach(hung: HungDipole) -> float:
 
 def _inverted_v_json(r: RiggedOption, kit) -> dict[str, Any]:
     hung, layout, g = r.hung, r.layout, STANDARD_GRAVITY_M_S2
-    rope_each = _end_rope_m(hung, r.chosen)
+    rope_each = end_rope_m(hung, r.chosen)
     out: dict[str, Any] = {
         "stake_distance_m": round(hung.stake_distance_m, 1),
         "end_rope_m": round(rope_each, 1),
@@ -273,7 +277,11 @@ def rigging_json(r: RiggedOption, kit) -> dict[str, Any]:
         "feedpoint_load_kg": round(kit.mech.feed_load_n(hung.feedpoint_height_m) / g, 3),
     }
     extra = _inverted_v_json(r, kit) if r.layout.form == "inverted-v" else _span_json(r)
-    return {**out, **extra}
+    out = {**out, **extra}
+    if r.loads is not None and kit.strength is not None:
+        out["guy_tension_n"] = [round(t, 1) for t in r.loads.guys_n]
+        out["loads"] = loads_json(r.loads, kit.strength)
+    return out
 
 
 def hung_points_m(hung: HungDipole) -> list[list[float]]:
@@ -330,6 +338,7 @@ def _cut_json(r: RiggedOption, kit) -> dict[str, Any]:
     if r.linked is not None:
         cut["sections_m"] = list(r.linked.sections_m)
         cut["sections_note"] = SECTIONS_NOTE
+    cut["choke_advice"] = CHOKE_ADVICE
     return cut
 
 

@@ -133,7 +133,9 @@ def newton_system(
 
 
 def _norm(v: np.ndarray) -> float:
-    return math.sqrt(float(v @ v))
+    # math.hypot scales internally: a probe at an absurd tension gives 1e200 residuals, whose
+    # squares overflow a dot product (found by the catenary property test)
+    return math.hypot(*(float(c) for c in v))
 
 
 def hybrid_system(fun, x0: np.ndarray, *, xtol: float = 1e-11) -> np.ndarray | None:

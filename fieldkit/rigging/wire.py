@@ -13,8 +13,9 @@ from dataclasses import dataclass
 from typing import Any
 
 from fieldkit.errors import InputError, choice, join, require_mapping
-from fieldkit.fields import Record, nested, num, string
+from fieldkit.fields import Record, flag, nested, num, string
 
+TEMPERS = ("soft", "hard")  # copper as drawn: annealed or hard-drawn (fieldkit.rigging.strength)
 CONDUCTORS = ("perfect", "copper", "aluminium", "copper-clad-steel", "steel")
 # Densities [kg/m³]: copper 8890 (REFERENCES.md, from memory); aluminium 2700, steel 7850, PVC jacket
 # 1400 (from memory, handbook values). Copper-clad steel taken as steel (the cladding is thin).
@@ -44,6 +45,8 @@ class KitWire:
     insulation_thickness_m : jacket thickness, 0 for bare wire [m]
     insulation_permittivity : relative permittivity of the jacket [-]
     spool_m : wire on the spool, None if not stated [m]
+    temper : "soft" or "hard" for copper, None if not stated (the strength takes soft-drawn)
+    stranded : a stranded wire of this overall diameter (the strength counts less metal)
     """
 
     diameter_m: float
@@ -51,6 +54,8 @@ class KitWire:
     insulation_thickness_m: float = 0.0
     insulation_permittivity: float = 1.0
     spool_m: float | None = None
+    temper: str | None = None
+    stranded: bool = False
 
     @property
     def mass_kg_per_m(self) -> float:
@@ -71,6 +76,10 @@ class KitWire:
                 "thickness_mm": round(self.insulation_thickness_m * 1e3, 4),
                 "relative_permittivity": self.insulation_permittivity,
             }
+        if self.temper is not None:
+            out["temper"] = self.temper
+        if self.stranded:
+            out["stranded"] = True
         return out
 
 
@@ -97,6 +106,15 @@ WIRE = Record(
         string("conductor", *CONDUCTORS, description="default copper"),
         nested("insulation", INSULATION, nullable=True),
         num("spool_m", "m", 0, exclusive_minimum=True, description="wire on the spool"),
+        string(
+            "temper",
+            *TEMPERS,
+            description="copper only: soft- or hard-drawn (the breaking load); default soft",
+        ),
+        flag(
+            "stranded",
+            description="a stranded wire of this overall diameter (default solid)",
+        ),
         string("note"),
     ),
     "the kit's antenna wire: diameter_mm or awg",
@@ -129,4 +147,15 @@ def parse_wire(value: Any, field: str = "kit.wire") -> KitWire:
     spool = None
     if obj.get("spool_m") is not None:
         spool = WIRE.number(obj, field, "spool_m")
-    return KitWire(diameter, conductor, thickness, eps, spool)
+    temper = None
+    if "temper" in obj:
+        temper = choice(obj["temper"], join(field, "temper"), TEMPERS)
+        if conductor != "copper":
+            raise InputError(
+                join(field, "temper"),
+                f"soft or hard applies to copper wire only, not {conductor}: leave it out",
+            )
+    stranded = obj.get("stranded", False)
+    if not isinstance(stranded, bool):
+        raise InputError(join(field, "stranded"), "expected true or false", value=stranded)
+    return KitWire(diameter, conductor, thickness, eps, spool, temper, stranded)

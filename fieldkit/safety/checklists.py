@@ -91,6 +91,15 @@ _TEMPLATES: tuple[ChecklistItem, ...] = (
     ),
     _t(
         "pre-raise",
+        "choke",
+        "A choke (a current balun rated for the power) at the feedpoint, where the coax meets the "
+        "wire: without it, current on the outside of the coax shifts the SWR readings used for "
+        "trimming and brings RF back to the operating position.",
+        required=False,
+        title="Choke balun at the feedpoint",
+    ),
+    _t(
+        "pre-raise",
         "briefing",
         "Team briefed: fieldkit is a planning aid; the local codes, the utility's rules, the landowner, "
         "licensed practice and the local regulator's RF exposure rules come first.",

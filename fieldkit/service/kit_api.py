@@ -30,6 +30,12 @@ _NUMBERS = {
     "count": (0, 1000),
     "loss_db_per_100m": (0.0, 100.0),
     "mass_kg_per_m": (0.0, 5.0),
+    # strength (issue 14): as the plan's kit table bounds them
+    "working_load_n": (1.0, 100000.0),
+    "weak_link_n": (1.0, 100000.0),
+    "design_wind_m_s": (0.0, 60.0),
+    "wind_limit_m_s": (1.0, 60.0),
+    "ice_mm": (0.0, 50.0),
 }
 TOP_LEVEL = (
     "wire",
@@ -39,6 +45,10 @@ TOP_LEVEL = (
     "rope",
     "throw_lines",
     "tension_n",
+    "weak_link_n",
+    "design_wind_m_s",
+    "ice_mm",
+    "wrap_allowance_m",
     "balun",
     "insulators",
     "stakes",

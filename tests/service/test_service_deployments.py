@@ -324,6 +324,24 @@ def test_kit_round_trip(client):
     assert got["updated_at"] == saved.json["updated_at"]
 
 
+def test_kit_keeps_the_strength_figures(client):
+    # issue 14: what the kit editor stores for the strength checks comes back as it went in
+    body = {
+        **KIT,
+        "weak_link_n": 300,
+        "design_wind_m_s": 15,
+        "ice_mm": 5,
+        "rope": {"length_m": 60, "working_load_n": 400},
+        "masts": [
+            {"id": "M1", "height_m": 9, "wind_limit_m_s": 12, "guy_rope": {"working_load_n": 200}}
+        ],
+    }
+    assert client.put("/api/kit", json=body).status_code == 200
+    assert client.get("/api/kit").json["kit"] == body
+    bad = client.put("/api/kit", json={**body, "design_wind_m_s": 90})
+    assert bad.status_code == 422 and bad.json["field"] == "design_wind_m_s"
+
+
 @pytest.mark.parametrize(
     ("body", "field"),
     [

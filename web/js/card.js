@@ -7,7 +7,7 @@ import { clear, h } from "./dom.js";
 import { qrSvg } from "./qr.js";
 import { readiness } from "./checks.js";
 import { cutInstruction, supportsById } from "./shapes.js";
-import { formatLength, formatMHz, formatTape, pick } from "./units.js";
+import { formatLength, formatMass, formatMHz, formatTape, pick } from "./units.js";
 import { electricalLegs, linkWords, markWords, pieceWords } from "./wire.js";
 import { count, formWord, kindWord, limitSetWord, modeWord } from "./words.js";
 
@@ -103,7 +103,8 @@ function cutBlock(o, units) {
   const links = linkWords(o);
   if (links) parts.push(h("p", { class: "fc-links", "data-testid": "card-links", text: links }));
   const legs = [...new Set(electricalLegs(o, units))].join(" / ");
-  parts.push(h("p", { class: "fc-note" }, [`Wire off the spool ${pick(ins.total, units)}. Between the feedpoint fold and the end insulator: ${legs} (the model's electrical leg). Wrap ${pick(ins.pieces[0].wrap_each_end, units)} at each end.`]));
+  const choke = o.cut?.choke_advice ? " Choke (current balun) at the feedpoint: true SWR readings, no RF back at the radio." : "";
+  parts.push(h("p", { class: "fc-note", "data-testid": "card-spool" }, [`Wire off the spool ${pick(ins.total, units)}. Between the feedpoint fold and the end insulator: ${legs} (the model's electrical leg). Wrap ${pick(ins.pieces[0].wrap_each_end, units)} at each end.${choke}`]));
   return block("fc-cut", "Cut and mark", parts);
 }
 
@@ -118,15 +119,35 @@ function ropeBlock(dep, o, units) {
   return block("fc-ropes", "Rope heights", [rows(list)]);
 }
 
+/** One line under the rope heights: what each support carries (the plan's rigging.loads), still and in
+ * the wind the plan checked, the pull against what the wire may carry, and the guys. */
+export function loadLine(o, units) {
+  const L = o.rigging?.loads;
+  if (!L?.supports?.length) return "";
+  const each = L.supports.map((sp) => `${sp.id} ${formatMass(sp.load_kg, units)} (${formatMass(sp.in_wind_kg, units)})`).join(", ");
+  const guys = o.rigging?.guy_tension_n ?? [];
+  const guyText = guys.length ? `; guys up to ${Math.round(Math.max(...guys))} N each at ${L.guy_wind_m_s} m/s` : "";
+  return `${each} in a ${L.wind_m_s} m/s wind; pull ${Math.round(L.wire_tension_n)} N of the ${L.wire_working_n} N the wire may carry${guyText}.`;
+}
+
+/** The loads under the trim table (the column with room to spare), or a block of their own. */
+function loadsNote(o, units) {
+  const text = loadLine(o, units);
+  return text ? h("p", { class: "fc-note fc-loads", "data-testid": "card-loads" }, [h("b", { text: "Loads: " }), text]) : null;
+}
+
 function trimBlock(o, units) {
   const steps = o.cut?.trim_steps ?? [];
-  if (!steps.length) return null;
+  if (!steps.length) {
+    const loads = loadsNote(o, units);
+    return loads ? block("fc-trim-block", "Loads", [loads]) : null;
+  }
   const t = h("table", { class: "fc-trim" });
   t.append(h("thead", {}, [h("tr", {}, [h("th", { text: "dip off by" }), h("th", { text: "below: shorten each leg" }), h("th", { text: "above: lengthen each leg" })])]));
   const tb = h("tbody");
   for (const r of steps) tb.append(h("tr", {}, [h("td", { text: `${r.shift_khz} kHz` }), h("td", { text: formatTape(r.cut_cm_per_leg_to_raise / 100, units) }), h("td", { text: formatTape(r.add_cm_per_leg_to_lower / 100, units) })]));
   t.append(tb);
-  return block("fc-trim-block", "After the SWR check", [t, h("p", { class: "fc-note", text: "Shorten: move the end insulator toward the feedpoint. Lengthen: let out spare. Both legs alike." })]);
+  return block("fc-trim-block", "After the SWR check", [t, h("p", { class: "fc-note", text: "Shorten: move the end insulator toward the feedpoint. Lengthen: let out spare. Both legs alike." }), loadsNote(o, units)]);
 }
 
 function safeBlock(dep, o, units) {

@@ -3,9 +3,25 @@
 
 import { clear, h } from "./dom.js";
 import { field, lengthField, numberField, selectField } from "./fields.js";
-import { EntryError } from "./units.js";
+import { EntryError, parseNumber } from "./units.js";
 import { COAX, coaxWord, conductorWord, CONDUCTORS, count } from "./words.js";
 const DEFAULT_JACKET_PERMITTIVITY = 3.5; // PVC, typical (from memory; cable makers quote 3–4)
+const TEMPERS = [["", "not known (taken as soft)"], ["soft", "soft-drawn"], ["hard", "hard-drawn"]];
+
+/** A number the plan may do without: blank removes it (the plan then uses its default, and says so). */
+function optionalNumber({ label, value, min, max, what, fieldPath, testid, hint, onValue }) {
+  return field({
+    label, value: value ?? "", fieldPath, testid, hint, inputmode: "decimal",
+    parse: (t) => (String(t ?? "").trim() === "" ? null : parseNumber(t, { min, max, what })),
+    onValid: onValue,
+  });
+}
+
+/** Set or remove an optional key. */
+function put(obj, key, v) {
+  if (v === null) delete obj[key];
+  else obj[key] = v;
+}
 
 export function kitEditor(app) {
   const st = app.state;
@@ -18,7 +34,13 @@ export function kitEditor(app) {
   const wire = () => (kit.wire = kit.wire ?? { conductor: "copper" });
   const grid = h("div", { class: "grid-form" });
   grid.append(numberField({ label: "Wire diameter (mm)", value: kit.wire?.diameter_mm ?? "", min: 0.2, max: 6, what: "a diameter in mm", fieldPath: "kit.wire.diameter_mm", testid: "kit-wire-mm", onValid: (v) => set(() => (wire().diameter_mm = v)) }));
-  grid.append(selectField({ label: "Conductor", value: kit.wire?.conductor ?? "copper", options: CONDUCTORS, fieldPath: "kit.wire.conductor", onChange: (v) => set(() => (wire().conductor = v)) }));
+  grid.append(selectField({ label: "Conductor", value: kit.wire?.conductor ?? "copper", options: CONDUCTORS, fieldPath: "kit.wire.conductor", onChange: (v) => {
+    set(() => {
+      wire().conductor = v;
+      if (v !== "copper") delete wire().temper; // the temper is copper's only
+    });
+    app.render();
+  } }));
   grid.append(numberField({
     label: "Jacket thickness (mm, 0 = bare)", value: kit.wire?.insulation?.thickness_mm ?? 0, min: 0, max: 5, what: "a thickness in mm", fieldPath: "kit.wire.insulation.thickness_mm",
     onValid: (v) => set(() => {
@@ -33,6 +55,17 @@ export function kitEditor(app) {
   grid.append(numberField({ label: "Pull on the wire (N)", value: kit.tension_n ?? "", min: 5, max: 2000, what: "a force in newtons", fieldPath: "kit.tension_n", hint: "a firm hand pull is about 60 N", onValid: (v) => set(() => (kit.tension_n = v)) }));
   box.append(grid);
 
+  // what the wire, ropes and guys must hold (issue 14): the plan warns when a load exceeds them
+  box.append(h("h4", { text: "Strength" }));
+  const strength = h("div", { class: "grid-form", "data-testid": "kit-strength" });
+  if ((kit.wire?.conductor ?? "copper") === "copper") {
+    strength.append(selectField({ label: "Copper wire temper", value: kit.wire?.temper ?? "", options: TEMPERS, fieldPath: "kit.wire.temper", testid: "kit-wire-temper", onChange: (v) => set(() => put(wire(), "temper", v || null)) }));
+  }
+  strength.append(optionalNumber({ label: "Rope working load (N)", value: kit.rope?.working_load_n, min: 1, max: 100000, what: "a force in newtons", fieldPath: "kit.rope.working_load_n", testid: "kit-rope-wll", hint: "from the maker's label; blank: estimated from the diameter", onValue: (v) => set(() => put((kit.rope = kit.rope ?? {}), "working_load_n", v)) }));
+  strength.append(optionalNumber({ label: "Weak link breaks at (N)", value: kit.weak_link_n, min: 1, max: 100000, what: "a force in newtons", fieldPath: "kit.weak_link_n", testid: "kit-weak-link", onValue: (v) => set(() => put(kit, "weak_link_n", v)) }));
+  strength.append(optionalNumber({ label: "Check for wind of (m/s)", value: kit.design_wind_m_s, min: 0, max: 60, what: "a wind speed in m/s", fieldPath: "kit.design_wind_m_s", testid: "kit-design-wind", hint: "blank: a gale, 17.2 m/s", onValue: (v) => set(() => put(kit, "design_wind_m_s", v)) }));
+  box.append(strength);
+
   box.append(h("h4", { text: "Masts" }));
   const masts = h("div", { class: "cards" });
   (kit.masts ?? []).forEach((m, i) => {
@@ -44,6 +77,8 @@ export function kitEditor(app) {
         lengthField({ label: "Height", metres: m.height_m, units, min: 1, max: 60, fieldPath: `${base}.height_m`, onValid: (v) => set((k) => (k.masts[i].height_m = +v.toFixed(2))) }),
         numberField({ label: "Top load (kg)", value: m.top_load_kg, min: 0, max: 200, what: "a mass in kg", fieldPath: `${base}.top_load_kg`, onValid: (v) => set((k) => (k.masts[i].top_load_kg = v)) }),
         numberField({ label: "Guys", value: m.guys, min: 0, max: 12, integer: true, what: "a number of guys", fieldPath: `${base}.guys`, onValid: (v) => set((k) => (k.masts[i].guys = v)) }),
+        optionalNumber({ label: "Wind rating (m/s)", value: m.wind_limit_m_s, min: 1, max: 60, what: "a wind speed in m/s", fieldPath: `${base}.wind_limit_m_s`, testid: `mast-${m.id}-wind`, hint: "the maker's; blank: 10.8 m/s", onValue: (v) => set((k) => put(k.masts[i], "wind_limit_m_s", v)) }),
+        optionalNumber({ label: "Guy cord working load (N)", value: m.guy_rope?.working_load_n, min: 1, max: 100000, what: "a force in newtons", fieldPath: `${base}.guy_rope.working_load_n`, testid: `mast-${m.id}-guy-wll`, hint: "blank: the guys are the kit's rope", onValue: (v) => set((k) => put(k.masts[i], "guy_rope", v === null ? null : { working_load_n: v })) }),
       ]),
     ]));
   });
