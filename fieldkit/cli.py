@@ -80,13 +80,62 @@ def _parser() -> argparse.ArgumentParser:
     for name, text in helps.items():
         c = sub.add_parser(name, help=text)
         c.add_argument("file", metavar="FILE", help="JSON input file, or - for stdin")
+        if name == "plan":
+            c.add_argument(
+                "--sweep",
+                metavar="ANALYSER_FILE",
+                help="an analyser sweep of the raised antenna (.s1p Touchstone, or .csv with "
+                "frequency_mhz and r_ohm, x_ohm or swr): re-trim from it (retrim.sweep)",
+            )
+            c.add_argument(
+                "--at",
+                choices=("feedpoint", "radio"),
+                help="where the sweep was taken (default feedpoint; radio: moved through kit.coax)",
+            )
     return p
 
 
-def _calculate(command: str, path: str) -> int:
+SWEEP_SUFFIXES = {".s1p": "touchstone", ".csv": "csv", ".txt": "csv"}
+
+
+def _with_sweep(spec: Any, path: str, at: str | None) -> Any:
+    """The plan input with the analyser file as ``retrim.sweep`` (the channel: retrim's, else the
+    first of ``channels_mhz``)."""
+    from pathlib import Path
+
+    from fieldkit.rigging.analyser import MAX_TEXT_BYTES
+
+    file = Path(path)
+    fmt = SWEEP_SUFFIXES.get(file.suffix.lower())
+    if fmt is None:
+        raise InputError("--sweep", f"expected a .s1p or .csv file, got {file.name!r}")
+    try:
+        if file.stat().st_size > MAX_TEXT_BYTES:
+            raise InputError("--sweep", f"{file.name} is larger than {MAX_TEXT_BYTES} bytes")
+        text = file.read_text(encoding="utf-8-sig")
+    except OSError as exc:
+        raise InputError("--sweep", f"cannot read {path}: {exc.strerror}") from None
+    except UnicodeDecodeError:
+        raise InputError("--sweep", f"{file.name} is not UTF-8 text") from None
+    if not isinstance(spec, dict):
+        return spec  # the plan's own parser names the problem
+    retrim = dict(spec.get("retrim") or {})
+    if "frequency_mhz" not in retrim and isinstance(spec.get("channels_mhz"), list):
+        retrim["frequency_mhz"] = spec["channels_mhz"][0] if spec["channels_mhz"] else None
+    retrim["sweep"] = {"format": fmt, "text": text, "name": file.name}
+    if at is not None:
+        retrim["at"] = at
+    return {**spec, "retrim": retrim}
+
+
+def _calculate(command: str, path: str, args: argparse.Namespace | None = None) -> int:
     from fieldkit import jsonio
 
     spec = jsonio.read(path)
+    if getattr(args, "sweep", None) is not None:
+        spec = _with_sweep(spec, args.sweep, args.at)
+    elif getattr(args, "at", None) is not None:
+        raise InputError("--at", "only with --sweep (in the input file: retrim.at)")
     from fieldkit import disk_cache
 
     disk_cache.keep_image_fits()
@@ -135,7 +184,7 @@ def main(argv: Sequence[str] | None = None) -> int:
 def _run(command: str, args: argparse.Namespace) -> int:
     try:
         if command in CALCULATORS:
-            return _calculate(command, args.file)
+            return _calculate(command, args.file, args)
         if command == "serve":
             return _serve(args)
         return _desktop(args)

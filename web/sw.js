@@ -3,7 +3,7 @@
 // when the network fails. Only same-origin GET requests are handled; writes always go to the network
 // (pending checklist ticks are kept by the app itself, see js/queue.js).
 
-const VERSION = "fieldkit-shell-v2";
+const VERSION = "fieldkit-shell-v3";
 const API_CACHE = "fieldkit-api-v1";
 const SHELL = [
   "./",
@@ -34,6 +34,7 @@ const SHELL = [
   "js/kit.js",
   "js/words.js",
   "js/progress.js",
+  "js/measured.js",
 ];
 const NETWORK_TIMEOUT_MS = 4000;
 

@@ -16,6 +16,7 @@ from fieldkit.errors import InputError, array, choice, join, require_mapping
 from fieldkit.fields import Record, arr, nested, num, ref, string
 from fieldkit.model_fields import ground_field
 from fieldkit.planning.kit_input import KIT, parse_kit
+from fieldkit.planning.retrim_input import RETRIM, Retrim, parse_retrim
 from fieldkit.planning.site_input import ROOM, parse_site_limits
 from fieldkit.planning.sky_input import parse_plan_sky
 from fieldkit.rigging.clearing import SiteLimits
@@ -36,7 +37,6 @@ from fieldkit.sky.inputs import (  # one HF range for plan and sky
 from fieldkit.sky.inputs import Schedule as SkySchedule
 
 FORMS = ("flat", "inverted-v", "sloping", "linked", "auto")
-RETRIM_FORMS = ("flat", "sloping", "inverted-v")
 PLAN_SKY = SKY.variant(
     "PlanSky",
     optional=("channels_mhz", "site", "date"),
@@ -83,27 +83,6 @@ SCHEDULE = Record(
         string("end_utc", description="HH:MM, 00:00-24:00", schema=_HHMM),
     ),
     "the operating window (UTC); used with the sky block to rank the channels",
-)
-RETRIM = Record(
-    "Retrim",
-    (
-        num(
-            "frequency_mhz",
-            "MHz",
-            MIN_CHANNEL_MHZ,
-            MAX_CHANNEL_MHZ,
-            required=True,
-            missing="required: the channel to re-trim for",
-            description="one of channels_mhz",
-        ),
-        string("form", *RETRIM_FORMS),
-        num("leg_now_m", "m", 0.5, 200),
-        num("dip_mhz", "MHz", 1.0, 40, description="the measured SWR dip"),
-        num("at_mhz", "MHz", 1.0, 40, description="analyser reading: frequency (with x_ohm)"),
-        num("r_ohm", "ohm", 0, 5000),
-        num("x_ohm", "ohm", -5000, 5000),
-    ),
-    "a measurement after raising: the SWR dip, or R + jX at a frequency",
 )
 PLAN = Record(
     "PlanInput",
@@ -160,20 +139,6 @@ class PlanSchedule:
                     join("schedule", key), "required with a sky block: a UTC time as HH:MM"
                 )
         return window(self.start_h, self.end_h, None, self.start_text, self.end_text)
-
-
-@dataclass(frozen=True)
-class Retrim:
-    """A measurement after raising: the channel to re-trim for [Hz] and the SWR dip [Hz], or an
-    analyser reading R + jX [Ω] at a frequency [Hz]; ``form`` restricts it to one form."""
-
-    target_hz: float
-    form: str | None = None
-    leg_now_m: float | None = None
-    dip_hz: float | None = None
-    at_hz: float | None = None
-    r_ohm: float | None = None
-    x_ohm: float | None = None
 
 
 @dataclass(frozen=True)
@@ -318,42 +283,6 @@ def _usable(supports: tuple[Support, ...]) -> tuple[tuple[float, float], list[st
     return mast_xy, [f"{s.id} is marked unsafe and is not used" for s in supports if s.unsafe]
 
 
-def _retrim_number(obj: Mapping[str, Any], key: str) -> float:
-    return RETRIM.number(obj, "retrim", key)
-
-
-def _retrim_reading(obj: Mapping[str, Any]) -> dict[str, float]:
-    """The measured dip, or the analyser's R + jX at a frequency."""
-    if "dip_mhz" in obj:
-        return {"dip_hz": _retrim_number(obj, "dip_mhz") * 1e6}
-    if "at_mhz" in obj and "x_ohm" in obj:
-        out = {
-            "at_hz": _retrim_number(obj, "at_mhz") * 1e6,
-            "x_ohm": _retrim_number(obj, "x_ohm"),
-        }
-        if "r_ohm" in obj:
-            out["r_ohm"] = _retrim_number(obj, "r_ohm")
-        return out
-    raise InputError(
-        "retrim.dip_mhz", "give the measured SWR dip (dip_mhz), or at_mhz with r_ohm and x_ohm"
-    )
-
-
-def _retrim(value: Any, channels: tuple[float, ...]) -> Retrim | None:
-    """``{"frequency_mhz", "form"?, "leg_now_m"?, "dip_mhz"}`` or ``{..., "at_mhz", "r_ohm", "x_ohm"}``."""
-    if value is None:
-        return None
-    obj = require_mapping(value, "retrim")
-    RETRIM.check(obj, "retrim")
-    RETRIM.require(obj, "retrim")
-    target = _retrim_number(obj, "frequency_mhz") * 1e6
-    if all(abs(target - c) > 1.0 for c in channels):
-        raise InputError("retrim.frequency_mhz", "expected one of channels_mhz")
-    form = choice(obj["form"], "retrim.form", RETRIM_FORMS) if "form" in obj else None
-    leg = _retrim_number(obj, "leg_now_m") if "leg_now_m" in obj else None
-    return Retrim(target, form, leg, **_retrim_reading(obj))
-
-
 def parse_plan(spec: Any) -> PlanInput:
     """Decode and check a `fieldkit plan` input (ARCHITECTURE.md), once.
 
@@ -375,7 +304,7 @@ def parse_plan(spec: Any) -> PlanInput:
         require_mapping(obj["sky"], "sky")
     schedule = _schedule(obj.get("schedule"))
     mast_xy, unsafe_words = _usable(site.supports)
-    retrim = _retrim(obj.get("retrim"), channels)
+    retrim = parse_retrim(obj.get("retrim"), channels)
     date = parse_date(obj["date"], "date") if obj.get("date") is not None else None
     limits = parse_site_limits(site.raw, site.supports, rope_length_m=kit.kit.rope_length_m)
     sky = parse_plan_sky(

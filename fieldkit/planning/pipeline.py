@@ -17,6 +17,7 @@ from fieldkit.errors import InputError
 from fieldkit.planning.inputs import PlanInput, parse_plan
 from fieldkit.planning.records import Progress, Report, Workbench
 from fieldkit.planning.result import engine_json, plan_json, summary_json
+from fieldkit.planning.retrim_step import retrim_options
 from fieldkit.planning.steps import (
     MAX_OPTIONS,
     Finishing,
@@ -54,6 +55,7 @@ def _result(inp, bench, sky, screening: Screening, finishing: Finishing, t0: flo
     bench.progress.at("result", 0, 1)
     found, sky = fit_options_to_sky(finishing.options, sky)
     options = rank(found, sky)
+    retrims = retrim_options(options[:MAX_OPTIONS], inp, bench)
     more = [summary_json(o) for o in options[MAX_OPTIONS:]]
     more += [summary_json(c) for c in finishing.rest]
     out = plan_json(
@@ -63,6 +65,7 @@ def _result(inp, bench, sky, screening: Screening, finishing: Finishing, t0: flo
         refused=screening.refused + finishing.refused,
         sky=sky,
         engine=engine_json(bench.engine, bench.times, time.perf_counter() - t0),
+        retrims=retrims,
     )
     bench.progress.at("result", 1, 1)
     return out

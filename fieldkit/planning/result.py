@@ -5,10 +5,10 @@ from __future__ import annotations
 from typing import Any
 
 from fieldkit.fields import Record, arr, nested, num, string
-from fieldkit.planning.inputs import PlanInput, Retrim
+from fieldkit.planning.inputs import PlanInput
 from fieldkit.planning.records import FinishedOption, SkyFit
 from fieldkit.planning.steps import plan_warnings
-from fieldkit.rigging.cut import EngineCounter, retrim
+from fieldkit.rigging.cut import EngineCounter
 from fieldkit.rigging.options import Refused
 from fieldkit.rigging.rigged import RIGGED_OPTION, rigged_json
 from fieldkit.safety.block import SAFETY_BLOCK
@@ -85,26 +85,12 @@ def summary_json(c) -> dict[str, Any]:
     )
 
 
-def _retrim_applies(r: Retrim, o: FinishedOption) -> bool:
-    same_channel = abs(round(o.frequency_hz / 1e6, 6) * 1e6 - r.target_hz) <= 1.0
-    return same_channel and (r.form is None or r.form == o.form)
-
-
-def retrim_json(r: Retrim, o: FinishedOption) -> dict[str, Any]:
-    """How much to cut or add per leg after the measured dip (or analyser reading)."""
-    return retrim(
-        o.rigged.resonance,
-        target_hz=r.target_hz,
-        leg_now_m=r.leg_now_m,
-        dip_hz=r.dip_hz,
-        measured_at_hz=r.at_hz,
-        measured_r_ohm=r.r_ohm,
-        measured_x_ohm=r.x_ohm,
-    )
-
-
 def option_json(
-    o: FinishedOption, inp: PlanInput, sky: SkyFit | None, *, shown: bool
+    o: FinishedOption,
+    inp: PlanInput,
+    sky: SkyFit | None,
+    *,
+    retrim: dict[str, Any] | None = None,
 ) -> dict[str, Any]:
     """One option of the contract: rigging fields, warnings, safety block, sky row, re-trim."""
     out = rigged_json(o.rigged, inp.kit)
@@ -112,8 +98,8 @@ def option_json(
     out["safety"] = o.safety.to_json()
     if sky is not None:
         out["sky"] = o.sky_row if o.sky_row is not None else sky.row(o.frequency_hz)
-    if shown and inp.retrim is not None and _retrim_applies(inp.retrim, o):
-        out["retrim"] = retrim_json(inp.retrim, o)
+    if retrim is not None:
+        out["retrim"] = retrim
     return PLAN_OPTION.written(out)
 
 
@@ -146,12 +132,16 @@ def plan_json(
     refused: tuple[Refused, ...],
     sky: SkyFit | None,
     engine: dict[str, Any],
+    retrims: tuple[dict[str, Any] | None, ...] = (),
 ) -> dict[str, Any]:
-    """The plan result of ARCHITECTURE.md."""
+    """The plan result of ARCHITECTURE.md (``retrims``: each shown option's re-trim block)."""
     return PLAN_RESULT.written(
         {
             "name": inp.name,
-            "options": [option_json(o, inp, sky, shown=True) for o in shown],
+            "options": [
+                option_json(o, inp, sky, retrim=r)
+                for o, r in zip(shown, retrims or (None,) * len(shown), strict=True)
+            ],
             "more": more,
             "refused": [REFUSED.written(r.to_json()) for r in refused],
             "warnings": list(plan_warnings(inp, sky)),

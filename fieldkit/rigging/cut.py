@@ -492,6 +492,8 @@ def retrim(
     verb = "cut" if change < 0 else "add"
     out = {
         "measured_dip_mhz": round(dip_hz / 1e6, 5),
+        "model_resonance_now_mhz": round(f_model_now / 1e6, 5),
+        "correction_factor": round(k, 5),
         "target_mhz": round(target_hz / 1e6, 5),
         "leg_now_m": round(leg_now, 3),
         "new_leg_m": round(new_leg, 3),

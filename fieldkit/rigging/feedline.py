@@ -28,6 +28,14 @@ COAX_CLASSES: dict[str, tuple[float, float, float]] = {
     "rg-213": (0.2, 0.6, 0.15),
     "lmr-400": (0.12, 0.39, 0.10),
 }
+# Velocity factor by class: the wave's speed in the cable over c (makers' nominal figures, from memory;
+# the dielectric sets it: solid polyethylene 0.66, foamed polyethylene 0.78–0.85).
+VELOCITY_FACTORS: dict[str, tuple[float, str]] = {
+    "rg-58": (0.66, "solid polyethylene dielectric, makers' datasheets (from memory)"),
+    "rg-8x": (0.78, "foamed polyethylene; makers give 0.75–0.82 (from memory)"),
+    "rg-213": (0.66, "solid polyethylene dielectric, MIL-C-17 type (from memory)"),
+    "lmr-400": (0.85, "foamed polyethylene, the maker's datasheet (from memory)"),
+}
 
 
 @dataclass(frozen=True)
@@ -39,6 +47,7 @@ class Coax:
     k_lin: float
     mass_kg_per_m: float
     length_m: float
+    velocity_factor: float | None = None  # None: an explicit line that does not give it
 
     def matched_loss_db(self, frequency_hz: float) -> float:
         """Matched loss of the whole run at a frequency [dB]."""
@@ -66,6 +75,14 @@ COAX = Record(
             schema={"additionalProperties": {"type": "number", "minimum": 0, "maximum": 100}},
         ),
         num("mass_kg_per_m", "kg/m", 0, 2),
+        num(
+            "velocity_factor",
+            "",
+            0.5,
+            1.0,
+            description="the wave's speed in the cable over c (default from the class table); "
+            "used to move a reading taken at the radio end to the feedpoint",
+        ),
         string("note"),
     ),
     "the feedline: a class and length, or explicit loss and mass",
@@ -91,7 +108,8 @@ def parse_coax(value: Any, field: str = "kit.coax") -> Coax:
         )
         if "mass_kg_per_m" in obj:
             mass = COAX.number(obj, field, "mass_kg_per_m")
-        return Coax(f"{name} class (nominal)", k1, k2, mass, length)
+        vf = _velocity_factor(obj, field, VELOCITY_FACTORS[name][0])
+        return Coax(f"{name} class (nominal)", k1, k2, mass, length, vf)
     lf = join(field, "loss_db_per_100m_at_mhz")
     if "loss_db_per_100m_at_mhz" not in obj:
         raise InputError(
@@ -120,7 +138,14 @@ def parse_coax(value: Any, field: str = "kit.coax") -> Coax:
             join(field, "mass_kg_per_m"), "required with explicit loss: coax mass in kg/m"
         )
     mass = COAX.number(obj, field, "mass_kg_per_m")
-    return Coax("explicit", k1, k2, mass, length)
+    return Coax("explicit", k1, k2, mass, length, _velocity_factor(obj, field, None))
+
+
+def _velocity_factor(obj: Any, field: str, default: float | None) -> float | None:
+    """The kit's velocity factor, else the class's."""
+    if "velocity_factor" in obj:
+        return COAX.number(obj, field, "velocity_factor")
+    return default
 
 
 def mismatch_loss_db(swr: float) -> float:

@@ -25,8 +25,19 @@ with contextlib.redirect_stdout(io.StringIO()):
 print(json.dumps({"rc": rc, "modules": sorted(sys.modules)}))
 """
 
-# the web service and desktop window, and what PyIRI's package imports (plots, netCDF, tables)
-NEVER = ("flask", "waitress", "webview", "PySide6", "PyIRI", "matplotlib", "pandas", "netCDF4")
+# the web service and desktop window, what PyIRI's package imports (plots, netCDF, tables), and
+# scikit-rf (only for a reading at the radio end or an analyser file)
+NEVER = (
+    "flask",
+    "waitress",
+    "webview",
+    "PySide6",
+    "PyIRI",
+    "matplotlib",
+    "pandas",
+    "netCDF4",
+    "skrf",
+)
 
 
 def _imported(*args: str) -> list[str]:

@@ -1,12 +1,13 @@
 // Wire: the ranked options; for the chosen one the cut instruction in big type (one length to cut per
 // piece and where to mark it, the strings of the plan's cut instruction), the trim steps, the SWR curve
 // from the model of the hung wire, and the re-trim from a measured SWR dip. Cards in that order; a later
-// measured curve belongs in the SWR card ([data-swr]) and an analyser file in the re-trim card.
+// measured curve is drawn in the SWR card ([data-swr]) from the analyser file card (measured.js).
 
 import { noChannelBanner } from "./advice.js";
 import { ApiError } from "./api.js";
 import { clear, h, linePlot } from "./dom.js";
 import { numberField } from "./fields.js";
+import { measuredPoints, sweepCard } from "./measured.js";
 import { cutInstruction, legLengths } from "./shapes.js";
 import { formatMHz, formatTape, pick } from "./units.js";
 import { formWord, groundWord } from "./words.js";
@@ -67,6 +68,7 @@ export function render(app, panel) {
   const swrBox = h("div", { class: "card", "data-swr": "1" });
   panel.append(swrBox);
   panel.append(retrim(app, o));
+  panel.append(sweepCard(app, o, () => drawSwr(app, o, swrBox)));
   drawSwr(app, o, swrBox);
 }
 
@@ -197,17 +199,20 @@ async function drawSwr(app, o, box) {
   const minPt = pts.reduce((a, b) => (b[1] < a[1] ? b : a));
   const ymax = Math.min(10, Math.max(3, Math.ceil(Math.max(...pts.map((p) => p[1])))));
   const measured = st.extra.dipMHz;
+  const sweep = measuredPoints(app, o);
+  const xs = [pts[0][0], pts.at(-1)[0], ...(sweep ? [sweep[0][0], sweep.at(-1)[0]] : [])];
   const plot = linePlot({
     title: `SWR (${o.feedline?.reference_impedance_ohm ?? 50} Ω) at the feedpoint`,
     testid: "swr-plot",
-    x: { min: pts[0][0], max: pts.at(-1)[0], label: "frequency (MHz)" },
+    x: { min: Math.min(...xs), max: Math.max(...xs), label: "frequency (MHz)" },
     y: { min: 1, max: ymax, label: "SWR" },
-    series: [{ points: pts, cls: "series" }],
+    series: [{ points: pts, cls: "series" }, ...(sweep ? [{ points: sweep, cls: "series2 measured-curve" }] : [])],
     hlines: [{ y: 2, cls: "limit", label: "2:1" }],
     vlines: [{ x: f0, cls: "mark", label: `channel ${f0}` }, ...(Number.isFinite(measured) ? [{ x: measured, cls: "measured", label: `measured ${measured}`, row: 1 }] : [])],
     points: [{ x: minPt[0], y: minPt[1], label: `dip ${minPt[0].toFixed(3)}`, cls: "dot" }],
   });
-  clear(box).append(h("h3", { text: "SWR across the channel" }), plot, h("p", { class: "hint", text: `Model of the wire as it hangs, over ${groundWord(st.dep.site.ground)} ground, without the coax. Dip at ${minPt[0].toFixed(3)} MHz, SWR ${minPt[1].toFixed(2)}.` }));
+  const legend = sweep ? " Solid line: the model; dashed line: the analyser file, at the feedpoint." : "";
+  clear(box).append(h("h3", { text: "SWR across the channel" }), plot, h("p", { class: "hint", "data-testid": "swr-legend", text: `Model of the wire as it hangs, over ${groundWord(st.dep.site.ground)} ground, without the coax. Dip at ${minPt[0].toFixed(3)} MHz, SWR ${minPt[1].toFixed(2)}.${legend}` }));
 }
 
 function retrim(app, o) {
@@ -216,7 +221,7 @@ function retrim(app, o) {
   const leg = legs.length ? legs.reduce((a, b) => a + b, 0) / legs.length : NaN;
   const box = h("div", { class: "card", "data-testid": "retrim" });
   box.append(h("h3", { text: "Re-trim after raising" }));
-  box.append(h("p", { class: "hint", text: "Measure the SWR across the channel with a low-power analyser at the feedpoint or through the coax, and type the frequency of the lowest SWR." }));
+  box.append(h("p", { class: "hint", text: "Measure the SWR across the channel with a low-power analyser at the feedpoint or through the coax, and type the frequency of the lowest SWR. Through the coax is fine for the dip: a 50 Ω line leaves the frequency of the lowest SWR where it is (R and X are another matter: for those use an analyser file below)." }));
   const out = h("p", { class: "result big-result", "data-testid": "retrim-result", text: "Type the measured dip: fieldkit says how much to cut off or add to each leg." });
   const show = (dip) => {
     st.extra.dipMHz = dip;
