@@ -249,6 +249,9 @@ def test_the_printed_card_is_one_page(open_app, service, demo_planned):
         option = service.get(f"/api/deployments/{dep}")["result"]["options"][0]
         for sp in option["rigging"]["loads"]["supports"]:
             assert sp["id"] in loads
+        # a load is read at a glance: no "9.60 kg (17.10 kg)" (found by the lead on the demo card)
+        assert not re.search(r"\d\.\d\d (kg|lb)", loads), loads
+        assert " wind. Pull " in loads, loads
         assert "Choke" in page.get_by_test_id("card-spool").inner_text()
         if tag == "worst":
             assert "guys up to" in loads

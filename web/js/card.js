@@ -7,7 +7,7 @@ import { clear, h } from "./dom.js";
 import { qrSvg } from "./qr.js";
 import { readiness } from "./checks.js";
 import { cutInstruction, supportsById } from "./shapes.js";
-import { formatLength, formatMass, formatMHz, formatTape, pick } from "./units.js";
+import { formatLength, formatLoad, formatMHz, formatTape, pick } from "./units.js";
 import { electricalLegs, linkWords, markWords, pieceWords } from "./wire.js";
 import { count, formWord, kindWord, limitSetWord, modeWord } from "./words.js";
 
@@ -124,10 +124,11 @@ function ropeBlock(dep, o, units) {
 export function loadLine(o, units) {
   const L = o.rigging?.loads;
   if (!L?.supports?.length) return "";
-  const each = L.supports.map((sp) => `${sp.id} ${formatMass(sp.load_kg, units)} (${formatMass(sp.in_wind_kg, units)})`).join(", ");
+  const still = L.supports.map((sp) => `${sp.id} ${formatLoad(sp.load_kg, units)}`).join(", ");
+  const wind = L.supports.map((sp) => formatLoad(sp.in_wind_kg, units)).join(" and ");
   const guys = o.rigging?.guy_tension_n ?? [];
   const guyText = guys.length ? `; guys up to ${Math.round(Math.max(...guys))} N each at ${L.guy_wind_m_s} m/s` : "";
-  return `${each} in a ${L.wind_m_s} m/s wind; pull ${Math.round(L.wire_tension_n)} N of the ${L.wire_working_n} N the wire may carry${guyText}.`;
+  return `${still} carried; ${wind} in a ${L.wind_m_s} m/s wind. Pull ${Math.round(L.wire_tension_n)} N of the ${L.wire_working_n} N the wire may carry${guyText}.`;
 }
 
 /** The loads under the trim table (the column with room to spare), or a block of their own. */

@@ -160,6 +160,14 @@ export function formatMass(kg, units = currentUnits()) {
   return units === "imperial" ? `${(kg / KG_PER_LB).toFixed(1)} lb` : `${kg.toFixed(2)} kg`;
 }
 
+/** A load on a support as a person reads it: one decimal under 10, whole kg (or lb) above. */
+export function formatLoad(kg, units = currentUnits()) {
+  if (!Number.isFinite(kg)) return "–";
+  const value = units === "imperial" ? kg / KG_PER_LB : kg;
+  const unit = units === "imperial" ? "lb" : "kg";
+  return `${value < 10 ? value.toFixed(1) : Math.round(value)} ${unit}`;
+}
+
 export function formatMHz(mhz) {
   if (!Number.isFinite(mhz)) return "–";
   return `${+mhz.toFixed(4)} MHz`;
