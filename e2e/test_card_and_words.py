@@ -145,7 +145,7 @@ def test_the_cut_length_is_one_string_in_wire_card_and_checklist(open_app, servi
         page.get_by_test_id("check-pre-power-line-0")
         .locator(".text")
         .inner_text()
-        .startswith("Power line 1 (")
+        .startswith("Power line 1, ")
     )
     go(page, "card")
     assert page.get_by_test_id("card-clearance-0").inner_text().startswith("power line 1:")

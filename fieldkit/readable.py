@@ -125,6 +125,17 @@ def distance_both(distance_m: float) -> str:
     return f"{distance_text(distance_m)} ({feet_text(distance_m)})"
 
 
+def length_both(length_m: float) -> str:
+    """ "13.1 m (43 ft)": a clearance or reach in metres to 0.1 m and whole feet, for the safety texts
+    the service writes once (read in either unit; the decision is made on the metres)."""
+    return f"{length_m:.1f} m ({feet_text(length_m)})"
+
+
+def height_both(height_m: float) -> str:
+    """ "13.5 m (44.3 ft)": a rope or feedpoint height in both units, as the app shows each."""
+    return f"{height_text(height_m)} ({height_feet_text(height_m)})"
+
+
 def height_text(height_m: float) -> str:
     """A rope or feedpoint height in metres to 0.1 m ("13.5 m"), as the app shows it."""
     return f"{height_m:.1f} m"

@@ -10,7 +10,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from fieldkit.readable import distance_text, height_text, power_text, tape_both
+from fieldkit.readable import distance_both, height_both, length_both, power_text, tape_both
 from fieldkit.safety.checked_option import CheckedOption
 from fieldkit.safety.checklists import ChecklistItem, item_id, order_items, template_items
 from fieldkit.safety.duty import Radio
@@ -171,11 +171,11 @@ def _support_items(f: OptionFindings) -> list[ChecklistItem]:
                 "mast-walk-up",
                 mast.id,
                 f"Walk {mast.id} up with every guy attached and one person per guy; nobody within its "
-                f"falling reach ({reach:.1f} m).",
+                f"falling reach ({length_both(reach)}).",
                 title=f"{mast.id} walked up, one person per guy",
             ),
         ]
-    heights = ", ".join(f"{r.id} {height_text(r.rope_height_m)}" for r in f.rig.supports)
+    heights = ", ".join(f"{r.id} {height_both(r.rope_height_m)}" for r in f.rig.supports)
     if heights:
         out.append(
             _item(
@@ -183,7 +183,7 @@ def _support_items(f: OptionFindings) -> list[ChecklistItem]:
                 "rope-heights",
                 None,
                 f"Hoist to the planned rope heights: {heights}; the feedpoint should hang at about "
-                f"{height_text(f.rig.feed_m[2])}.",
+                f"{height_both(f.rig.feed_m[2])}.",
                 title="Hoisted to the planned rope heights",
             )
         )
@@ -201,7 +201,7 @@ def _exposure_items(f: OptionFindings) -> list[ChecklistItem]:
                 "pre-raise",
                 "keep-out",
                 key,
-                f"Keep people {distance_text(d)} from the {name} while transmitting {label} "
+                f"Keep people {distance_both(d)} from the {name} while transmitting {label} "
                 f"(under the {limit}); mark the zone with tape or flags.",
                 title=f"Keep-out zone around the {name} marked",
             )
@@ -213,7 +213,7 @@ def _exposure_items(f: OptionFindings) -> list[ChecklistItem]:
                 "keep-out-clear",
                 None,
                 "Before each transmission: nobody inside the keep-out zone (up to "
-                f"{distance_text(ko.keep_out_m)} from the wire).",
+                f"{distance_both(ko.keep_out_m)} from the wire).",
                 title="Nobody in the keep-out zone when sending",
             )
         )
@@ -245,7 +245,7 @@ def _exposure_items(f: OptionFindings) -> list[ChecklistItem]:
                 "pre-raise",
                 "wire-in-reach",
                 None,
-                f"The wire comes down to {height_text(low)}, within reach of a standing person: fence or flag "
+                f"The wire comes down to {height_both(low)}, within reach of a standing person: fence or flag "
                 "that part, and never transmit while anyone is near it.",
                 title="Low part of the wire fenced or flagged",
             )

@@ -29,7 +29,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from fieldkit.readable import distance_text
+from fieldkit.readable import distance_both, length_both
 from fieldkit.safety.hazards import ASSUMED_LINE_VOLTAGE_KV, PowerLine
 from fieldkit.safety.plan_view import compass_word, densify, distance_to_polyline
 
@@ -117,8 +117,8 @@ def _fall(index: int, name: str, points: np.ndarray, line: PowerLine) -> Clearan
     required = reach + LINE_CLEARANCE_M
     verdict = "clear" if margin[worst] >= -TOLERANCE_M else "TOO CLOSE"
     why = (
-        f"{name} is {d[worst]:.1f} m from the line; falling from {reach:.1f} m it needs "
-        f"{required:.1f} m ({reach:.1f} m + 3.05 m / 10 ft) — {verdict}"
+        f"{name} is {length_both(d[worst])} from the line; falling from {reach:.1f} m it needs "
+        f"{length_both(required)}, {reach:.1f} m + 3.05 m (10 ft) — {verdict}"
     )
     return Clearance(index, name, "fall", float(d[worst]), required, why)
 
@@ -160,8 +160,8 @@ def line_clearances(index: int, line: PowerLine, rig: Rig) -> list[Clearance]:
         verdict = "clear" if d >= required - TOLERANCE_M else "TOO CLOSE: do not throw here"
         why = (
             f"throw line over {s.id} at {s.rope_height_m:.1f} m: the weight can fly about "
-            f"{reach:.1f} m past the branch; the tree is {d:.1f} m from the line, needs {required:.1f} m "
-            f"— {verdict}"
+            f"{reach:.1f} m past the branch; the tree is {length_both(d)} from the line, needs "
+            f"{length_both(required)} — {verdict}"
         )
         out.append(Clearance(index, f"throw line at {s.id}", "throw", d, required, why))
     out.append(_approach(index, line, rig, approach))
@@ -191,7 +191,8 @@ def _approach(index: int, line: PowerLine, rig: Rig, required: float) -> Clearan
     )
     verdict = "clear" if d >= required - TOLERANCE_M else "TOO CLOSE"
     why = (
-        f"people, ropes and wire come within {d:.1f} m of the conductor at {line.height_m:.1f} m; "
+        f"people, ropes and wire come within {length_both(d)} of the conductor at "
+        f"{line.height_m:.1f} m; "
         f"approach distance {required:.2f} m ({volts}; 29 CFR 1910.333(c)(3)) — {verdict}"
     )
     return Clearance(index, "people and handled objects", "approach", d, required, why)
@@ -205,18 +206,19 @@ def line_summary(
     centre = rig.feed_m[:2]
     d_centre = distance_to_polyline(centre[None], line.points_m)[0]
     nearest_pt = _nearest_point(centre, line.points_m)
-    where = f"{distance_text(d_centre)} {compass_word(*(nearest_pt - centre))} of the feedpoint"
+    where = f"{distance_both(d_centre)} {compass_word(*(nearest_pt - centre))} of the feedpoint"
     mine = [c for c in clearances if c.hazard == index]
     bad = [c for c in mine if not c.ok]
     sup = [c for c in mine if c.rule == "fall" and c.object.startswith("support ")]
     label = name or f"power line {index + 1}"
-    head = f"{label[:1].upper()}{label[1:]} ({where})"  # a sentence starts with a capital
+    head = f"{label[:1].upper()}{label[1:]}, {where}"  # a sentence starts with a capital
     if sup:
         near = min(sup, key=lambda c: c.distance_m)
         reach = near.required_m - LINE_CLEARANCE_M
         head += (
-            f": nearest support {near.object.removeprefix('support ')} is {near.distance_m:.1f} m "
-            f"from it and needs {near.required_m:.1f} m (falling reach {reach:.1f} m + 3.05 m)"
+            f": nearest support {near.object.removeprefix('support ')} is "
+            f"{length_both(near.distance_m)} from it and needs {length_both(near.required_m)}: "
+            f"its falling reach of {reach:.1f} m plus 3.05 m (10 ft)"
         )
     if bad:
         return head + " — TOO CLOSE, do not raise: " + "; ".join(c.why for c in bad)

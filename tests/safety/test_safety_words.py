@@ -99,8 +99,8 @@ def test_limit_set_in_words(block):
 def test_each_power_line_goes_by_one_name(block):
     items = {it["id"]: it for it in block["checklist"]}
     # ids stay as they were (acknowledgements follow them): the hazard's index in the site
-    assert items["pre-power-line-1"]["text"].startswith("Power line 1 (")
-    assert items["pre-power-line-2"]["text"].startswith("Ridge line (")
+    assert items["pre-power-line-1"]["text"].startswith("Power line 1, ")
+    assert items["pre-power-line-2"]["text"].startswith("Ridge line, ")
     assert "power line 1" in items["raise-power-line-watch-1"]["text"]
     assert items["pre-power-line-1"]["title"] == "Power line 1: clear"
     names = {c["hazard"]: c["hazard_name"] for c in block["clearances"]}
