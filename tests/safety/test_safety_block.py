@@ -96,7 +96,9 @@ def test_contract_fields(block):
     assert block["raise_ok"] is True and block["reasons"] == []
     # the keep-out item carries the numbers: distance, power and mode
     keep = [it for it in block["checklist"] if it["id"].startswith("pre-keep-out-end")]
-    assert keep and all("400 W data" in it["text"] and " ft) from the " in it["text"] for it in keep)
+    assert keep and all(
+        "400 W data" in it["text"] and " ft) from the " in it["text"] for it in keep
+    )
 
 
 def test_same_input_same_ids(block):
