@@ -30,6 +30,17 @@ class InputError(ValueError):
         return {"error": "invalid input", "field": self.field, "detail": self.detail}
 
 
+class TooLargeError(InputError):
+    """Input over a size limit inside a body the service accepted (HTTP 413, like a body over the
+    service's own limit: the same error word)."""
+
+    def __init__(self, field: str, detail: str) -> None:
+        super().__init__(field, detail, status=413)
+
+    def to_json(self) -> dict[str, Any]:
+        return {"error": "request too large", "field": self.field, "detail": self.detail}
+
+
 def join(prefix: str, name: str | int) -> str:
     """Field path: join('wires', 0) -> 'wires[0]'; join('feed', 'wire') -> 'feed.wire'."""
     if isinstance(name, int):

@@ -23,7 +23,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from fieldkit.errors import InputError
+from fieldkit.errors import InputError, TooLargeError
 
 MAX_POINTS = 2001  # a long analyser sweep (many analysers stop at 1001 or 2001 points)
 MIN_POINTS = 3  # a dip needs a point either side
@@ -63,11 +63,10 @@ def read_sweep(text: str, *, format: str, field: str = "retrim.sweep") -> Sweep:
     """
     size = len(text.encode("utf-8"))
     if size > MAX_TEXT_BYTES:
-        raise InputError(
+        raise TooLargeError(
             f"{field}.text",
             f"the file is {size} bytes; at most {MAX_TEXT_BYTES} bytes ({MAX_POINTS} points) "
             "are read: export a narrower sweep around the channel",
-            status=413,
         )
     sweep = read_touchstone(text, field) if format == "touchstone" else read_csv(text, field)
     _check_frequencies(sweep.frequencies_hz, field)

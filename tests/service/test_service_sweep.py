@@ -37,6 +37,8 @@ def test_too_large_a_sweep_is_413(client):
     text = "#" + " " * MAX_TEXT_BYTES
     response = client.post("/api/plan", json=_body(text))
     assert response.status_code == 413, response.json
+    # the same error word as a body over the service's limit (RFC 9110 §15.5.14: content too large)
+    assert response.json["error"] == "request too large"
     assert response.json["field"] == "retrim.sweep.text"
     assert str(MAX_TEXT_BYTES) in response.json["detail"]
 
