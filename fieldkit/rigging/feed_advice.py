@@ -9,7 +9,7 @@ References
 
 from __future__ import annotations
 
-from fieldkit.rigging.feedline import COAX_CLASSES, Coax, parse_coax, total_loss_db
+from fieldkit.rigging.feedline import COAX_CLASSES, Coax, coax_words, parse_coax, total_loss_db
 from fieldkit.rigging.roots import brent
 
 #: Above 3 dB the line turns half the transmitter's power into heat (10·log 2 = 3.01 dB; the issue's
@@ -43,12 +43,6 @@ def longest_run_m(coax: Coax, *, frequency_hz: float, swr: float, limit_db: floa
     return brent(excess, 1e-6, top, xtol=1e-3)
 
 
-def _coax_words(name: str) -> str:
-    """A coax class as a person reads it ("RG-58 class"), from its code or the line's name."""
-    code = name.removesuffix(" (nominal)").removesuffix(" class")
-    return f"{code.upper()} class" if code in COAX_CLASSES else name
-
-
 def feedline_words(coax: Coax, *, frequency_hz: float, swr: float) -> list[str]:
     """A warning when the run loses more than 3 dB (matched plus mismatch), naming a lower-loss coax
     class and the run of this coax that stays within 3 dB."""
@@ -58,7 +52,7 @@ def feedline_words(coax: Coax, *, frequency_hz: float, swr: float) -> list[str]:
     kept = 100 * 10 ** (-loss / 10)
     head = (
         f"the feedline loses {loss:.1f} dB at {frequency_hz / 1e6:g} MHz ({coax.length_m:g} m of "
-        f"{_coax_words(coax.name)} coax, SWR {swr:.1f}): only {kept:.0f} % of the power reaches "
+        f"{coax_words(coax.name)} coax, SWR {swr:.1f}): only {kept:.0f} % of the power reaches "
         "the antenna"
     )
     better = []
@@ -71,7 +65,5 @@ def feedline_words(coax: Coax, *, frequency_hz: float, swr: float) -> list[str]:
     advice = [f"a run of at most {run:.0f} m of this coax stays within {LOSS_WARNING_DB:g} dB"]
     if better:
         best_loss, best = min(better)
-        advice.insert(
-            0, f"{_coax_words(best)} coax would lose {best_loss:.1f} dB over the same run"
-        )
+        advice.insert(0, f"{coax_words(best)} coax would lose {best_loss:.1f} dB over the same run")
     return [f"{head}: {'; or '.join(advice)}"]

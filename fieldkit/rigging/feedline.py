@@ -89,6 +89,12 @@ COAX = Record(
 )
 
 
+def coax_words(name: str) -> str:
+    """A coax class as a person reads it ("RG-58 class"), from its code or the line's own name."""
+    code = name.removesuffix(" (nominal)").removesuffix(" class")
+    return f"{code.upper()} class" if code in COAX_CLASSES else name
+
+
 def parse_coax(value: Any, field: str = "kit.coax") -> Coax:
     """A coax class name and length, or an explicit line:
     ``{"loss_db_per_100m_at_mhz": {"1": 1.1, "10": 3.9}, "mass_kg_per_m": 0.04, "length_m": 25}``."""
