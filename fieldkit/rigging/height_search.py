@@ -36,6 +36,10 @@ MIN_FINE_STEP_M = 0.5
 # the edges of the range, from the hang alone (no engine): half the 0.5 m a halyard is set to by eye
 BOUND_TOLERANCE_M = 0.25
 MAX_REFINE_STEPS = 4  # parabolic steps after the coarse grid (1–2 are usual)
+# Axis-by-axis passes at most: an inverted-V's apex is swept again when its ends came to rest against
+# the least drop below it (found on a 60 m inverted-V over sea water: the apex stopped at 5.9 m of a
+# 9 m mast with the ends pressed 2 m under it, "higher ends would still help")
+MAX_PASSES = 3
 # a coarse point sits up to about this much below its peak (0.025 wavelength off a peak whose figure
 # falls ~0.3 dB over 0.05 wavelength: measured on the engine's height sweeps, 7.1 MHz, poor ground)
 PEAK_MARGIN_DB = 0.15
@@ -309,67 +313,99 @@ def sweep_layout(
             raise hangs[key]
         return hangs[key]
 
-    points: list[HeightPoint] = []
-    whys: list[str] = []
+    # per axis, the points and the reason of its last pass (an earlier pass held other values)
+    swept: dict[str, tuple[list[HeightPoint], int]] = {}
+    whys: dict[str, str] = {}
     ranges: dict[str, Range] = {}
-    pick = 0
-    for n, axis in enumerate(layout.axes):
+    last_key = layout.axes[-1].key
+    for sweep_pass in range(MAX_PASSES):
+        held = False  # the last axis ended at an edge the other axis set: sweep both again
+        for n, axis in enumerate(layout.axes):
 
-        def setting(v: float, key: str = axis.key) -> dict[str, float]:
-            return layout.setting_for({**values, key: v})
+            def setting(v: float, key: str = axis.key) -> dict[str, float]:
+                return layout.setting_for({**values, key: v})
 
-        def refuses(v: float) -> str | None:
-            try:
-                hung_at(setting(v))
-            except HangError as e:
-                return str(e)
-            return None
-
-        rng = feasible_range(
-            axis.low_m, axis.high_m, refuses, probe_step_m=coarse_step_m(wavelength_m)
-        )
-        if isinstance(rng, str):
-            if n == 0:
-                raise HangError(rng)
-            continue  # a later axis that cannot move keeps its start value
-        if axis.key == "ends":  # ends asked lower than the steepest leg allows hang higher
-            low_hung = hung_at(setting(rng.low_m))
-            rng = Range(
-                max(rng.low_m, min(low_hung.end_heights_m)), rng.high_m, rng.low_why, rng.high_why
-            )
-            rng = Range(min(rng.low_m, rng.high_m), rng.high_m, rng.low_why, rng.high_why)
-        ranges[axis.key] = rng
-
-        def evaluate(v: float, key: str = axis.key) -> HeightPoint | None:
-            s = setting(v, key)
-            try:
-                hung = hung_at(s)
-            except HangError:
+            def refuses(v: float) -> str | None:
+                try:
+                    hung_at(setting(v))
+                except HangError as e:
+                    return str(e)
                 return None
-            if "ends" in s:  # the ends as they hang (a steep leg's are higher than asked)
-                s = {**s, "ends": round(min(hung.end_heights_m), 3)}
-            return point_from_solution(
-                solve(hung),
-                rope_heights_m=s,
-                feedpoint_height_m=hung.feedpoint_height_m,
-                swept_m=v,
-                axis=key,
-            )
 
-        got = search(rng, evaluate, wavelength_m=wavelength_m)
-        if not got:
-            if n == 0:
-                raise HangError(rng.high_why or "cannot hang")
-            continue
-        i, why = recommend(
-            got,
-            ground_name=ground_name,
-            wavelength_m=wavelength_m,
-            top_why=rng.high_why or axis.top_why,
-            best_only=n < len(layout.axes) - 1,
-        )
-        values[axis.key] = got[i].swept_m
-        pick = len(points) + i
-        points.extend(got)
-        whys.append(why)
-    return LayoutSweep(tuple(points), layout.setting_for(values), pick, "; ".join(whys), ranges)
+            rng = feasible_range(
+                axis.low_m, axis.high_m, refuses, probe_step_m=coarse_step_m(wavelength_m)
+            )
+            if isinstance(rng, str):
+                if n == 0 and sweep_pass == 0:
+                    raise HangError(rng)
+                continue  # an axis that cannot move keeps its value
+            if axis.key == "ends":  # ends asked lower than the steepest leg allows hang higher
+                low_hung = hung_at(setting(rng.low_m))
+                rng = Range(
+                    max(rng.low_m, min(low_hung.end_heights_m)),
+                    rng.high_m,
+                    rng.low_why,
+                    rng.high_why,
+                )
+                rng = Range(min(rng.low_m, rng.high_m), rng.high_m, rng.low_why, rng.high_why)
+            ranges[axis.key] = rng
+
+            def evaluate(v: float, key: str = axis.key) -> HeightPoint | None:
+                s = setting(v, key)
+                try:
+                    hung = hung_at(s)
+                except HangError:
+                    return None
+                if "ends" in s:  # the ends as they hang (a steep leg's are higher than asked)
+                    s = {**s, "ends": round(min(hung.end_heights_m), 3)}
+                return point_from_solution(
+                    solve(hung),
+                    rope_heights_m=s,
+                    feedpoint_height_m=hung.feedpoint_height_m,
+                    swept_m=v,
+                    axis=key,
+                )
+
+            got = search(rng, evaluate, wavelength_m=wavelength_m)
+            if not got:
+                if n == 0 and sweep_pass == 0:
+                    raise HangError(rng.high_why or "cannot hang")
+                continue
+            last = n == len(layout.axes) - 1
+            i, why = recommend(
+                got,
+                ground_name=ground_name,
+                wavelength_m=wavelength_m,
+                top_why=rng.high_why or axis.top_why,
+                best_only=not last,
+            )
+            values[axis.key] = got[i].swept_m
+            swept[axis.key] = (got, i)
+            last_key = axis.key
+            whys[axis.key] = why
+            held = last and n > 0 and _held_by_other_axis(got, i, rng, values, wavelength_m)
+        if not held:
+            break
+    points: list[HeightPoint] = []
+    pick = 0
+    for a in layout.axes:  # axis after axis, as the points were first swept
+        if a.key in swept:
+            got, i = swept[a.key]
+            if a.key == last_key:
+                pick = len(points) + i
+            points.extend(got)
+    why = "; ".join(whys[a.key] for a in layout.axes if a.key in whys)
+    return LayoutSweep(tuple(points), layout.setting_for(values), pick, why, ranges)
+
+
+def _held_by_other_axis(got, i: int, rng: Range, values: dict[str, float], wavelength_m) -> bool:
+    """An inverted-V's ends chose the top of their range, and that top is the least drop below the
+    apex: the apex is then swept again with the ends where they went, and the ends after it."""
+    from fieldkit.rigging.vee import INVERTED_V_MIN_DROP_M  # vee builds on this module
+
+    if "apex" not in values:
+        return False
+    at_top = got[i].swept_m >= rng.high_m - fine_step_m(wavelength_m) / 2
+    best = max(range(len(got)), key=lambda k: got[k].nvis_dbi)
+    under_apex = rng.high_m >= values["apex"] - INVERTED_V_MIN_DROP_M - BOUND_TOLERANCE_M
+    return at_top and best == i and under_apex
