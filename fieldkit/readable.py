@@ -37,6 +37,14 @@ def _half_up(x: float) -> int:
     return math.floor(x + 0.5 + _EPS)
 
 
+def fixed(value: float, digits: int) -> str:
+    """``value`` with ``digits`` decimals, halves up: the app's ``fixed`` in web/js/units.js, so a
+    height both write reads the same (Python's format rounds 9.25 to "9.2", the app to "9.3")."""
+    n = _half_up(abs(value) * 10**digits)
+    text = f"{n // 10**digits}.{n % 10**digits:0{digits}d}" if digits > 0 else str(n)
+    return f"-{text}" if value < 0 and n != 0 else text
+
+
 def tape_cm(length_m: float) -> int:
     """A length rounded to the whole centimetre, as a tape measure reads it [cm]."""
     return _half_up(length_m * 100.0)
@@ -131,16 +139,22 @@ def length_both(length_m: float) -> str:
     return f"{length_m:.1f} m ({feet_text(length_m)})"
 
 
+#: Heights travel in the plan's JSON to the centimetre; the app converts that value to feet, so the
+#: texts do too (9.2812 m read directly would say 30.5 ft where the app, from 9.28 m, says 30.4 ft).
+JSON_HEIGHT_DECIMALS = 2
+
+
 def height_both(height_m: float) -> str:
     """ "13.5 m (44.3 ft)": a rope or feedpoint height in both units, as the app shows each."""
-    return f"{height_text(height_m)} ({height_feet_text(height_m)})"
+    h = round(height_m, JSON_HEIGHT_DECIMALS)
+    return f"{height_text(h)} ({height_feet_text(h)})"
 
 
 def height_text(height_m: float) -> str:
     """A rope or feedpoint height in metres to 0.1 m ("13.5 m"), as the app shows it."""
-    return f"{height_m:.1f} m"
+    return f"{fixed(height_m, 1)} m"
 
 
 def height_feet_text(height_m: float) -> str:
     """The same height in feet to 0.1 ft ("44.3 ft"), as the app shows it in feet."""
-    return f"{height_m / FOOT_M:.1f} ft"
+    return f"{fixed(height_m / FOOT_M, 1)} ft"

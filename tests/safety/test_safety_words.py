@@ -126,3 +126,20 @@ def test_every_item_has_a_short_title(block):
     for it in block["checklist"]:
         assert it.get("title"), it["id"]
         assert len(it["title"]) <= 50, it["title"]
+
+
+def test_a_height_in_feet_is_the_one_the_app_shows():
+    # found by the lead: the checklist said 30.5 ft where the Mast section said 30.4 ft for a 9.2812 m
+    # feedpoint (the app converts the JSON's 9.28 m); international foot 0.3048 m (exact, 1959)
+    from fieldkit.readable import height_both
+
+    assert height_both(9.2812) == "9.3 m (30.4 ft)"
+    assert round(9.28 / 0.3048, 1) == 30.4
+
+
+def test_heights_round_halves_up_like_the_app():
+    # web/js/units.js fixed(): floor(x·10 + 0.5 + 1e-9); Python's format would give "9.2" for 9.25
+    from fieldkit.readable import fixed, height_text
+
+    assert height_text(9.25) == "9.3 m" and height_text(9.35) == "9.4 m"
+    assert fixed(-0.04, 1) == "0.0" and fixed(12.345, 2) == "12.35" and fixed(3.0, 0) == "3"
