@@ -15,6 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from fieldkit.errors import InputError
+from fieldkit.readable import length_both
 from fieldkit.rigging.heights import MIN_END_HEIGHT_M
 from fieldkit.rigging.mast import GUY_RADIUS_FRACTION, Mast
 from fieldkit.rigging.supports import Support
@@ -179,8 +180,8 @@ def mast_position(
         words = f"stand {mast.id} at the given point ({p[0]:.1f}, {p[1]:.1f}) m"
         if who is not None and free < guy:
             words += (
-                f"; it is {free:.1f} m from {who.id}, inside its {guy:.1f} m guy circle: run that "
-                "guy clear of the tree"
+                f"; it is {length_both(free)} from {who.id}, inside its {length_both(guy)} guy "
+                f"circle at its full {mast.height_m:g} m: run that guy clear of the tree"
             )
         return p, words
     if wanted_xy is None:
@@ -216,8 +217,9 @@ def mast_position(
     words = f"stand {mast.id} at ({p[0]:.1f}, {p[1]:.1f}) m"
     if who is not None:
         words += (
-            f", {free:.1f} m from {who.id}: no point here clears every trunk by the "
-            f"{guy:.1f} m guy circle, so run the guys clear of the trees"
+            f", {length_both(free)} from {who.id}: no point here clears every trunk by the "
+            f"{length_both(guy)} guy circle at its full {mast.height_m:g} m, so run the guys clear "
+            "of the trees"
         )
     return p, words
 
@@ -226,9 +228,13 @@ def _placed_words(mast: Mast, p: np.ndarray, limits: SiteLimits, guy: float, mov
     free, who = _clearance(p, limits.trunks)
     words = f"stand {mast.id} at ({p[0]:.1f}, {p[1]:.1f}) m"
     if who is not None:
-        words += f", {free:.1f} m from {who.id}'s trunk (its guys need {guy:.1f} m all round)"
+        words += (
+            f", {length_both(free)} from {who.id}'s trunk (at its full {mast.height_m:g} m its "
+            f"guys need {length_both(guy)} all round)"
+        )
         if moved > 0:
             words += (
-                f", {moved:.1f} m off the middle of the supports so that the guys clear the trunks"
+                f", {length_both(moved)} off the middle of the supports so that the guys clear "
+                "the trunks"
             )
     return words

@@ -16,6 +16,7 @@ from typing import Any
 import numpy as np
 
 from fieldkit.constants import SPEED_OF_LIGHT_M_S
+from fieldkit.readable import feet_text
 from fieldkit.rigging.catenary import HangError
 from fieldkit.rigging.cut import (
     CURVE_OFFSETS,
@@ -380,9 +381,10 @@ def _rope_words(layout: Layout, hung: HungDipole, chosen: dict[str, float], kit:
         return []
     shown = f"{need:.1f}" if need - kit.rope_length_m < 2.0 else f"{need:.0f}"
     return [
-        f"rope short: this hang needs about {shown} m of rope "
-        f"({'halyards' if layout.mast is None else 'stake ropes'}), the kit has {kit.rope_length_m:g} m: "
-        "use the throw lines for the tie-offs or add rope"
+        f"rope short: this hang needs about {shown} m ({feet_text(need)}) of rope "
+        f"({'halyards' if layout.mast is None else 'stake ropes'}), the kit has "
+        f"{kit.rope_length_m:g} m ({feet_text(kit.rope_length_m)}): use the throw lines for the "
+        "tie-offs or add rope"
     ]
 
 
