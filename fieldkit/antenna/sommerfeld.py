@@ -468,13 +468,34 @@ def lossy_ground_matrices(meshes, ground: Ground, frequency_hz: float) -> np.nda
     return -(c.T @ t @ c) / (4 * math.pi * 1j * omega * EPS0)
 
 
+#: Gauss points per segment for the reflected near field, fewest first, and the quadrature error
+#: allowed: the images lie at least (z_obs + z_src) from a point, so the kernel along a segment of
+#: length L is smooth on that scale and n-point Gauss–Legendre errs by about (L / 2d)^(2n)
+#: (Abramowitz & Stegun 25.4.30, for an integrand analytic within d of the segment; from memory)
+REFLECTED_GAUSS_POINTS = (3, 4, 6, 8)
+REFLECTED_QUADRATURE_ERROR = 1e-10
+
+
+def _reflected_gauss_points(mesh, points: np.ndarray) -> int:
+    """The fewest Gauss points per segment whose error stays under REFLECTED_QUADRATURE_ERROR."""
+    pts = np.asarray(points, dtype=float)
+    lowest = float(pts[:, 2].min()) + float(np.minimum(mesh.start[:, 2], mesh.end[:, 2]).min())
+    if lowest <= 0:
+        return REFLECTED_GAUSS_POINTS[-1]
+    ratio = float(mesh.length.max()) / (2 * lowest)
+    for n in REFLECTED_GAUSS_POINTS:
+        if ratio ** (2 * n) < REFLECTED_QUADRATURE_ERROR:
+            return n
+    return REFLECTED_GAUSS_POINTS[-1]
+
+
 def reflected_near_field(sol, points: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Reflected E [V/m] and H [A/m] (RMS, complex) at points from a lossy-ground solution."""
     mesh = sol.mesh
     im = _images_for(sol.ground, sol.frequency_hz)
     omega = 2 * math.pi * sol.frequency_hz
     i_start, i_end = sol.segment_currents_a
-    u, w = gauss01(8)
+    u, w = gauss01(_reflected_gauss_points(mesh, points))
     src = (
         mesh.start[:, None, :]
         + u[None, :, None] * (mesh.length[:, None, None] * mesh.tangent[:, None, :])
