@@ -3,7 +3,7 @@
 // when the network fails. Only same-origin GET requests are handled; writes always go to the network
 // (pending checklist ticks are kept by the app itself, see js/queue.js).
 
-const VERSION = "fieldkit-shell-v4";
+const VERSION = "fieldkit-shell-v5";
 const API_CACHE = "fieldkit-api-v1";
 const SHELL = [
   "./",

@@ -84,7 +84,6 @@ class SupportLoad:
 
     def to_json(self) -> dict[str, Any]:
         return {
-            "id": self.id,
             "carries": self.what,
             "horizontal_n": round(self.horizontal_n, 1),
             "vertical_n": round(self.vertical_n, 1),
@@ -435,10 +434,16 @@ def guy_words(loads: Loads, mast: Mast | None, st: Strength) -> list[str]:
     ]
 
 
-def loads_json(loads: Loads, st: Strength) -> dict[str, Any]:
-    """The option's ``rigging.loads`` block and the figures it was checked against."""
+def loads_json(loads: Loads) -> dict[str, Any]:
+    """The option's ``rigging.loads``: per support id (as ``rigging.supports``), what it carries,
+    the horizontal and vertical pull in still air [N], and the resultant in the checked wind."""
+    return {s.id: s.to_json() for s in loads.supports}
+
+
+def strength_json(loads: Loads, st: Strength) -> dict[str, Any]:
+    """The option's ``rigging.strength``: the wire's and ropes' pull against what they may carry,
+    the wind and ice they were checked in, and the guys' figures."""
     out: dict[str, Any] = {
-        "supports": [s.to_json() for s in loads.supports],
         "wire_tension_n": round(loads.wire_tension_n, 1),
         "wire_tension_in_wind_n": round(loads.wire_weather_n, 1),
         "wire_breaking_n": round(st.wire.breaking_n, 0),

@@ -22,7 +22,7 @@ from fieldkit.rigging.heights import HeightPoint, sweep_json
 from fieldkit.rigging.hung import HungDipole
 from fieldkit.rigging.instruction import CutInstruction, cut_instruction
 from fieldkit.rigging.layouts import Layout
-from fieldkit.rigging.loads import Loads, loads_json
+from fieldkit.rigging.loads import Loads, loads_json, strength_json
 from fieldkit.rigging.mast import MastLoad
 from fieldkit.rigging.supports import HALYARD_TIE_OFF_M, halyard_rope_m
 from fieldkit.rigging.vee import stakes
@@ -280,7 +280,8 @@ def rigging_json(r: RiggedOption, kit) -> dict[str, Any]:
     out = {**out, **extra}
     if r.loads is not None and kit.strength is not None:
         out["guy_tension_n"] = [round(t, 1) for t in r.loads.guys_n]
-        out["loads"] = loads_json(r.loads, kit.strength)
+        out["loads"] = loads_json(r.loads)
+        out["strength"] = strength_json(r.loads, kit.strength)
     return out
 
 

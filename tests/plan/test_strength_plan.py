@@ -48,9 +48,10 @@ def _with(spec, **kit):
 
 def test_the_demo_plans_without_strength_warnings_and_shows_its_loads(demo):
     o = _first(demo)
-    loads = o["rigging"]["loads"]
+    # the contract (ARCHITECTURE.md, second round): rigging.loads per support, H and V pull in N
+    by_id = o["rigging"]["loads"]
+    strength = o["rigging"]["strength"]
     assert not [w for w in o["warnings"] if "breaks" in w or "carries" in w or "feedline" in w]
-    by_id = {s["id"]: s for s in loads["supports"]}
     assert set(by_id) == set(o["supports_used"])
     for sid, s in by_id.items():
         sup = o["rigging"]["supports"][sid]
@@ -59,7 +60,7 @@ def test_the_demo_plans_without_strength_warnings_and_shows_its_loads(demo):
             sup["branch_load_n"], abs=0.2
         )
         assert s["in_wind_n"] > sup["branch_load_n"]  # a gale adds load
-    assert loads["wind_m_s"] == 17.2 and o["rigging"]["guy_tension_n"] == []
+    assert strength["wind_m_s"] == 17.2 and o["rigging"]["guy_tension_n"] == []
 
 
 def test_1_6_mm_copper_at_800_n_warns_the_wire_rope_and_branches(demo):
@@ -68,12 +69,11 @@ def test_1_6_mm_copper_at_800_n_warns_the_wire_rope_and_branches(demo):
     # soft-drawn copper of 1.6 mm breaks at roughly 0.45 kN (issue 14, from memory)
     assert "planned pull of 800 N breaks the wire" in words and "442 N" in words
     assert "rope's working load" in words
-    loads = o["rigging"]["loads"]
-    for s in loads["supports"]:
+    for sid, s in o["rigging"]["loads"].items():
         # at 800 N each branch carries ~1.1–1.25 kN (issue 14: 1248 N on its site)
         assert 1000 < math.hypot(s["horizontal_n"], s["vertical_n"]) < 1300
-        assert f"the branch of {s['id']} carries" in words
-    assert loads["wire_breaking_n"] == pytest.approx(442, abs=1)
+        assert f"the branch of {sid} carries" in words
+    assert o["rigging"]["strength"]["wire_breaking_n"] == pytest.approx(442, abs=1)
 
 
 def test_hard_drawn_wire_and_a_weak_link(demo):
@@ -104,7 +104,7 @@ def test_a_branch_apex_at_2000_n_is_named_with_its_load(one_tree):
     spec = _with(one_tree, tension_n=2000, masts=[])
     o = _first(spec)
     assert o["form"] == "inverted-v" and o["mast"] is None
-    (apex,) = o["rigging"]["loads"]["supports"]
+    (apex,) = o["rigging"]["loads"].values()
     top_kg = o["rigging"]["top_load_kg"]
     # issue 14: ~188 kg on the branch; here 184 kg of apex load, and the halyard's downhaul as much
     # again (statics: a halyard over the branch carries the apex on both of its parts)
@@ -121,7 +121,7 @@ def test_mast_guys_by_statics_and_the_makers_wind_rating(one_tree):
     o = plan(spec)["options"]
     o = next(x for x in o if x["mast"] is not None)
     guys = o["rigging"]["guy_tension_n"]
-    loads = o["rigging"]["loads"]
+    loads = o["rigging"]["strength"]
     assert len(guys) == 3 and min(guys) > 0  # today: guy_tension_n 0
     assert loads["guy_wind_m_s"] == 12.5  # the maker's rating, below the 17.2 m/s gale
     want = guy_tensions_n(head_force_n=loads["guy_head_force_n"], guys=3)
@@ -136,10 +136,10 @@ def test_mast_guys_by_statics_and_the_makers_wind_rating(one_tree):
 
 
 def test_wind_and_ice_raise_the_tension(demo):
-    calm = _first(_with(demo, design_wind_m_s=0))["rigging"]["loads"]
+    calm = _first(_with(demo, design_wind_m_s=0))["rigging"]["strength"]
     assert calm["wire_tension_in_wind_n"] == pytest.approx(calm["wire_tension_n"], abs=0.1)
     iced = _first(_with(demo, design_wind_m_s=20, ice_mm=10))
-    loads = iced["rigging"]["loads"]
+    loads = iced["rigging"]["strength"]
     assert loads["ice_mm"] == 10 and loads["wind_from"] == "the kit"
     assert loads["wire_tension_in_wind_n"] > 2 * loads["wire_tension_n"]
 
@@ -149,7 +149,7 @@ def test_a_wind_beyond_the_wire_names_the_pull_that_holds(demo):
     (words,) = [w for w in o["warnings"] if w.startswith("in a 30 m/s wind the tied-off wire")]
     most = float(words.split("pull no more than ")[1].split(" N")[0])
     assert 20 < most < 60  # the demo pulls 60 N
-    again = _first(_with(demo, design_wind_m_s=30, tension_n=most))["rigging"]["loads"]
+    again = _first(_with(demo, design_wind_m_s=30, tension_n=most))["rigging"]["strength"]
     # at that pull the wire in the same wind stays within what it may carry (shown to 1 N)
     assert again["wire_tension_in_wind_n"] <= again["wire_working_n"] + 1.0
     stormy = _first(_with(demo, design_wind_m_s=50))
@@ -214,7 +214,7 @@ def test_a_mast_or_pole_at_an_end_is_not_called_a_branch(demo):
     for sp in s["site"]["supports"]:
         sp["kind"] = "pole" if sp["id"] == "T1" else sp.get("kind", "tree")
     o = _first(s)
-    carries = {sp["id"]: sp["carries"] for sp in o["rigging"]["loads"]["supports"]}
+    carries = {sid: sp["carries"] for sid, sp in o["rigging"]["loads"].items()}
     assert carries["T1"] == "pole top"
     assert not any("branch of T1" in w for w in o["warnings"])
     # an end pole needs a back guy against the span's pull (common practice)

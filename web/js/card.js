@@ -119,16 +119,17 @@ function ropeBlock(dep, o, units) {
   return block("fc-ropes", "Rope heights", [rows(list)]);
 }
 
-/** One line under the rope heights: what each support carries (the plan's rigging.loads), still and in
+/** One line under the rope heights: what each support carries (the plan's rigging.loads and rigging.strength), still and in
  * the wind the plan checked, the pull against what the wire may carry, and the guys. */
 export function loadLine(o, units) {
-  const L = o.rigging?.loads;
-  if (!L?.supports?.length) return "";
-  const still = L.supports.map((sp) => `${sp.id} ${formatLoad(sp.load_kg, units)}`).join(", ");
-  const wind = L.supports.map((sp) => formatLoad(sp.in_wind_kg, units)).join(" and ");
+  const each = Object.entries(o.rigging?.loads ?? {});
+  const S = o.rigging?.strength;
+  if (!each.length || !S) return "";
+  const still = each.map(([id, sp]) => `${id} ${formatLoad(sp.load_kg, units)}`).join(", ");
+  const wind = each.map(([, sp]) => formatLoad(sp.in_wind_kg, units)).join(" and ");
   const guys = o.rigging?.guy_tension_n ?? [];
-  const guyText = guys.length ? `; guys up to ${Math.round(Math.max(...guys))} N each at ${L.guy_wind_m_s} m/s` : "";
-  return `${still} carried; ${wind} in a ${L.wind_m_s} m/s wind. Pull ${Math.round(L.wire_tension_n)} N of the ${L.wire_working_n} N the wire may carry${guyText}.`;
+  const guyText = guys.length ? `; guys up to ${Math.round(Math.max(...guys))} N each at ${S.guy_wind_m_s} m/s` : "";
+  return `${still} carried; ${wind} in a ${S.wind_m_s} m/s wind. Pull ${Math.round(S.wire_tension_n)} N of the ${S.wire_working_n} N the wire may carry${guyText}.`;
 }
 
 /** The loads under the trim table (the column with room to spare), or a block of their own. */

@@ -175,7 +175,7 @@ function mastBlock(o, units) {
   add("Feedpoint on the mast at", formatLength(mm.height_m, { units, digits: 1 }));
   add("Top load", `${formatMass(mm.top_load_kg, units)} of ${formatMass(mm.rating_kg, units)} rated`);
   add("Guys", `${mm.guys}, staked ${formatLength(mm.guy_radius_m, { units, digits: 1 })} from the foot`);
-  const wind = o.rigging?.loads?.guy_wind_m_s;
+  const wind = o.rigging?.strength?.guy_wind_m_s;
   if (mm.guy_tension_n) add("Guy tension", `up to ${mm.guy_tension_n.toFixed(0)} N each${Number.isFinite(wind) ? ` in a ${wind} m/s wind` : ""}`);
   if (Number.isFinite(mm.wind_limit_m_s)) add("Wind rating", `${mm.wind_limit_m_s} m/s (the maker's)`);
   box.append(dl, h("p", { class: mm.ok ? "ok" : "warn", text: mm.why }));
