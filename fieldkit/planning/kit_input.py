@@ -200,7 +200,7 @@ def _strength(
         rope_diameter_m=rope.diameter_mm * 1e-3,
         weak_link_n=_optional(kit, "weak_link_n"),
         weather=weather,
-        coax_diameter_m=coax_diameter_m(coax.name),
+        coax_diameter_m=coax_diameter_m(coax.class_code),
         guy_ropes={m.id: _guy_rope(m, rope, kit_rope) for m in masts},
         rope_stiffness_n=rope_stiffness_n(diameter_mm=rope.diameter_mm),
         mast_wind_m_s={

@@ -9,7 +9,9 @@ References
 
 from __future__ import annotations
 
-from fieldkit.rigging.feedline import COAX_CLASSES, Coax, coax_words, parse_coax, total_loss_db
+from dataclasses import replace
+
+from fieldkit.rigging.feedline import COAX_CLASSES, Coax, parse_coax, total_loss_db
 from fieldkit.rigging.roots import brent
 
 #: Above 3 dB the line turns half the transmitter's power into heat (10·log 2 = 3.01 dB; the issue's
@@ -34,7 +36,7 @@ def longest_run_m(coax: Coax, *, frequency_hz: float, swr: float, limit_db: floa
     """The run of this coax whose total loss at this SWR is ``limit_db`` [m]."""
 
     def excess(length_m: float) -> float:
-        run = Coax(coax.name, coax.k_sqrt, coax.k_lin, coax.mass_kg_per_m, length_m)
+        run = replace(coax, length_m=length_m)
         return _loss_db(run, frequency_hz=frequency_hz, swr=swr) - limit_db
 
     top = coax.length_m
@@ -52,7 +54,7 @@ def feedline_words(coax: Coax, *, frequency_hz: float, swr: float) -> list[str]:
     kept = 100 * 10 ** (-loss / 10)
     head = (
         f"the feedline loses {loss:.1f} dB at {frequency_hz / 1e6:g} MHz ({coax.length_m:g} m of "
-        f"{coax_words(coax.name)} coax, SWR {swr:.1f}): only {kept:.0f} % of the power reaches "
+        f"{coax.words} coax, SWR {swr:.1f}): only {kept:.0f} % of the power reaches "
         "the antenna"
     )
     better = []
@@ -60,10 +62,10 @@ def feedline_words(coax: Coax, *, frequency_hz: float, swr: float) -> list[str]:
         other = parse_coax({"class": name, "length_m": coax.length_m})
         other_loss = _loss_db(other, frequency_hz=frequency_hz, swr=swr)
         if other_loss < loss - 0.05:
-            better.append((other_loss, name))
+            better.append((other_loss, other.words))
     run = longest_run_m(coax, frequency_hz=frequency_hz, swr=swr, limit_db=LOSS_WARNING_DB)
     advice = [f"a run of at most {run:.0f} m of this coax stays within {LOSS_WARNING_DB:g} dB"]
     if better:
         best_loss, best = min(better)
-        advice.insert(0, f"{coax_words(best)} coax would lose {best_loss:.1f} dB over the same run")
+        advice.insert(0, f"{best} coax would lose {best_loss:.1f} dB over the same run")
     return [f"{head}: {'; or '.join(advice)}"]

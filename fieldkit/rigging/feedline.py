@@ -48,6 +48,12 @@ class Coax:
     mass_kg_per_m: float
     length_m: float
     velocity_factor: float | None = None  # None: an explicit line that does not give it
+    class_code: str | None = None  # the class of COAX_CLASSES ("rg-58"); None: an explicit line
+
+    @property
+    def words(self) -> str:
+        """The coax as a person reads it: "RG-58 class", or an explicit line's name."""
+        return f"{self.class_code.upper()} class" if self.class_code else self.name
 
     def matched_loss_db(self, frequency_hz: float) -> float:
         """Matched loss of the whole run at a frequency [dB]."""
@@ -89,12 +95,6 @@ COAX = Record(
 )
 
 
-def coax_words(name: str) -> str:
-    """A coax class as a person reads it ("RG-58 class"), from its code or the line's own name."""
-    code = name.removesuffix(" (nominal)").removesuffix(" class")
-    return f"{code.upper()} class" if code in COAX_CLASSES else name
-
-
 def parse_coax(value: Any, field: str = "kit.coax") -> Coax:
     """A coax class name and length, or an explicit line:
     ``{"loss_db_per_100m_at_mhz": {"1": 1.1, "10": 3.9}, "mass_kg_per_m": 0.04, "length_m": 25}``."""
@@ -115,7 +115,7 @@ def parse_coax(value: Any, field: str = "kit.coax") -> Coax:
         if "mass_kg_per_m" in obj:
             mass = COAX.number(obj, field, "mass_kg_per_m")
         vf = _velocity_factor(obj, field, VELOCITY_FACTORS[name][0])
-        return Coax(f"{name} class (nominal)", k1, k2, mass, length, vf)
+        return Coax(f"{name} class (nominal)", k1, k2, mass, length, vf, class_code=name)
     lf = join(field, "loss_db_per_100m_at_mhz")
     if "loss_db_per_100m_at_mhz" not in obj:
         raise InputError(

@@ -16,7 +16,7 @@ import numpy as np
 
 from fieldkit.rigging.analyser import Sweep
 from fieldkit.rigging.cut import REFERENCE_IMPEDANCE_OHM, retrim
-from fieldkit.rigging.feedline import Coax, coax_words
+from fieldkit.rigging.feedline import Coax
 
 NEAR_RESONANCE = 0.2  # |X| ≤ 0.2 R: R within ~1 % of its value at X = 0 (a dipole's R moves slowly)
 CURVE_POINTS = 401  # the measured curve as drawn: a phone screen is narrower than 401 px
@@ -181,7 +181,7 @@ def _passive(z_feed: np.ndarray, f: np.ndarray, coax: Coax, field: str) -> None:
         raise InputError(
             field,
             f"at {f[i] / 1e6:g} MHz this reading cannot have come through {coax.length_m:g} m of "
-            f"{coax_words(coax.name)} coax with {coax.matched_loss_db(f[i]):.2f} dB of loss: at the feedpoint it "
+            f"{coax.words} coax with {coax.matched_loss_db(f[i]):.2f} dB of loss: at the feedpoint it "
             "would have R < 0. Check kit.coax (class, length, velocity factor), or whether it "
             "was taken at the feedpoint",
         )

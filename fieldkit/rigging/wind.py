@@ -59,9 +59,9 @@ def ice_weight_n_per_m(*, diameter_m: float, ice_m: float) -> float:
     return ICE_DENSITY_KG_M3 * math.pi * ((a + ice_m) ** 2 - a * a) * STANDARD_GRAVITY_M_S2
 
 
-def coax_diameter_m(coax_name: str) -> float:
-    """The outer diameter of a coax class by its plan name ("rg-58 class (nominal)") [m]."""
-    return COAX_DIAMETER_M.get(coax_name.split(" ")[0], WIDEST_COAX_M)
+def coax_diameter_m(class_code: str | None) -> float:
+    """The outer diameter of a coax class ("rg-58"); the widest class for an explicit line [m]."""
+    return COAX_DIAMETER_M.get(class_code or "", WIDEST_COAX_M)
 
 
 @dataclass(frozen=True)
