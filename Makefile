@@ -4,13 +4,16 @@ PYTHON ?= python3
 VENV := .venv
 PY := $(VENV)/bin/python
 PIP := $(PY) -m pip
-# Debian packages the browser and desktop-window tests need (see ../shared/RECIPES.md)
-TEST_DEBS := chromium poppler-utils xvfb xauth libxcb-icccm4 libxcb-keysyms1 libxcb-cursor0 libxkbcommon-x11-0 libnss3 libegl1 libgl1
+# Debian packages the tests need: the C compiler for the engine kernel, the browser and desktop window (see ../shared/RECIPES.md)
+TEST_DEBS := gcc libc6-dev chromium poppler-utils xvfb xauth libxcb-icccm4 libxcb-keysyms1 libxcb-cursor0 libxkbcommon-x11-0 libnss3 libegl1 libgl1
 PYTEST_ARGS ?=
 
 .PHONY: run serve test lint format unit e2e bench clean system-test-deps _apt
 
-$(VENV)/.base: pyproject.toml
+# the package build compiles the engine's C kernel (hatch_build.py): rebuilt when its source changes
+NATIVE := hatch_build.py fieldkit/antenna/native/build.py fieldkit/antenna/native/image_kernels.c
+
+$(VENV)/.base: pyproject.toml $(NATIVE)
 	@$(PYTHON) -c 'import sys; sys.exit(sys.version_info < (3, 11))' || \
 	  { echo "fieldkit needs Python 3.11 or newer (found: $$($(PYTHON) --version))"; exit 1; }
 	@$(PYTHON) -m venv --help >/dev/null 2>&1 || $(MAKE) --no-print-directory _apt DEBS=python3-venv
@@ -68,4 +71,4 @@ bench: $(VENV)/.test
 	@for b in benchmarks/bench_*.py; do echo "== $$b"; $(PY) $$b || exit 1; done
 
 clean:
-	rm -rf $(VENV) .pytest_cache .ruff_cache e2e/artifacts
+	rm -rf $(VENV) .pytest_cache .ruff_cache e2e/artifacts fieldkit/antenna/native/_image_kernels.so

@@ -9,6 +9,7 @@ process. Measured in the same run, each as whole processes (start-up included), 
 3. ``fieldkit plan assets/demo/larch-basin-plan.json`` (cold process)       target ≤ 1.0 × NEC-2
    and the warm plan (a process that has planned the demo once, as the running service has)
                                                                            target ≤ 0.5 × NEC-2
+   both also with the engine's numpy kernels (``FIELDKIT_NUMPY_KERNELS=1``: no compiled kernel)
 4. the peak RSS of the cold demo plan process                              target ≤ 150 MB
 
 "Cold" is a new process with fieldkit's cache directory already filled (the compact IRI tables
@@ -135,14 +136,17 @@ def main() -> None:
             "plan": run(plan, env=env),  # fits the plan's other frequencies
         }
         run(nec, env=env)  # warm-up of the reference, untimed
-        rounds: dict[str, list[dict]] = {k: [] for k in ("nec", "sweep", "sky", "plan", "warm")}
+        keys = ("nec", "sweep", "sky", "plan", "warm", "plan_np", "warm_np")
+        rounds: dict[str, list[dict]] = {k: [] for k in keys}
+        env_np = {**env, "FIELDKIT_NUMPY_KERNELS": "1"}  # the engine's numpy reference kernels
         for _ in range(args.repeat):  # alternate, so that machine load hits every side alike
             rounds["nec"].append(run(nec, env=env))
             rounds["sweep"].append(run(model, stdin=sweep, env=env))
             rounds["sky"].append(run(sky, env=env))
             rounds["plan"].append(run(plan, env=env))
-            w = run(warm, env=env)
-            rounds["warm"].append({**w, **json.loads(w["out"].strip().splitlines()[-1])})
+            rounds["warm"].append(run(warm, env=env))
+            rounds["plan_np"].append(run(plan, env=env_np))
+            rounds["warm_np"].append(run(warm, env=env_np))
     finally:
         shutil.rmtree(cache, ignore_errors=True)
     n_heights = len(json.loads(rounds["sweep"][-1]["out"]))
@@ -159,6 +163,12 @@ def main() -> None:
         ("3. fieldkit plan (demo), cold", "plan", 1.0, f"{n_options} options"),
         ("3. demo plan, warm process", "warm", 0.5, f"{args.warm_runs} plans per process"),
     ]
+    rows += [
+        ("   cold plan, numpy kernels", "plan_np", 1.0, "FIELDKIT_NUMPY_KERNELS=1"),
+        ("   warm plan, numpy kernels", "warm_np", 0.5, "FIELDKIT_NUMPY_KERNELS=1"),
+    ]
+    for key in ("warm", "warm_np"):  # the warm process reports its own best plan
+        rounds[key] = [{**w, **json.loads(w["out"].strip().splitlines()[-1])} for w in rounds[key]]
     for label, key, target, note in rows:
         wall, cpu = best(rounds[key], "wall"), best(rounds[key], "cpu")
         print(

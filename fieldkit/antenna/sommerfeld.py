@@ -42,6 +42,7 @@ import numpy as np
 
 from fieldkit.constants import EPS0, SPEED_OF_LIGHT_M_S
 
+from . import native
 from .grounds import Ground
 from .kernel import basis_weights, gauss01
 from .mesh import Mesh
@@ -267,8 +268,17 @@ def coupling_pairs(obs, t_obs, src, t_src, im: ComplexImages) -> np.ndarray:
 def _image_kernels(k, rho2, zeta, beta):
     """z = ζ + β and the kernels kg = k²G + G1, G1, G2 (I, n) of every image at (ρ², ζ) points.
 
-    G = e^{−jkR}/R with R = √(ρ² + z²) and ∂i∂j G = G2 XiXj + G1 δij; computed with in-place
-    products (the blocks are memory-bound).
+    G = e^{−jkR}/R with R = √(ρ² + z²) and ∂i∂j G = G2 XiXj + G1 δij. The compiled kernel
+    (:mod:`fieldkit.antenna.native`) when it is built, else :func:`_image_kernels_numpy`.
+    """
+    out = native.image_kernels(k, rho2, zeta, beta)
+    return _image_kernels_numpy(k, rho2, zeta, beta) if out is None else out
+
+
+def _image_kernels_numpy(k, rho2, zeta, beta):
+    """:func:`_image_kernels` in numpy: the reference the compiled kernel is tested against.
+
+    Computed with in-place products (the blocks are memory-bound).
     """
     z = zeta[None, :] + beta[:, None]  # (I, n)
     r2 = z * z

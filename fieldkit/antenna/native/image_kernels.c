@@ -1,0 +1,86 @@
+/* The complex-image kernels of the lossy-ground field, compiled: the same quantities as
+ * fieldkit.antenna.sommerfeld._image_kernels (the numpy reference), per image i and point n:
+ *
+ *   z = zeta + beta_i,  R = sqrt(rho^2 + z^2)  (principal root),  G = e^{-jkR} / R,
+ *   G1 = -(1 + jkR) G / R^2,  G2 = (3 + 3jkR + (jkR)^2) G / R^4,  kg = k^2 G + G1.
+ *
+ * Written in real arithmetic so that gcc vectorises the loop over points and calls glibc's
+ * vector maths library (libmvec: exp, sin, cos, within 4 ulp) for the exponential; the complex
+ * square root is the textbook real-arithmetic form (Kahan, "Branch cuts for complex elementary
+ * functions", 1987; principal branch, Re >= 0) on the hardware square root. Built by
+ * fieldkit/antenna/native/build.py; loaded with ctypes by fieldkit/antenna/native/__init__.py.
+ */
+#include <math.h>
+#include <stddef.h>
+
+/* Vector variants exist in libmvec; declared here so that no -ffast-math is needed (it would also
+ * reassociate sums and, linked into a shared library, set flush-to-zero for the whole process).
+ * Built with -fno-builtin-sin -fno-builtin-cos: otherwise gcc fuses sin and cos of one argument
+ * into a scalar sincos call before it vectorises. */
+__attribute__((simd("notinbranch"), const, nothrow)) double exp(double);
+__attribute__((simd("notinbranch"), const, nothrow)) double sin(double);
+__attribute__((simd("notinbranch"), const, nothrow)) double cos(double);
+
+#ifndef FK_SOURCE_SHA256
+#define FK_SOURCE_SHA256 "unknown"
+#endif
+
+/* The sha256 of this file when it was compiled: the loader refuses a library built from another
+ * version of the source. */
+const char *fk_source_sha256(void) { return FK_SOURCE_SHA256; }
+
+/* Kernels of n_img images at n_pts points. beta is complex (re, im interleaved, n_img); the four
+ * outputs are complex (n_img, n_pts) row-major, interleaved, as numpy's complex128. */
+void fk_image_kernels(ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *restrict rho2,
+                      const double *restrict zeta, const double *restrict beta,
+                      double *restrict z_out, double *restrict kg_out, double *restrict g1_out,
+                      double *restrict g2_out)
+{
+    const double k2 = k * k;
+    for (ptrdiff_t i = 0; i < n_img; ++i) {
+        const double br = beta[2 * i], bi = beta[2 * i + 1];
+        double *restrict zo = z_out + 2 * i * n_pts;
+        double *restrict kgo = kg_out + 2 * i * n_pts;
+        double *restrict g1o = g1_out + 2 * i * n_pts;
+        double *restrict g2o = g2_out + 2 * i * n_pts;
+#pragma GCC ivdep
+        for (ptrdiff_t n = 0; n < n_pts; ++n) {
+            const double zr = zeta[n] + br, zi = bi;
+            /* R^2 = rho^2 + z^2 and its modulus |R|^2 */
+            const double sr = zr * zr - zi * zi + rho2[n], si = 2.0 * zr * zi;
+            const double m2 = sqrt(sr * sr + si * si);
+            /* R = sqrt(R^2), principal branch */
+            const double t = sqrt(0.5 * (m2 + fabs(sr)));
+            const double u = 0.5 * si / t;
+            const double rr = sr >= 0.0 ? t : fabs(u);
+            const double ri = sr >= 0.0 ? u : copysign(t, si);
+            /* e^{-jkR} = e^{k Im R} (cos k Re R - j sin k Re R) */
+            const double ex = exp(k * ri);
+            const double er = ex * cos(k * rr), ei = -ex * sin(k * rr);
+            /* G = e^{-jkR} conj(R) / |R|^2 */
+            const double inv_m2 = 1.0 / m2;
+            const double gr = (er * rr + ei * ri) * inv_m2, gi = (ei * rr - er * ri) * inv_m2;
+            /* 1/R^2 = conj(R^2) / |R|^4 */
+            const double inv_m4 = inv_m2 * inv_m2;
+            const double qr = sr * inv_m4, qi = -si * inv_m4;
+            /* jkR */
+            const double ar = -k * ri, ai = k * rr;
+            /* G/R^2 */
+            const double hr = gr * qr - gi * qi, hi = gr * qi + gi * qr;
+            /* G1 = -(1 + jkR) G/R^2 */
+            const double g1r = -((1.0 + ar) * hr - ai * hi), g1i = -((1.0 + ar) * hi + ai * hr);
+            /* 3 + 3 jkR + (jkR)^2 = (jkR + 3) jkR + 3 */
+            const double pr = (ar + 3.0) * ar - ai * ai + 3.0, pi = (ar + 3.0) * ai + ai * ar;
+            /* G/R^4 */
+            const double h2r = hr * qr - hi * qi, h2i = hr * qi + hi * qr;
+            zo[2 * n] = zr;
+            zo[2 * n + 1] = zi;
+            kgo[2 * n] = k2 * gr + g1r;
+            kgo[2 * n + 1] = k2 * gi + g1i;
+            g1o[2 * n] = g1r;
+            g1o[2 * n + 1] = g1i;
+            g2o[2 * n] = pr * h2r - pi * h2i;
+            g2o[2 * n + 1] = pr * h2i + pi * h2r;
+        }
+    }
+}

@@ -1,0 +1,111 @@
+"""The compiled image kernels (fieldkit/antenna/native) against numpy's complex arithmetic.
+
+Reference: numpy's complex128 sqrt and exp (C99 Annex G principal branches, as glibc implements
+them) in ``sommerfeld._image_kernels_numpy``, the code the engine ran before the kernel was
+compiled and still runs without a compiler. The whole engine is checked against NEC-2 with the
+compiled kernel in tests/antenna/test_nec_lossy.py.
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+import subprocess
+import sys
+
+import numpy as np
+import pytest
+
+from fieldkit.antenna import native, parse_ground, solve
+from fieldkit.antenna import sommerfeld as sf
+from fieldkit.antenna.grounds import GROUND_PRESETS
+from fieldkit.antenna.native import build as native_build
+from tests.antenna.cases import dipole
+
+# relative to the largest kernel value of each image: libmvec's exp, sin and cos are within 4 ulp
+# (glibc manual, "Errors in Math Functions"), the rest is a few roundings more
+AGREEMENT = 1e-13
+
+
+def _compiled_or_skip():
+    if not native.compiled():
+        pytest.skip(native.status())
+
+
+def test_the_compiled_kernel_is_in_use():
+    # `make test` runs with FIELDKIT_NO_SKIPS=1: on the team's machines (gcc present) the package
+    # build must have compiled the kernel, or this fails with the reason
+    _compiled_or_skip()
+    assert native.status().startswith("compiled")
+
+
+def _points(rng, n):
+    rho2 = rng.uniform(0.0, 60.0, n) ** 2
+    rho2[:8] = 0.0  # directly above: the images' own axis
+    zeta = rng.uniform(0.3, 40.0, n)
+    return rho2, zeta
+
+
+@pytest.mark.parametrize("ground", sorted(GROUND_PRESETS))
+@pytest.mark.parametrize("f_mhz", [1.9, 5.36, 14.2])
+def test_kernels_agree_with_numpy(ground, f_mhz):
+    _compiled_or_skip()
+    im = sf._images_for(parse_ground(ground), f_mhz * 1e6)
+    beta = sf._all_images(im)[0]
+    rho2, zeta = _points(np.random.default_rng(7), 2000)
+    want = sf._image_kernels_numpy(im.k0, rho2, zeta, beta)
+    got = native.image_kernels(im.k0, rho2, zeta, beta)
+    for name, w, g in zip(("z", "kg", "g1", "g2"), want, got, strict=True):
+        scale = np.max(np.abs(w), axis=1, keepdims=True)
+        assert np.max(np.abs(g - w) / scale) < AGREEMENT, name
+
+
+def test_both_branches_of_the_square_root():
+    # R² = ρ² + (ζ + β)² with Re R² < 0 takes the other arm of the real-arithmetic root;
+    # numpy's csqrt gives the principal root on both sides and on the cut's edges (Im R² = ±0)
+    _compiled_or_skip()
+    beta = np.array([3j, -3j, 2 + 5j, 2 - 5j, 0.0, 1e-3 + 8j])
+    rho2 = np.array([0.0, 1.0, 4.0, 30.0, 100.0])
+    zeta = np.array([0.5, 1.0, 2.0, 0.2, 6.0])
+    k = 2 * np.pi / 80.0
+    want = sf._image_kernels_numpy(k, rho2, zeta, beta)
+    got = native.image_kernels(k, rho2, zeta, beta)
+    r2 = (zeta[None, :] + beta[:, None]) ** 2 + rho2[None, :]
+    assert (r2.real < 0).any() and (r2.real > 0).any()  # both arms are exercised
+    for w, g in zip(want, got, strict=True):
+        np.testing.assert_allclose(g, w, rtol=AGREEMENT, atol=0)
+
+
+def test_a_lossy_solve_is_the_same_with_either_kernel(monkeypatch):
+    _compiled_or_skip()
+    case = dipole("flat", 3.6, 0.12)
+    kw = dict(frequencies_hz=[3.5e6, 3.6e6], ground=parse_ground("average"))
+    fast = solve(case.antenna, **kw)
+    monkeypatch.setattr(native, "image_kernels", lambda *a, **k: None)
+    slow = solve(case.antenna, **kw)
+    for a, b in zip(fast, slow, strict=True):
+        assert abs(a.impedance_ohm - b.impedance_ohm) < 1e-9 * abs(b.impedance_ohm)
+        assert a.zenith_gain_dbi == pytest.approx(b.zenith_gain_dbi, abs=1e-9)
+
+
+@pytest.mark.skipif(shutil.which("cc") is None and shutil.which("gcc") is None, reason="no cc")
+def test_a_library_built_from_other_source_is_refused(tmp_path):
+    src = tmp_path / "image_kernels.c"
+    src.write_text(native.SOURCE.read_text())
+    lib = native_build.build(tmp_path / "k.so", source=src)
+    fn, why = native.load_library(lib, src)
+    assert fn is not None and why.startswith("compiled")
+    src.write_text(native.SOURCE.read_text() + "\n/* edited */\n")
+    fn, why = native.load_library(lib, src)
+    assert fn is None and "built from another image_kernels.c" in why
+    fn, why = native.load_library(tmp_path / "missing.so", src)
+    assert fn is None and "no compiled library" in why
+
+
+def test_the_switch_selects_numpy():
+    env = dict(os.environ, FIELDKIT_NUMPY_KERNELS="1")
+    code = "from fieldkit.antenna import native; print(native.status())"
+    out = subprocess.run(
+        [sys.executable, "-c", code], env=env, capture_output=True, text=True, check=True
+    )
+    assert out.stdout.startswith("numpy kernels (FIELDKIT_NUMPY_KERNELS=1)")
