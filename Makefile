@@ -11,7 +11,7 @@ PYTEST_ARGS ?=
 .PHONY: run serve test lint format unit e2e bench clean system-test-deps _apt
 
 # the package build compiles the engine's C kernel (hatch_build.py): rebuilt when its source changes
-NATIVE := hatch_build.py fieldkit/antenna/native/build.py fieldkit/antenna/native/image_kernels.c
+NATIVE := hatch_build.py fieldkit/antenna/native/build.py fieldkit/antenna/native/kernels.c
 
 $(VENV)/.base: pyproject.toml $(NATIVE)
 	@$(PYTHON) -c 'import sys; sys.exit(sys.version_info < (3, 11))' || \
@@ -71,4 +71,4 @@ bench: $(VENV)/.test
 	@for b in benchmarks/bench_*.py; do echo "== $$b"; $(PY) $$b || exit 1; done
 
 clean:
-	rm -rf $(VENV) .pytest_cache .ruff_cache e2e/artifacts fieldkit/antenna/native/_image_kernels.so
+	rm -rf $(VENV) .pytest_cache .ruff_cache e2e/artifacts fieldkit/antenna/native/_kernels.so

@@ -15,7 +15,7 @@ from pathlib import Path
 from hatchling.builders.hooks.plugin.interface import BuildHookInterface
 
 BUILD_SCRIPT = Path(__file__).resolve().parent / "fieldkit" / "antenna" / "native" / "build.py"
-IN_WHEEL = "fieldkit/antenna/native/_image_kernels.so"
+IN_WHEEL = "fieldkit/antenna/native/_kernels.so"
 
 
 def _build_module():

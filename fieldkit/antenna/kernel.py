@@ -31,6 +31,7 @@ import numpy as np
 
 from fieldkit.constants import EPS0, MU0
 
+from . import native
 from .mesh import Mesh
 
 N_TEST = 5  # Gauss points on the testing segment
@@ -97,10 +98,24 @@ def potential_integrals(
     """
     i0, i1, r = _source_geometry(obs, src_start, src_t, src_len, src_radius)
     u, w = gauss01(N_SOURCE)
-    smooth = _expm1_minus_j(k, r) / r * (w[None, None, :] * src_len[None, :, None])
-    j0 = i0 + smooth.sum(axis=2)
-    j1 = i1 + (smooth * u[None, None, :]).sum(axis=2)
-    return j0 / (4 * math.pi), j1 / (4 * math.pi)
+    s0, s1 = _smooth_sums(k, r, w[None, :] * src_len[:, None], u)
+    return (i0 + s0) / (4 * math.pi), (i1 + s1) / (4 * math.pi)
+
+
+def _smooth_sums(k: float, r: np.ndarray, wl: np.ndarray, u: np.ndarray):
+    """Σ_q (e^{−jkr} − 1)/r · wl and the same · u_q over the source Gauss points, (P, S) each.
+
+    The compiled kernel (:mod:`fieldkit.antenna.native`) when it is built, else
+    :func:`_smooth_sums_numpy`.
+    """
+    out = native.smooth_potentials(k, r, wl, u)
+    return _smooth_sums_numpy(k, r, wl, u) if out is None else out
+
+
+def _smooth_sums_numpy(k: float, r: np.ndarray, wl: np.ndarray, u: np.ndarray):
+    """:func:`_smooth_sums` in numpy: the reference the compiled kernel is tested against."""
+    smooth = _expm1_minus_j(k, r) / r * wl[None, :, :]
+    return smooth.sum(axis=2), (smooth * u[None, None, :]).sum(axis=2)
 
 
 def _expm1_minus_j(k: float, r: np.ndarray) -> np.ndarray:

@@ -1,8 +1,8 @@
-"""The compiled image kernels (fieldkit/antenna/native) against numpy's complex arithmetic.
+"""The compiled kernels (fieldkit/antenna/native) against numpy's complex arithmetic.
 
-Reference: numpy's complex128 sqrt and exp (C99 Annex G principal branches, as glibc implements
-them) in ``sommerfeld._image_kernels_numpy``, the code the engine ran before the kernel was
-compiled and still runs without a compiler. The whole engine is checked against NEC-2 with the
+Reference: numpy's complex128 sqrt, exp and sin (C99 Annex G principal branches, as glibc
+implements them) in ``sommerfeld._image_kernels_numpy`` and ``kernel._smooth_sums_numpy``, the
+code the engine ran before the kernels were compiled and still runs without a compiler. The whole engine is checked against NEC-2 with the
 compiled kernel in tests/antenna/test_nec_lossy.py.
 """
 
@@ -16,9 +16,10 @@ import sys
 import numpy as np
 import pytest
 
-from fieldkit.antenna import native, parse_ground, solve
+from fieldkit.antenna import kernel, native, parse_ground, solve
 from fieldkit.antenna import sommerfeld as sf
 from fieldkit.antenna.grounds import GROUND_PRESETS
+from fieldkit.antenna.mesh import build_mesh
 from fieldkit.antenna.native import build as native_build
 from tests.antenna.cases import dipole
 
@@ -76,12 +77,34 @@ def test_both_branches_of_the_square_root():
         np.testing.assert_allclose(g, w, rtol=AGREEMENT, atol=0)
 
 
+@pytest.mark.parametrize("f_mhz", [1.9, 7.1, 29.0])
+def test_smooth_potentials_agree_with_numpy(f_mhz):
+    # the free-space fill's distances of an inverted-V, near (reduced kernel, R ≥ a) and far
+    _compiled_or_skip()
+    case = dipole("inverted-v", f_mhz, 0.15)
+    mesh = build_mesh(case.antenna, max_frequency_hz=f_mhz * 1e6)
+    obs, _, _ = kernel.test_points(mesh)
+    _, _, r = kernel._source_geometry(obs, mesh.start, mesh.tangent, mesh.length, mesh.radius)
+    u, w = kernel.gauss01(kernel.N_SOURCE)
+    wl = w[None, :] * mesh.length[:, None]
+    k = 2 * np.pi * f_mhz / 299.792458
+    want = kernel._smooth_sums_numpy(k, r, wl, u)
+    got = native.smooth_potentials(k, r, wl, u)
+    for w_, g in zip(want, got, strict=True):
+        assert np.max(np.abs(g - w_)) < AGREEMENT * np.max(np.abs(w_))
+
+
+def _numpy_only(monkeypatch):
+    monkeypatch.setattr(native, "image_kernels", lambda *a, **k: None)
+    monkeypatch.setattr(native, "smooth_potentials", lambda *a, **k: None)
+
+
 def test_a_lossy_solve_is_the_same_with_either_kernel(monkeypatch):
     _compiled_or_skip()
     case = dipole("flat", 3.6, 0.12)
     kw = dict(frequencies_hz=[3.5e6, 3.6e6], ground=parse_ground("average"))
     fast = solve(case.antenna, **kw)
-    monkeypatch.setattr(native, "image_kernels", lambda *a, **k: None)
+    _numpy_only(monkeypatch)
     slow = solve(case.antenna, **kw)
     for a, b in zip(fast, slow, strict=True):
         assert abs(a.impedance_ohm - b.impedance_ohm) < 1e-9 * abs(b.impedance_ohm)
@@ -90,16 +113,16 @@ def test_a_lossy_solve_is_the_same_with_either_kernel(monkeypatch):
 
 @pytest.mark.skipif(shutil.which("cc") is None and shutil.which("gcc") is None, reason="no cc")
 def test_a_library_built_from_other_source_is_refused(tmp_path):
-    src = tmp_path / "image_kernels.c"
+    src = tmp_path / "kernels.c"
     src.write_text(native.SOURCE.read_text())
     lib = native_build.build(tmp_path / "k.so", source=src)
-    fn, why = native.load_library(lib, src)
-    assert fn is not None and why.startswith("compiled")
+    kernels, why = native.load_library(lib, src)
+    assert kernels is not None and why.startswith("compiled")
     src.write_text(native.SOURCE.read_text() + "\n/* edited */\n")
-    fn, why = native.load_library(lib, src)
-    assert fn is None and "built from another image_kernels.c" in why
-    fn, why = native.load_library(tmp_path / "missing.so", src)
-    assert fn is None and "no compiled library" in why
+    kernels, why = native.load_library(lib, src)
+    assert kernels is None and "built from another kernels.c" in why
+    kernels, why = native.load_library(tmp_path / "missing.so", src)
+    assert kernels is None and "no compiled library" in why
 
 
 def test_the_switch_selects_numpy():

@@ -1,14 +1,18 @@
 """The engine's compiled kernels: C loaded with ctypes, the numpy code beside it as reference.
 
-Only the lossy-ground image kernels are compiled (:func:`image_kernels`): the complex square root
-and exponential of every image and point pair were ~35 % of a plan at numpy's speed, and the C
-loop, vectorised with glibc's vector maths library, does them ~12× faster to within ~5e-15
-relative (``tests/antenna/test_native.py``; figures in docs/engine.md).
+Two loops are compiled, the ones where a plan spent most of its engine time at numpy's speed
+(figures in docs/engine.md), each ~10× faster, vectorised with glibc's vector maths library, and
+within ~5e-15 relative of numpy (``tests/antenna/test_native.py``):
+
+- :func:`image_kernels`: the complex square root and exponential of every complex image and point
+  pair of the lossy-ground field (``sommerfeld._image_kernels_numpy``);
+- :func:`smooth_potentials`: the smooth part (e^{−jkR} − 1)/R of the free-space potential integrals
+  over the source Gauss points (``kernel._smooth_sums_numpy``).
 
 The library is built on install (``hatch_build.py``; by hand: ``python
 fieldkit/antenna/native/build.py``). When it is missing, cannot be loaded, was built from another
-version of ``image_kernels.c``, or ``FIELDKIT_NUMPY_KERNELS=1`` is set, :func:`image_kernels`
-returns None and the engine uses the numpy reference; :func:`status` says which and why.
+version of ``kernels.c``, or ``FIELDKIT_NUMPY_KERNELS=1`` is set, both functions return None and
+the engine uses the numpy references; :func:`status` says which and why.
 """
 
 from __future__ import annotations
@@ -18,25 +22,34 @@ import hashlib
 import os
 from functools import lru_cache
 from pathlib import Path
+from typing import NamedTuple
 
 import numpy as np
 
 HERE = Path(__file__).resolve().parent
-SOURCE = HERE / "image_kernels.c"
-LIBRARY = HERE / "_image_kernels.so"
+SOURCE = HERE / "kernels.c"
+LIBRARY = HERE / "_kernels.so"
 DISABLE_ENV = "FIELDKIT_NUMPY_KERNELS"
+_SIZE, _REAL, _PTR = ctypes.c_ssize_t, ctypes.c_double, ctypes.c_void_p
+
+
+class Kernels(NamedTuple):
+    """The library's C functions (ctypes)."""
+
+    image_kernels: object
+    smooth_potentials: object
 
 
 @lru_cache(maxsize=1)
-def _load() -> tuple[object | None, str]:
+def _load() -> tuple[Kernels | None, str]:
     """(the C function or None, a sentence saying which kernel runs and why), once per process."""
     if os.environ.get(DISABLE_ENV) == "1":
         return None, f"numpy kernels ({DISABLE_ENV}=1)"
     return load_library(LIBRARY, SOURCE)
 
 
-def load_library(library: Path, source: Path) -> tuple[object | None, str]:
-    """``fk_image_kernels`` from ``library`` if it was built from ``source`` as it is now."""
+def load_library(library: Path, source: Path) -> tuple[Kernels | None, str]:
+    """The kernels in ``library`` if it was built from ``source`` as it is now, else why not."""
     if not library.exists():
         return None, f"numpy kernels (no compiled library at {library}; build it with build.py)"
     try:
@@ -48,10 +61,12 @@ def load_library(library: Path, source: Path) -> tuple[object | None, str]:
     built_from = lib.fk_source_sha256().decode()
     if built_from != hashlib.sha256(source.read_bytes()).hexdigest():
         return None, f"numpy kernels ({library.name} was built from another {source.name}; rebuild)"
-    fn = lib.fk_image_kernels
-    fn.restype = None
-    fn.argtypes = [ctypes.c_ssize_t, ctypes.c_ssize_t, ctypes.c_double] + [ctypes.c_void_p] * 7
-    return fn, f"compiled kernels ({library.name})"
+    images, smooth = lib.fk_image_kernels, lib.fk_smooth_potentials
+    images.restype = None
+    images.argtypes = [_SIZE, _SIZE, _REAL] + [_PTR] * 7
+    smooth.restype = ctypes.c_int
+    smooth.argtypes = [_SIZE, _SIZE, _SIZE, _REAL] + [_PTR] * 5
+    return Kernels(images, smooth), f"compiled kernels ({library.name})"
 
 
 def status() -> str:
@@ -64,7 +79,7 @@ def compiled() -> bool:
     return _load()[0] is not None
 
 
-def image_kernels(k: float, rho2: np.ndarray, zeta: np.ndarray, beta: np.ndarray, *, fn=None):
+def image_kernels(k: float, rho2: np.ndarray, zeta: np.ndarray, beta: np.ndarray, *, lib=None):
     """z, kg, g1, g2 (each complex (I, n)) as ``sommerfeld._image_kernels``, or None when not compiled.
 
     Parameters
@@ -72,10 +87,10 @@ def image_kernels(k: float, rho2: np.ndarray, zeta: np.ndarray, beta: np.ndarray
     k : wavenumber [1/m]
     rho2, zeta : (n,) squared horizontal distance [m²] and z + z' [m] of the point pairs
     beta : (I,) complex image depths [m]
-    fn : a loaded ``fk_image_kernels`` (:func:`load_library`); default: this package's library
+    lib : kernels from :func:`load_library`; default: this package's library
     """
-    fn = fn or _load()[0]
-    if fn is None:
+    lib = lib or _load()[0]
+    if lib is None:
         return None
     rho2 = np.ascontiguousarray(rho2, dtype=np.float64)
     zeta = np.ascontiguousarray(zeta, dtype=np.float64)
@@ -83,7 +98,7 @@ def image_kernels(k: float, rho2: np.ndarray, zeta: np.ndarray, beta: np.ndarray
     if rho2.shape != zeta.shape or rho2.ndim != 1 or beta.ndim != 1:
         raise ValueError("rho2 and zeta must be 1-D of one length, beta 1-D")
     out = np.empty((4, len(beta), len(rho2)), dtype=np.complex128)
-    fn(
+    lib.image_kernels(
         len(beta),
         len(rho2),
         float(k),
@@ -93,3 +108,40 @@ def image_kernels(k: float, rho2: np.ndarray, zeta: np.ndarray, beta: np.ndarray
         *(out[i].ctypes.data for i in range(4)),
     )
     return out[0], out[1], out[2], out[3]
+
+
+def smooth_potentials(k: float, r: np.ndarray, wl: np.ndarray, u: np.ndarray, *, lib=None):
+    """(S0, S1), complex (P, S), as ``kernel._smooth_sums_numpy``, or None when not compiled.
+
+    Parameters
+    ----------
+    k : wavenumber [1/m]
+    r : (P, S, Q) distances from observation points to source Gauss points [m]
+    wl : (S, Q) Gauss weight × segment length [m]
+    u : (Q,) Gauss nodes on [0, 1]
+    lib : kernels from :func:`load_library`; default: this package's library
+    """
+    lib = lib or _load()[0]
+    if lib is None:
+        return None
+    r = np.ascontiguousarray(r, dtype=np.float64)
+    wl = np.ascontiguousarray(wl, dtype=np.float64)
+    u = np.ascontiguousarray(u, dtype=np.float64)
+    n_obs, n_src, n_q = r.shape
+    if wl.shape != (n_src, n_q) or u.shape != (n_q,):
+        raise ValueError("r must be (P, S, Q), wl (S, Q) and u (Q,)")
+    out = np.empty((2, n_obs, n_src), dtype=np.complex128)
+    rc = lib.smooth_potentials(
+        n_obs,
+        n_src,
+        n_q,
+        float(k),
+        r.ctypes.data,
+        wl.ctypes.data,
+        u.ctypes.data,
+        out[0].ctypes.data,
+        out[1].ctypes.data,
+    )
+    if rc != 0:
+        raise MemoryError("the compiled kernel could not allocate its work buffer")
+    return out[0], out[1]

@@ -22,8 +22,8 @@ import sys
 from pathlib import Path
 
 HERE = Path(__file__).resolve().parent
-SOURCE = HERE / "image_kernels.c"
-LIBRARY = HERE / "_image_kernels.so"
+SOURCE = HERE / "kernels.c"
+LIBRARY = HERE / "_kernels.so"
 FLAGS = (
     "-O3",
     "-fPIC",

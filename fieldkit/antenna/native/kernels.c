@@ -1,10 +1,15 @@
-/* The complex-image kernels of the lossy-ground field, compiled: the same quantities as
- * fieldkit.antenna.sommerfeld._image_kernels (the numpy reference), per image i and point n:
+/* The engine's two hottest loops, compiled; each has its numpy reference beside the Python caller.
+ *
+ * 1. fk_image_kernels: the complex-image kernels of the lossy-ground field, the same quantities
+ * as fieldkit.antenna.sommerfeld._image_kernels_numpy, per image i and point n:
  *
  *   z = zeta + beta_i,  R = sqrt(rho^2 + z^2)  (principal root),  G = e^{-jkR} / R,
  *   G1 = -(1 + jkR) G / R^2,  G2 = (3 + 3jkR + (jkR)^2) G / R^4,  kg = k^2 G + G1.
  *
- * Written in real arithmetic so that gcc vectorises the loop over points and calls glibc's
+ * 2. fk_smooth_potentials: the smooth part (e^{-jkR} - 1)/R of the free-space potential integrals
+ * summed over the source Gauss points, as fieldkit.antenna.kernel._smooth_sums_numpy.
+ *
+ * Written in real arithmetic so that gcc vectorises the loops over points and calls glibc's
  * vector maths library (libmvec: exp, sin, cos, within 4 ulp) for the exponential; the complex
  * square root is the textbook real-arithmetic form (Kahan, "Branch cuts for complex elementary
  * functions", 1987; principal branch, Re >= 0) on the hardware square root. Built by
@@ -12,6 +17,7 @@
  */
 #include <math.h>
 #include <stddef.h>
+#include <stdlib.h>
 
 /* Vector variants exist in libmvec; declared here so that no -ffast-math is needed (it would also
  * reassociate sums and, linked into a shared library, set flush-to-zero for the whole process).
@@ -83,4 +89,48 @@ void fk_image_kernels(ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *
             g2o[2 * n + 1] = pr * h2i + pi * h2r;
         }
     }
+}
+
+/* Sums over the n_q source Gauss points of (e^{-jkr} - 1)/r, weighted:
+ *   s0[p, s] = sum_q e(r_psq) wl[s, q],   s1[p, s] = sum_q e(r_psq) wl[s, q] u[q],
+ * with e^{-jkr} - 1 = -2 sin^2(kr/2) - j sin(kr) (no cancellation at small kr). r is
+ * (n_obs, n_src, n_q) row-major, wl (n_src, n_q), u (n_q); s0 and s1 complex (n_obs, n_src),
+ * interleaved. Returns 0, or -1 when the work buffer cannot be allocated (outputs untouched). */
+int fk_smooth_potentials(ptrdiff_t n_obs, ptrdiff_t n_src, ptrdiff_t n_q, double k,
+                         const double *restrict r, const double *restrict wl,
+                         const double *restrict u, double *restrict s0, double *restrict s1)
+{
+    const ptrdiff_t row = n_src * n_q;
+    double *buf = malloc(2 * (size_t)row * sizeof(double));
+    if (buf == NULL)
+        return -1;
+    double *restrict er = buf, *restrict ei = buf + row;
+    for (ptrdiff_t p = 0; p < n_obs; ++p) {
+        const double *restrict rp = r + p * row;
+#pragma GCC ivdep
+        for (ptrdiff_t m = 0; m < row; ++m) {
+            const double y = -k * rp[m];
+            const double half = sin(y * 0.5);
+            const double inv = 1.0 / rp[m];
+            er[m] = (-2.0 * half * half) * inv * wl[m];
+            ei[m] = sin(y) * inv * wl[m];
+        }
+        double *restrict o0 = s0 + 2 * p * n_src, *restrict o1 = s1 + 2 * p * n_src;
+        for (ptrdiff_t s = 0; s < n_src; ++s) {
+            double a0r = 0.0, a0i = 0.0, a1r = 0.0, a1i = 0.0;
+            for (ptrdiff_t q = 0; q < n_q; ++q) {
+                const double xr = er[s * n_q + q], xi = ei[s * n_q + q];
+                a0r += xr;
+                a0i += xi;
+                a1r += xr * u[q];
+                a1i += xi * u[q];
+            }
+            o0[2 * s] = a0r;
+            o0[2 * s + 1] = a0i;
+            o1[2 * s] = a1r;
+            o1[2 * s + 1] = a1i;
+        }
+    }
+    free(buf);
+    return 0;
 }
