@@ -217,8 +217,21 @@ def reflected_coupling(obs, t_obs, src, t_src, im: ComplexImages) -> np.ndarray:
 
 
 def _image_sums(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) -> np.ndarray:
-    """The eight image sums (8, n) of the reflected coupling at (ρ², ζ) points."""
-    z, kg, g1, g2 = _image_kernels(k, rho2, zeta, beta)
+    """The eight image sums (8, n) of the reflected coupling at (ρ², ζ) points.
+
+    Rows: Σa_h·kg, Σa_v·kg, Σa_d·G1, Σa_c·G1, Σ(a_h − a_d)·G2, Σ(a_h − a_d)·G2·z, Σa_v·G2·z,
+    Σa_v·G2·z². The compiled kernel (:mod:`fieldkit.antenna.native`) when it is built, else
+    :func:`_image_sums_numpy`.
+    """
+    a_hd = a_h - a_d
+    weights = np.stack([a_h, a_v, a_d, a_c, a_hd, a_hd, a_v, a_v])
+    out = native.image_sums(k, rho2, zeta, beta, weights)
+    return _image_sums_numpy(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) if out is None else out
+
+
+def _image_sums_numpy(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) -> np.ndarray:
+    """:func:`_image_sums` in numpy: the reference the compiled kernel is tested against."""
+    z, kg, g1, g2 = _image_kernels_numpy(k, rho2, zeta, beta)
     g2z = g2 * z
     a_hd = a_h - a_d
     return np.concatenate(

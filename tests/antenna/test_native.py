@@ -61,6 +61,20 @@ def test_kernels_agree_with_numpy(ground, f_mhz):
         assert np.max(np.abs(g - w) / scale) < AGREEMENT, name
 
 
+@pytest.mark.parametrize("ground", ["sea-water", "average", "very-dry"])
+def test_image_sums_agree_with_numpy(ground):
+    # 300 points: more than two of the kernel's blocks of 128, the last one partial
+    _compiled_or_skip()
+    im = sf._images_for(parse_ground(ground), 3.6e6)
+    images = sf._all_images(im)
+    rho2, zeta = _points(np.random.default_rng(11), 300)
+    want = sf._image_sums_numpy(im.k0, rho2, zeta, *images)
+    got = sf._image_sums(im.k0, rho2, zeta, *images)
+    assert got.shape == want.shape == (8, 300)
+    scale = np.max(np.abs(want), axis=1, keepdims=True)
+    assert np.max(np.abs(got - want) / scale) < AGREEMENT
+
+
 def test_both_branches_of_the_square_root():
     # R² = ρ² + (ζ + β)² with Re R² < 0 takes the other arm of the real-arithmetic root;
     # numpy's csqrt gives the principal root on both sides and on the cut's edges (Im R² = ±0)
@@ -95,8 +109,8 @@ def test_smooth_potentials_agree_with_numpy(f_mhz):
 
 
 def _numpy_only(monkeypatch):
-    monkeypatch.setattr(native, "image_kernels", lambda *a, **k: None)
-    monkeypatch.setattr(native, "smooth_potentials", lambda *a, **k: None)
+    for name in ("image_kernels", "image_sums", "smooth_potentials"):
+        monkeypatch.setattr(native, name, lambda *a, **k: None)
 
 
 def test_a_lossy_solve_is_the_same_with_either_kernel(monkeypatch):

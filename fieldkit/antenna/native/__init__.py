@@ -4,8 +4,10 @@ Two loops are compiled, the ones where a plan spent most of its engine time at n
 (figures in docs/engine.md), each ~10× faster, vectorised with glibc's vector maths library, and
 within ~5e-15 relative of numpy (``tests/antenna/test_native.py``):
 
-- :func:`image_kernels`: the complex square root and exponential of every complex image and point
-  pair of the lossy-ground field (``sommerfeld._image_kernels_numpy``);
+- :func:`image_sums` and :func:`image_kernels`: the complex square root and exponential of every
+  complex image and point pair of the lossy-ground field, summed over the images for the matrix
+  (``sommerfeld._image_sums_numpy``) or per image for the near field
+  (``sommerfeld._image_kernels_numpy``);
 - :func:`smooth_potentials`: the smooth part (e^{−jkR} − 1)/R of the free-space potential integrals
   over the source Gauss points (``kernel._smooth_sums_numpy``).
 
@@ -37,6 +39,7 @@ class Kernels(NamedTuple):
     """The library's C functions (ctypes)."""
 
     image_kernels: object
+    image_sums: object
     smooth_potentials: object
 
 
@@ -61,12 +64,14 @@ def load_library(library: Path, source: Path) -> tuple[Kernels | None, str]:
     built_from = lib.fk_source_sha256().decode()
     if built_from != hashlib.sha256(source.read_bytes()).hexdigest():
         return None, f"numpy kernels ({library.name} was built from another {source.name}; rebuild)"
-    images, smooth = lib.fk_image_kernels, lib.fk_smooth_potentials
+    images, sums, smooth = lib.fk_image_kernels, lib.fk_image_sums, lib.fk_smooth_potentials
     images.restype = None
     images.argtypes = [_SIZE, _SIZE, _REAL] + [_PTR] * 7
+    sums.restype = None
+    sums.argtypes = [_SIZE, _SIZE, _REAL] + [_PTR] * 5
     smooth.restype = ctypes.c_int
     smooth.argtypes = [_SIZE, _SIZE, _SIZE, _REAL] + [_PTR] * 5
-    return Kernels(images, smooth), f"compiled kernels ({library.name})"
+    return Kernels(images, sums, smooth), f"compiled kernels ({library.name})"
 
 
 def status() -> str:
@@ -92,11 +97,7 @@ def image_kernels(k: float, rho2: np.ndarray, zeta: np.ndarray, beta: np.ndarray
     lib = lib or _load()[0]
     if lib is None:
         return None
-    rho2 = np.ascontiguousarray(rho2, dtype=np.float64)
-    zeta = np.ascontiguousarray(zeta, dtype=np.float64)
-    beta = np.ascontiguousarray(beta, dtype=np.complex128)
-    if rho2.shape != zeta.shape or rho2.ndim != 1 or beta.ndim != 1:
-        raise ValueError("rho2 and zeta must be 1-D of one length, beta 1-D")
+    rho2, zeta, beta = _points(rho2, zeta, beta)
     out = np.empty((4, len(beta), len(rho2)), dtype=np.complex128)
     lib.image_kernels(
         len(beta),
@@ -108,6 +109,48 @@ def image_kernels(k: float, rho2: np.ndarray, zeta: np.ndarray, beta: np.ndarray
         *(out[i].ctypes.data for i in range(4)),
     )
     return out[0], out[1], out[2], out[3]
+
+
+def image_sums(k: float, rho2, zeta, beta, weights: np.ndarray, *, lib=None):
+    """The image sums (8, n) of ``sommerfeld._image_sums_numpy``, or None when not compiled.
+
+    Parameters
+    ----------
+    k : wavenumber [1/m]
+    rho2, zeta : (n,) squared horizontal distance [m²] and z + z' [m] of the point pairs
+    beta : (I,) complex image depths [m]
+    weights : (8, I) complex residues per row: a_h, a_v, a_d, a_c, a_h − a_d, a_h − a_d, a_v, a_v
+    lib : kernels from :func:`load_library`; default: this package's library
+    """
+    lib = lib or _load()[0]
+    if lib is None:
+        return None
+    rho2, zeta, beta = _points(rho2, zeta, beta)
+    weights = np.ascontiguousarray(weights, dtype=np.complex128)
+    if weights.shape != (8, len(beta)):
+        raise ValueError("weights must be (8, number of images)")
+    out = np.empty((8, len(rho2)), dtype=np.complex128)
+    lib.image_sums(
+        len(beta),
+        len(rho2),
+        float(k),
+        rho2.ctypes.data,
+        zeta.ctypes.data,
+        beta.ctypes.data,
+        weights.ctypes.data,
+        out.ctypes.data,
+    )
+    return out
+
+
+def _points(rho2, zeta, beta):
+    """rho2, zeta and beta as the C kernels read them (contiguous float64, complex128)."""
+    rho2 = np.ascontiguousarray(rho2, dtype=np.float64)
+    zeta = np.ascontiguousarray(zeta, dtype=np.float64)
+    beta = np.ascontiguousarray(beta, dtype=np.complex128)
+    if rho2.shape != zeta.shape or rho2.ndim != 1 or beta.ndim != 1:
+        raise ValueError("rho2 and zeta must be 1-D of one length, beta 1-D")
+    return rho2, zeta, beta
 
 
 def smooth_potentials(k: float, r: np.ndarray, wl: np.ndarray, u: np.ndarray, *, lib=None):

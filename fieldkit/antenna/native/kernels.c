@@ -35,6 +35,49 @@ __attribute__((simd("notinbranch"), const, nothrow)) double cos(double);
  * version of the source. */
 const char *fk_source_sha256(void) { return FK_SOURCE_SHA256; }
 
+/* The kernels of one image (depth br + j bi) at one point (rho2, zeta): z, kg, G1 and G2, each
+ * complex as (re, im). */
+static inline void image_kernel(double k, double rho2, double zeta, double br, double bi,
+                                double z[2], double kg[2], double g1[2], double g2[2])
+{
+    const double zr = zeta + br, zi = bi;
+    /* R^2 = rho^2 + z^2 and its modulus |R|^2 */
+    const double sr = zr * zr - zi * zi + rho2, si = 2.0 * zr * zi;
+    const double m2 = sqrt(sr * sr + si * si);
+    /* R = sqrt(R^2), principal branch */
+    const double t = sqrt(0.5 * (m2 + fabs(sr)));
+    const double u = 0.5 * si / t;
+    const double rr = sr >= 0.0 ? t : fabs(u);
+    const double ri = sr >= 0.0 ? u : copysign(t, si);
+    /* e^{-jkR} = e^{k Im R} (cos k Re R - j sin k Re R) */
+    const double ex = exp(k * ri);
+    const double er = ex * cos(k * rr), ei = -ex * sin(k * rr);
+    /* G = e^{-jkR} conj(R) / |R|^2 */
+    const double inv_m2 = 1.0 / m2;
+    const double gr = (er * rr + ei * ri) * inv_m2, gi = (ei * rr - er * ri) * inv_m2;
+    /* 1/R^2 = conj(R^2) / |R|^4 */
+    const double inv_m4 = inv_m2 * inv_m2;
+    const double qr = sr * inv_m4, qi = -si * inv_m4;
+    /* jkR */
+    const double ar = -k * ri, ai = k * rr;
+    /* G/R^2 */
+    const double hr = gr * qr - gi * qi, hi = gr * qi + gi * qr;
+    /* G1 = -(1 + jkR) G/R^2 */
+    const double g1r = -((1.0 + ar) * hr - ai * hi), g1i = -((1.0 + ar) * hi + ai * hr);
+    /* 3 + 3 jkR + (jkR)^2 = (jkR + 3) jkR + 3 */
+    const double pr = (ar + 3.0) * ar - ai * ai + 3.0, pi = (ar + 3.0) * ai + ai * ar;
+    /* G/R^4 */
+    const double h2r = hr * qr - hi * qi, h2i = hr * qi + hi * qr;
+    z[0] = zr;
+    z[1] = zi;
+    kg[0] = k * k * gr + g1r;
+    kg[1] = k * k * gi + g1i;
+    g1[0] = g1r;
+    g1[1] = g1i;
+    g2[0] = pr * h2r - pi * h2i;
+    g2[1] = pr * h2i + pi * h2r;
+}
+
 /* Kernels of n_img images at n_pts points. beta is complex (re, im interleaved, n_img); the four
  * outputs are complex (n_img, n_pts) row-major, interleaved, as numpy's complex128. */
 void fk_image_kernels(ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *restrict rho2,
@@ -42,7 +85,6 @@ void fk_image_kernels(ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *
                       double *restrict z_out, double *restrict kg_out, double *restrict g1_out,
                       double *restrict g2_out)
 {
-    const double k2 = k * k;
     for (ptrdiff_t i = 0; i < n_img; ++i) {
         const double br = beta[2 * i], bi = beta[2 * i + 1];
         double *restrict zo = z_out + 2 * i * n_pts;
@@ -50,43 +92,60 @@ void fk_image_kernels(ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *
         double *restrict g1o = g1_out + 2 * i * n_pts;
         double *restrict g2o = g2_out + 2 * i * n_pts;
 #pragma GCC ivdep
-        for (ptrdiff_t n = 0; n < n_pts; ++n) {
-            const double zr = zeta[n] + br, zi = bi;
-            /* R^2 = rho^2 + z^2 and its modulus |R|^2 */
-            const double sr = zr * zr - zi * zi + rho2[n], si = 2.0 * zr * zi;
-            const double m2 = sqrt(sr * sr + si * si);
-            /* R = sqrt(R^2), principal branch */
-            const double t = sqrt(0.5 * (m2 + fabs(sr)));
-            const double u = 0.5 * si / t;
-            const double rr = sr >= 0.0 ? t : fabs(u);
-            const double ri = sr >= 0.0 ? u : copysign(t, si);
-            /* e^{-jkR} = e^{k Im R} (cos k Re R - j sin k Re R) */
-            const double ex = exp(k * ri);
-            const double er = ex * cos(k * rr), ei = -ex * sin(k * rr);
-            /* G = e^{-jkR} conj(R) / |R|^2 */
-            const double inv_m2 = 1.0 / m2;
-            const double gr = (er * rr + ei * ri) * inv_m2, gi = (ei * rr - er * ri) * inv_m2;
-            /* 1/R^2 = conj(R^2) / |R|^4 */
-            const double inv_m4 = inv_m2 * inv_m2;
-            const double qr = sr * inv_m4, qi = -si * inv_m4;
-            /* jkR */
-            const double ar = -k * ri, ai = k * rr;
-            /* G/R^2 */
-            const double hr = gr * qr - gi * qi, hi = gr * qi + gi * qr;
-            /* G1 = -(1 + jkR) G/R^2 */
-            const double g1r = -((1.0 + ar) * hr - ai * hi), g1i = -((1.0 + ar) * hi + ai * hr);
-            /* 3 + 3 jkR + (jkR)^2 = (jkR + 3) jkR + 3 */
-            const double pr = (ar + 3.0) * ar - ai * ai + 3.0, pi = (ar + 3.0) * ai + ai * ar;
-            /* G/R^4 */
-            const double h2r = hr * qr - hi * qi, h2i = hr * qi + hi * qr;
-            zo[2 * n] = zr;
-            zo[2 * n + 1] = zi;
-            kgo[2 * n] = k2 * gr + g1r;
-            kgo[2 * n + 1] = k2 * gi + g1i;
-            g1o[2 * n] = g1r;
-            g1o[2 * n + 1] = g1i;
-            g2o[2 * n] = pr * h2r - pi * h2i;
-            g2o[2 * n + 1] = pr * h2i + pi * h2r;
+        for (ptrdiff_t n = 0; n < n_pts; ++n)
+            image_kernel(k, rho2[n], zeta[n], br, bi, zo + 2 * n, kgo + 2 * n, g1o + 2 * n,
+                         g2o + 2 * n);
+    }
+}
+
+#define SUM_ROWS 8
+#define SUM_BLOCK 128 /* points per block: the block's sums stay in L1 (16 KiB) */
+
+/* The eight image sums of the moment-method matrix's reflected coupling at n_pts points, as
+ * fieldkit.antenna.sommerfeld._image_sums_numpy: with per-image weights w (complex (8, n_img),
+ * rows a_h, a_v, a_d, a_c, a_h - a_d, a_h - a_d, a_v, a_v),
+ *   out[0..1] = sum_i w kg,  out[2..3] = sum_i w G1,  out[4] = sum_i w G2,
+ *   out[5..6] = sum_i w G2 z,  out[7] = sum_i w G2 z^2;
+ * out complex (8, n_pts), interleaved. */
+void fk_image_sums(ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *restrict rho2,
+                   const double *restrict zeta, const double *restrict beta,
+                   const double *restrict w, double *restrict out)
+{
+    double acc_r[SUM_ROWS][SUM_BLOCK], acc_i[SUM_ROWS][SUM_BLOCK];
+    for (ptrdiff_t lo = 0; lo < n_pts; lo += SUM_BLOCK) {
+        const ptrdiff_t m = n_pts - lo < SUM_BLOCK ? n_pts - lo : SUM_BLOCK;
+        for (int r = 0; r < SUM_ROWS; ++r)
+            for (ptrdiff_t n = 0; n < m; ++n)
+                acc_r[r][n] = acc_i[r][n] = 0.0;
+        for (ptrdiff_t i = 0; i < n_img; ++i) {
+            const double br = beta[2 * i], bi = beta[2 * i + 1];
+            double wr[SUM_ROWS], wi[SUM_ROWS];
+            for (int r = 0; r < SUM_ROWS; ++r) {
+                wr[r] = w[2 * (r * n_img + i)];
+                wi[r] = w[2 * (r * n_img + i) + 1];
+            }
+#pragma GCC ivdep
+            for (ptrdiff_t n = 0; n < m; ++n) {
+                double z[2], kg[2], g1[2], g2[2];
+                image_kernel(k, rho2[lo + n], zeta[lo + n], br, bi, z, kg, g1, g2);
+                const double g2zr = g2[0] * z[0] - g2[1] * z[1];
+                const double g2zi = g2[0] * z[1] + g2[1] * z[0];
+                const double g2zzr = g2zr * z[0] - g2zi * z[1];
+                const double g2zzi = g2zr * z[1] + g2zi * z[0];
+                const double vr[SUM_ROWS] = {kg[0], kg[0], g1[0], g1[0], g2[0], g2zr, g2zr, g2zzr};
+                const double vi[SUM_ROWS] = {kg[1], kg[1], g1[1], g1[1], g2[1], g2zi, g2zi, g2zzi};
+                for (int r = 0; r < SUM_ROWS; ++r) {
+                    acc_r[r][n] += wr[r] * vr[r] - wi[r] * vi[r];
+                    acc_i[r][n] += wr[r] * vi[r] + wi[r] * vr[r];
+                }
+            }
+        }
+        for (int r = 0; r < SUM_ROWS; ++r) {
+            double *restrict o = out + 2 * (r * n_pts + lo);
+            for (ptrdiff_t n = 0; n < m; ++n) {
+                o[2 * n] = acc_r[r][n];
+                o[2 * n + 1] = acc_i[r][n];
+            }
         }
     }
 }
