@@ -97,17 +97,9 @@ def image_kernels(k: float, rho2: np.ndarray, zeta: np.ndarray, beta: np.ndarray
     lib = lib or _load()[0]
     if lib is None:
         return None
-    rho2, zeta, beta = _points(rho2, zeta, beta)
-    out = np.empty((4, len(beta), len(rho2)), dtype=np.complex128)
-    lib.image_kernels(
-        len(beta),
-        len(rho2),
-        float(k),
-        rho2.ctypes.data,
-        zeta.ctypes.data,
-        beta.ctypes.data,
-        *(out[i].ctypes.data for i in range(4)),
-    )
+    arrays, head = _image_args(k, rho2, zeta, beta)
+    out = np.empty((4, len(arrays[2]), len(arrays[0])), dtype=np.complex128)
+    lib.image_kernels(*head, *(out[i].ctypes.data for i in range(4)))
     return out[0], out[1], out[2], out[3]
 
 
@@ -125,32 +117,26 @@ def image_sums(k: float, rho2, zeta, beta, weights: np.ndarray, *, lib=None):
     lib = lib or _load()[0]
     if lib is None:
         return None
-    rho2, zeta, beta = _points(rho2, zeta, beta)
+    arrays, head = _image_args(k, rho2, zeta, beta)
     weights = np.ascontiguousarray(weights, dtype=np.complex128)
-    if weights.shape != (8, len(beta)):
+    if weights.shape != (8, len(arrays[2])):
         raise ValueError("weights must be (8, number of images)")
-    out = np.empty((8, len(rho2)), dtype=np.complex128)
-    lib.image_sums(
-        len(beta),
-        len(rho2),
-        float(k),
-        rho2.ctypes.data,
-        zeta.ctypes.data,
-        beta.ctypes.data,
-        weights.ctypes.data,
-        out.ctypes.data,
-    )
+    out = np.empty((8, len(arrays[0])), dtype=np.complex128)
+    lib.image_sums(*head, weights.ctypes.data, out.ctypes.data)
     return out
 
 
-def _points(rho2, zeta, beta):
-    """rho2, zeta and beta as the C kernels read them (contiguous float64, complex128)."""
+def _image_args(k, rho2, zeta, beta):
+    """(ρ², ζ, β) as the C kernels read them (contiguous float64, complex128), and the leading
+    arguments of both image kernels: n_img, n_pts, k and the three pointers (the arrays must stay
+    referenced while the call runs)."""
     rho2 = np.ascontiguousarray(rho2, dtype=np.float64)
     zeta = np.ascontiguousarray(zeta, dtype=np.float64)
     beta = np.ascontiguousarray(beta, dtype=np.complex128)
     if rho2.shape != zeta.shape or rho2.ndim != 1 or beta.ndim != 1:
         raise ValueError("rho2 and zeta must be 1-D of one length, beta 1-D")
-    return rho2, zeta, beta
+    head = (len(beta), len(rho2), float(k), rho2.ctypes.data, zeta.ctypes.data, beta.ctypes.data)
+    return (rho2, zeta, beta), head
 
 
 def smooth_potentials(k: float, r: np.ndarray, wl: np.ndarray, u: np.ndarray, *, lib=None):
