@@ -278,20 +278,11 @@ def coupling_pairs(obs, t_obs, src, t_src, im: ComplexImages) -> np.ndarray:
     return np.einsum("rn,rn->n", factors, sums)
 
 
-def _image_kernels(k, rho2, zeta, beta):
+def _image_kernels_numpy(k, rho2, zeta, beta):
     """z = ζ + β and the kernels kg = k²G + G1, G1, G2 (I, n) of every image at (ρ², ζ) points.
 
-    G = e^{−jkR}/R with R = √(ρ² + z²) and ∂i∂j G = G2 XiXj + G1 δij. The compiled kernel
-    (:mod:`fieldkit.antenna.native`) when it is built, else :func:`_image_kernels_numpy`.
-    """
-    out = native.image_kernels(k, rho2, zeta, beta)
-    return _image_kernels_numpy(k, rho2, zeta, beta) if out is None else out
-
-
-def _image_kernels_numpy(k, rho2, zeta, beta):
-    """:func:`_image_kernels` in numpy: the reference the compiled kernel is tested against.
-
-    Computed with in-place products (the blocks are memory-bound).
+    G = e^{−jkR}/R with R = √(ρ² + z²) and ∂i∂j G = G2 XiXj + G1 δij; computed with in-place
+    products (the blocks are memory-bound). The numpy reference of the compiled image sums.
     """
     z = zeta[None, :] + beta[:, None]  # (I, n)
     r2 = z * z
@@ -318,13 +309,29 @@ def _image_kernels_numpy(k, rho2, zeta, beta):
     return z, kg, g1, g2
 
 
+# the compiled kernel's row order (native.image_sums) → _field_sums_numpy's
+_FIELD_ROW_ORDER = np.array([0, 1, 2, 3, 8, 9, 4, 10, 5, 6, 7, 11])
+
+
 def _field_sums(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) -> np.ndarray:
     """The image sums (12, n) of the reflected E and H at paired (ρ², ζ) points.
 
-    Rows: Σa_h·kg, Σa_v·kg, Σa_d·G1, Σa_c·G1, Σ(a_h − a_d)·G2, Σ(a_h − a_d)·G2·z, Σa_v·G2·z,
-    Σa_v·G2·z², Σa_h·G1·z, Σa_h·G1, Σa_v·G1, Σa_c·G2 with kg = k²G + G1 and z = ζ + β.
+    Rows: Σa_h·kg, Σa_v·kg, Σa_d·G1, Σa_c·G1, Σa_h·G1, Σa_v·G1, Σ(a_h − a_d)·G2, Σa_c·G2,
+    Σ(a_h − a_d)·G2·z, Σa_v·G2·z, Σa_v·G2·z², Σa_h·G1·z with kg = k²G + G1 and z = ζ + β. The
+    compiled kernel (:mod:`fieldkit.antenna.native`) when it is built, else
+    :func:`_field_sums_numpy`.
     """
-    z, kg, g1, g2 = _image_kernels(k, rho2, zeta, beta)
+    a_hd = a_h - a_d
+    weights = np.stack([a_h, a_v, a_d, a_c, a_hd, a_hd, a_v, a_v, a_h, a_v, a_c, a_h])
+    out = native.image_sums(k, rho2, zeta, beta, weights)
+    if out is None:
+        return _field_sums_numpy(k, rho2, zeta, beta, a_h, a_v, a_d, a_c)
+    return out[_FIELD_ROW_ORDER]
+
+
+def _field_sums_numpy(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) -> np.ndarray:
+    """:func:`_field_sums` in numpy: the reference the compiled kernel is tested against."""
+    z, kg, g1, g2 = _image_kernels_numpy(k, rho2, zeta, beta)
     g2z = g2 * z
     g1z = g1 * z
     a_hd = a_h - a_d

@@ -1,7 +1,8 @@
 """The compiled kernels (fieldkit/antenna/native) against numpy's complex arithmetic.
 
 Reference: numpy's complex128 sqrt, exp and sin (C99 Annex G principal branches, as glibc
-implements them) in ``sommerfeld._image_kernels_numpy`` and ``kernel._smooth_sums_numpy``, the
+implements them) in ``sommerfeld._image_kernels_numpy`` (through ``_image_sums_numpy`` and
+``_field_sums_numpy``) and ``kernel._smooth_sums_numpy``, the
 code the engine ran before the kernels were compiled and still runs without a compiler. The whole engine is checked against NEC-2 with the
 compiled kernel in tests/antenna/test_nec_lossy.py.
 """
@@ -47,18 +48,34 @@ def _points(rng, n):
     return rho2, zeta
 
 
+def _kernels_of_each_image(k, rho2, zeta, beta):
+    """Per image, the twelve compiled sums with that image's weight 1 and the others' 0: the
+    kernel quantities kg, kg, G1, G1, G2, G2z, G2z, G2z², G1, G1, G2, G1z of that image alone."""
+    out = []
+    for i in range(len(beta)):
+        unit = np.zeros((native.FIELD_ROWS, len(beta)), dtype=complex)
+        unit[:, i] = 1.0
+        out.append(native.image_sums(k, rho2, zeta, beta, unit))
+    return np.stack(out, axis=1)  # (12, I, n)
+
+
+def _numpy_kernels(k, rho2, zeta, beta):
+    z, kg, g1, g2 = sf._image_kernels_numpy(k, rho2, zeta, beta)
+    g2z = g2 * z
+    return np.stack([kg, kg, g1, g1, g2, g2z, g2z, g2z * z, g1, g1, g2, g1 * z])
+
+
 @pytest.mark.parametrize("ground", sorted(GROUND_PRESETS))
 @pytest.mark.parametrize("f_mhz", [1.9, 5.36, 14.2])
 def test_kernels_agree_with_numpy(ground, f_mhz):
     _compiled_or_skip()
     im = sf._images_for(parse_ground(ground), f_mhz * 1e6)
     beta = sf._all_images(im)[0]
-    rho2, zeta = _points(np.random.default_rng(7), 2000)
-    want = sf._image_kernels_numpy(im.k0, rho2, zeta, beta)
-    got = native.image_kernels(im.k0, rho2, zeta, beta)
-    for name, w, g in zip(("z", "kg", "g1", "g2"), want, got, strict=True):
-        scale = np.max(np.abs(w), axis=1, keepdims=True)
-        assert np.max(np.abs(g - w) / scale) < AGREEMENT, name
+    rho2, zeta = _points(np.random.default_rng(7), 300)
+    want = _numpy_kernels(im.k0, rho2, zeta, beta)
+    got = _kernels_of_each_image(im.k0, rho2, zeta, beta)
+    scale = np.max(np.abs(want), axis=2, keepdims=True)  # per row and image
+    assert np.max(np.abs(got - want) / scale) < AGREEMENT
 
 
 @pytest.mark.parametrize("ground", ["sea-water", "average", "very-dry"])
@@ -68,11 +85,15 @@ def test_image_sums_agree_with_numpy(ground):
     im = sf._images_for(parse_ground(ground), 3.6e6)
     images = sf._all_images(im)
     rho2, zeta = _points(np.random.default_rng(11), 300)
-    want = sf._image_sums_numpy(im.k0, rho2, zeta, *images)
-    got = sf._image_sums(im.k0, rho2, zeta, *images)
-    assert got.shape == want.shape == (8, 300)
-    scale = np.max(np.abs(want), axis=1, keepdims=True)
-    assert np.max(np.abs(got - want) / scale) < AGREEMENT
+    for fast, slow, rows in (
+        (sf._image_sums, sf._image_sums_numpy, 8),
+        (sf._field_sums, sf._field_sums_numpy, 12),
+    ):
+        want = slow(im.k0, rho2, zeta, *images)
+        got = fast(im.k0, rho2, zeta, *images)
+        assert got.shape == want.shape == (rows, 300)
+        scale = np.max(np.abs(want), axis=1, keepdims=True)
+        assert np.max(np.abs(got - want) / scale) < AGREEMENT, fast.__name__
 
 
 def test_both_branches_of_the_square_root():
@@ -83,12 +104,19 @@ def test_both_branches_of_the_square_root():
     rho2 = np.array([0.0, 1.0, 4.0, 30.0, 100.0])
     zeta = np.array([0.5, 1.0, 2.0, 0.2, 6.0])
     k = 2 * np.pi / 80.0
-    want = sf._image_kernels_numpy(k, rho2, zeta, beta)
-    got = native.image_kernels(k, rho2, zeta, beta)
     r2 = (zeta[None, :] + beta[:, None]) ** 2 + rho2[None, :]
     assert (r2.real < 0).any() and (r2.real > 0).any()  # both arms are exercised
-    for w, g in zip(want, got, strict=True):
-        np.testing.assert_allclose(g, w, rtol=AGREEMENT, atol=0)
+    want = _numpy_kernels(k, rho2, zeta, beta)
+    got = _kernels_of_each_image(k, rho2, zeta, beta)
+    np.testing.assert_allclose(got, want, rtol=AGREEMENT, atol=0)
+
+
+def test_malformed_arguments_are_refused():
+    _compiled_or_skip()
+    with pytest.raises(ValueError, match="8 or 12"):
+        native.image_sums(1.0, np.ones(3), np.ones(3), np.ones(2), np.ones((5, 2)))
+    with pytest.raises(ValueError, match="1-D of one length"):
+        native.image_sums(1.0, np.ones(3), np.ones(4), np.ones(2), np.ones((8, 2)))
 
 
 @pytest.mark.parametrize("f_mhz", [1.9, 7.1, 29.0])
@@ -109,7 +137,7 @@ def test_smooth_potentials_agree_with_numpy(f_mhz):
 
 
 def _numpy_only(monkeypatch):
-    for name in ("image_kernels", "image_sums", "smooth_potentials"):
+    for name in ("image_sums", "smooth_potentials"):
         monkeypatch.setattr(native, name, lambda *a, **k: None)
 
 
@@ -117,12 +145,18 @@ def test_a_lossy_solve_is_the_same_with_either_kernel(monkeypatch):
     _compiled_or_skip()
     case = dipole("flat", 3.6, 0.12)
     kw = dict(frequencies_hz=[3.5e6, 3.6e6], ground=parse_ground("average"))
+    # near-field points as the keep-out search takes them: beside and under the wire, 0.5–2 m up
+    pts = np.array([[x, y, z] for x in (0.0, 8.0, 30.0) for y in (0.0, 4.0) for z in (0.5, 2.0)])
     fast = solve(case.antenna, **kw)
+    fast_near = fast[1].near_field(pts)
     _numpy_only(monkeypatch)
     slow = solve(case.antenna, **kw)
+    slow_near = slow[1].near_field(pts)
     for a, b in zip(fast, slow, strict=True):
         assert abs(a.impedance_ohm - b.impedance_ohm) < 1e-9 * abs(b.impedance_ohm)
         assert a.zenith_gain_dbi == pytest.approx(b.zenith_gain_dbi, abs=1e-9)
+    for a, b in zip(fast_near, slow_near, strict=True):  # E [V/m] and H [A/m]
+        assert np.max(np.abs(a - b)) < 1e-9 * np.max(np.abs(b))
 
 
 @pytest.mark.skipif(shutil.which("cc") is None and shutil.which("gcc") is None, reason="no cc")

@@ -4,10 +4,9 @@ Two loops are compiled, the ones where a plan spent most of its engine time at n
 (figures in docs/engine.md), each ~10× faster, vectorised with glibc's vector maths library, and
 within ~5e-15 relative of numpy (``tests/antenna/test_native.py``):
 
-- :func:`image_sums` and :func:`image_kernels`: the complex square root and exponential of every
-  complex image and point pair of the lossy-ground field, summed over the images for the matrix
-  (``sommerfeld._image_sums_numpy``) or per image for the near field
-  (``sommerfeld._image_kernels_numpy``);
+- :func:`image_sums`: the complex square root and exponential of every complex image and point
+  pair of the lossy-ground field, summed over the images for the matrix
+  (``sommerfeld._image_sums_numpy``) and the near field (``sommerfeld._field_sums_numpy``);
 - :func:`smooth_potentials`: the smooth part (e^{−jkR} − 1)/R of the free-space potential integrals
   over the source Gauss points (``kernel._smooth_sums_numpy``).
 
@@ -38,8 +37,8 @@ _SIZE, _REAL, _PTR = ctypes.c_ssize_t, ctypes.c_double, ctypes.c_void_p
 class Kernels(NamedTuple):
     """The library's C functions (ctypes)."""
 
-    image_kernels: object
     image_sums: object
+    field_sums: object
     smooth_potentials: object
 
 
@@ -64,14 +63,13 @@ def load_library(library: Path, source: Path) -> tuple[Kernels | None, str]:
     built_from = lib.fk_source_sha256().decode()
     if built_from != hashlib.sha256(source.read_bytes()).hexdigest():
         return None, f"numpy kernels ({library.name} was built from another {source.name}; rebuild)"
-    images, sums, smooth = lib.fk_image_kernels, lib.fk_image_sums, lib.fk_smooth_potentials
-    images.restype = None
-    images.argtypes = [_SIZE, _SIZE, _REAL] + [_PTR] * 7
-    sums.restype = None
-    sums.argtypes = [_SIZE, _SIZE, _REAL] + [_PTR] * 5
+    sums, fields, smooth = lib.fk_image_sums, lib.fk_field_sums, lib.fk_smooth_potentials
+    for fn in (sums, fields):
+        fn.restype = None
+        fn.argtypes = [_SIZE, _SIZE, _REAL] + [_PTR] * 5
     smooth.restype = ctypes.c_int
     smooth.argtypes = [_SIZE, _SIZE, _SIZE, _REAL] + [_PTR] * 5
-    return Kernels(images, sums, smooth), f"compiled kernels ({library.name})"
+    return Kernels(sums, fields, smooth), f"compiled kernels ({library.name})"
 
 
 def status() -> str:
@@ -84,34 +82,23 @@ def compiled() -> bool:
     return _load()[0] is not None
 
 
-def image_kernels(k: float, rho2: np.ndarray, zeta: np.ndarray, beta: np.ndarray, *, lib=None):
-    """z, kg, g1, g2 (each complex (I, n)) as ``sommerfeld._image_kernels``, or None when not compiled.
-
-    Parameters
-    ----------
-    k : wavenumber [1/m]
-    rho2, zeta : (n,) squared horizontal distance [m²] and z + z' [m] of the point pairs
-    beta : (I,) complex image depths [m]
-    lib : kernels from :func:`load_library`; default: this package's library
-    """
-    lib = lib or _load()[0]
-    if lib is None:
-        return None
-    arrays, head = _image_args(k, rho2, zeta, beta)
-    out = np.empty((4, len(arrays[2]), len(arrays[0])), dtype=np.complex128)
-    lib.image_kernels(*head, *(out[i].ctypes.data for i in range(4)))
-    return out[0], out[1], out[2], out[3]
+MATRIX_ROWS = 8  # rows of the matrix's image sums; the near field's are these and four more
+FIELD_ROWS = 12
 
 
 def image_sums(k: float, rho2, zeta, beta, weights: np.ndarray, *, lib=None):
-    """The image sums (8, n) of ``sommerfeld._image_sums_numpy``, or None when not compiled.
+    """Image sums Σ_i w[r, i] K_r (rows, n), or None when not compiled.
+
+    The kernel quantity of row r is, in order, kg, kg, G1, G1, G2, G2·z, G2·z, G2·z² (the
+    matrix's eight rows, ``sommerfeld._image_sums_numpy``) and, with twelve rows, G1, G1, G2, G1·z
+    (the near field's, ``sommerfeld._field_sums_numpy`` in another row order).
 
     Parameters
     ----------
     k : wavenumber [1/m]
     rho2, zeta : (n,) squared horizontal distance [m²] and z + z' [m] of the point pairs
     beta : (I,) complex image depths [m]
-    weights : (8, I) complex residues per row: a_h, a_v, a_d, a_c, a_h − a_d, a_h − a_d, a_v, a_v
+    weights : (8 or 12, I) complex residues per row and image
     lib : kernels from :func:`load_library`; default: this package's library
     """
     lib = lib or _load()[0]
@@ -119,16 +106,18 @@ def image_sums(k: float, rho2, zeta, beta, weights: np.ndarray, *, lib=None):
         return None
     arrays, head = _image_args(k, rho2, zeta, beta)
     weights = np.ascontiguousarray(weights, dtype=np.complex128)
-    if weights.shape != (8, len(arrays[2])):
-        raise ValueError("weights must be (8, number of images)")
-    out = np.empty((8, len(arrays[0])), dtype=np.complex128)
-    lib.image_sums(*head, weights.ctypes.data, out.ctypes.data)
+    rows = len(weights)
+    if weights.shape != (rows, len(arrays[2])) or rows not in (MATRIX_ROWS, FIELD_ROWS):
+        raise ValueError("weights must be (8 or 12, number of images)")
+    out = np.empty((rows, len(arrays[0])), dtype=np.complex128)
+    fn = lib.image_sums if rows == MATRIX_ROWS else lib.field_sums
+    fn(*head, weights.ctypes.data, out.ctypes.data)
     return out
 
 
 def _image_args(k, rho2, zeta, beta):
     """(ρ², ζ, β) as the C kernels read them (contiguous float64, complex128), and the leading
-    arguments of both image kernels: n_img, n_pts, k and the three pointers (the arrays must stay
+    arguments of the image sums: n_img, n_pts, k and the three pointers (the arrays must stay
     referenced while the call runs)."""
     rho2 = np.ascontiguousarray(rho2, dtype=np.float64)
     zeta = np.ascontiguousarray(zeta, dtype=np.float64)

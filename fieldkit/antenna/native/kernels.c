@@ -1,10 +1,13 @@
 /* The engine's two hottest loops, compiled; each has its numpy reference beside the Python caller.
  *
- * 1. fk_image_kernels: the complex-image kernels of the lossy-ground field, the same quantities
- * as fieldkit.antenna.sommerfeld._image_kernels_numpy, per image i and point n:
+ * 1. fk_image_sums, fk_field_sums: the complex-image kernels of the lossy-ground field, the same
+ * quantities as fieldkit.antenna.sommerfeld._image_kernels_numpy, per image i and point n,
  *
  *   z = zeta + beta_i,  R = sqrt(rho^2 + z^2)  (principal root),  G = e^{-jkR} / R,
- *   G1 = -(1 + jkR) G / R^2,  G2 = (3 + 3jkR + (jkR)^2) G / R^4,  kg = k^2 G + G1.
+ *   G1 = -(1 + jkR) G / R^2,  G2 = (3 + 3jkR + (jkR)^2) G / R^4,  kg = k^2 G + G1,
+ *
+ * summed over the images with their residues for the matrix (_image_sums_numpy) and the near
+ * field (_field_sums_numpy).
  *
  * 2. fk_smooth_potentials: the smooth part (e^{-jkR} - 1)/R of the free-space potential integrals
  * summed over the source Gauss points, as fieldkit.antenna.kernel._smooth_sums_numpy.
@@ -78,49 +81,30 @@ static inline void image_kernel(double k, double rho2, double zeta, double br, d
     g2[1] = pr * h2i + pi * h2r;
 }
 
-/* Kernels of n_img images at n_pts points. beta is complex (re, im interleaved, n_img); the four
- * outputs are complex (n_img, n_pts) row-major, interleaved, as numpy's complex128. */
-void fk_image_kernels(ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *restrict rho2,
-                      const double *restrict zeta, const double *restrict beta,
-                      double *restrict z_out, double *restrict kg_out, double *restrict g1_out,
-                      double *restrict g2_out)
-{
-    for (ptrdiff_t i = 0; i < n_img; ++i) {
-        const double br = beta[2 * i], bi = beta[2 * i + 1];
-        double *restrict zo = z_out + 2 * i * n_pts;
-        double *restrict kgo = kg_out + 2 * i * n_pts;
-        double *restrict g1o = g1_out + 2 * i * n_pts;
-        double *restrict g2o = g2_out + 2 * i * n_pts;
-#pragma GCC ivdep
-        for (ptrdiff_t n = 0; n < n_pts; ++n)
-            image_kernel(k, rho2[n], zeta[n], br, bi, zo + 2 * n, kgo + 2 * n, g1o + 2 * n,
-                         g2o + 2 * n);
-    }
-}
+#define SUM_ROWS 12
+#define MATRIX_ROWS 8
+#define SUM_BLOCK 128 /* points per block: the block's sums stay in L1 (24 KiB) */
 
-#define SUM_ROWS 8
-#define SUM_BLOCK 128 /* points per block: the block's sums stay in L1 (16 KiB) */
-
-/* The eight image sums of the moment-method matrix's reflected coupling at n_pts points, as
- * fieldkit.antenna.sommerfeld._image_sums_numpy: with per-image weights w (complex (8, n_img),
- * rows a_h, a_v, a_d, a_c, a_h - a_d, a_h - a_d, a_v, a_v),
- *   out[0..1] = sum_i w kg,  out[2..3] = sum_i w G1,  out[4] = sum_i w G2,
- *   out[5..6] = sum_i w G2 z,  out[7] = sum_i w G2 z^2;
- * out complex (8, n_pts), interleaved. */
-void fk_image_sums(ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *restrict rho2,
-                   const double *restrict zeta, const double *restrict beta,
-                   const double *restrict w, double *restrict out)
+/* Image sums at n_pts points: with per-image weights w (complex (n_rows, n_img), interleaved),
+ * row r is sum_i w[r, i] K_r(i, n) for the kernel quantities, in this order,
+ *   K = kg, kg, G1, G1, G2, G2 z, G2 z, G2 z^2 | G1, G1, G2, G1 z
+ * (the first eight are the matrix's, all twelve the near field's); out complex (n_rows, n_pts).
+ * The images' kernels of a block of points are summed in L1: no (images x points) arrays. */
+static inline __attribute__((always_inline)) void
+image_sums(int n_rows, ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *restrict rho2,
+           const double *restrict zeta, const double *restrict beta, const double *restrict w,
+           double *restrict out)
 {
     double acc_r[SUM_ROWS][SUM_BLOCK], acc_i[SUM_ROWS][SUM_BLOCK];
     for (ptrdiff_t lo = 0; lo < n_pts; lo += SUM_BLOCK) {
         const ptrdiff_t m = n_pts - lo < SUM_BLOCK ? n_pts - lo : SUM_BLOCK;
-        for (int r = 0; r < SUM_ROWS; ++r)
+        for (int r = 0; r < n_rows; ++r)
             for (ptrdiff_t n = 0; n < m; ++n)
                 acc_r[r][n] = acc_i[r][n] = 0.0;
         for (ptrdiff_t i = 0; i < n_img; ++i) {
             const double br = beta[2 * i], bi = beta[2 * i + 1];
             double wr[SUM_ROWS], wi[SUM_ROWS];
-            for (int r = 0; r < SUM_ROWS; ++r) {
+            for (int r = 0; r < n_rows; ++r) {
                 wr[r] = w[2 * (r * n_img + i)];
                 wi[r] = w[2 * (r * n_img + i) + 1];
             }
@@ -132,15 +116,19 @@ void fk_image_sums(ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *res
                 const double g2zi = g2[0] * z[1] + g2[1] * z[0];
                 const double g2zzr = g2zr * z[0] - g2zi * z[1];
                 const double g2zzi = g2zr * z[1] + g2zi * z[0];
-                const double vr[SUM_ROWS] = {kg[0], kg[0], g1[0], g1[0], g2[0], g2zr, g2zr, g2zzr};
-                const double vi[SUM_ROWS] = {kg[1], kg[1], g1[1], g1[1], g2[1], g2zi, g2zi, g2zzi};
-                for (int r = 0; r < SUM_ROWS; ++r) {
+                const double g1zr = g1[0] * z[0] - g1[1] * z[1];
+                const double g1zi = g1[0] * z[1] + g1[1] * z[0];
+                const double vr[SUM_ROWS] = {kg[0], kg[0], g1[0], g1[0], g2[0], g2zr,
+                                             g2zr,  g2zzr, g1[0], g1[0], g2[0], g1zr};
+                const double vi[SUM_ROWS] = {kg[1], kg[1], g1[1], g1[1], g2[1], g2zi,
+                                             g2zi,  g2zzi, g1[1], g1[1], g2[1], g1zi};
+                for (int r = 0; r < n_rows; ++r) {
                     acc_r[r][n] += wr[r] * vr[r] - wi[r] * vi[r];
                     acc_i[r][n] += wr[r] * vi[r] + wi[r] * vr[r];
                 }
             }
         }
-        for (int r = 0; r < SUM_ROWS; ++r) {
+        for (int r = 0; r < n_rows; ++r) {
             double *restrict o = out + 2 * (r * n_pts + lo);
             for (ptrdiff_t n = 0; n < m; ++n) {
                 o[2 * n] = acc_r[r][n];
@@ -148,6 +136,23 @@ void fk_image_sums(ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *res
             }
         }
     }
+}
+
+/* The matrix's eight image sums (fieldkit.antenna.sommerfeld._image_sums_numpy): w (8, n_img) */
+void fk_image_sums(ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *restrict rho2,
+                   const double *restrict zeta, const double *restrict beta,
+                   const double *restrict w, double *restrict out)
+{
+    image_sums(MATRIX_ROWS, n_img, n_pts, k, rho2, zeta, beta, w, out);
+}
+
+/* The near field's twelve image sums (fieldkit.antenna.sommerfeld._field_sums_numpy, in the
+ * order above): w (12, n_img) */
+void fk_field_sums(ptrdiff_t n_img, ptrdiff_t n_pts, double k, const double *restrict rho2,
+                   const double *restrict zeta, const double *restrict beta,
+                   const double *restrict w, double *restrict out)
+{
+    image_sums(SUM_ROWS, n_img, n_pts, k, rho2, zeta, beta, w, out);
 }
 
 /* Sums over the n_q source Gauss points of (e^{-jkr} - 1)/r, weighted:
