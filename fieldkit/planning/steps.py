@@ -15,6 +15,7 @@ import numpy as np
 from fieldkit.errors import InputError, join
 from fieldkit.planning.inputs import PlanInput
 from fieldkit.planning.records import Candidate, FinishedOption, SkyFit, Workbench, channel_rank
+from fieldkit.readable import height_both
 from fieldkit.rigging.cut import trim_cm_per_leg
 from fieldkit.rigging.heights import LOWEST_END_HEIGHT_M, MIN_END_HEIGHT_M, low_end_words
 from fieldkit.rigging.layouts import Layout, site_layouts
@@ -320,8 +321,9 @@ def option_warnings(
     need = safety.min_end_height_m
     if need > low_end + LOW_END_MARGIN_M:
         warnings.append(
-            f"the lowest wire end hangs at {low_end:.1f} m; keep it at {need:.1f} m "
-            "or more so that no RF keep-out zone remains under the ends (safety block)"
+            f"the lowest wire end hangs at {height_both(low_end)}; keep it at "
+            f"{height_both(need)} or more so that no RF keep-out zone remains under the ends "
+            "(safety block)"
         )
     return tuple(warnings)
 
