@@ -1,0 +1,132 @@
+"""A bounded cache for the hang geometry, keyed by the exact input numbers and shared across plans.
+
+Hanging a wire is a pure function of a handful of numbers (positions, heights, lengths, weights,
+pull). A running service plans the same site again and again (the app re-plans after a dropped
+connection or a saved deployment, and a re-plan after an edit keeps most hangs), and every hang is
+solved afresh each time: about 0.1 s of CPU of a warm demo plan (measured, issue 17). This cache
+answers a hang asked before with the very answer computed then.
+
+Keys are the exact values — each float by its 8 bytes and its type, never rounded — so ``0.0`` and
+``-0.0``, or ``1`` and ``1.0``, are different keys, and a cached answer is bit for bit the one the
+function would give. A refusal (:class:`~fieldkit.rigging.catenary.HangError`) is cached as its
+message and raised anew each time. Arrays in a cached answer are made read-only: every caller shares
+them. The size is bounded (least recently used entries go first).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import functools
+import struct
+import threading
+from collections import OrderedDict
+from collections.abc import Callable
+from typing import Any
+
+import numpy as np
+
+from fieldkit.rigging.catenary import HangError
+
+# About 2 kB per hung dipole (a polyline of a few dozen points and its figures): 1024 entries stay
+# under 2–3 MB. A demo plan hangs ~130 spans and ~300 inverted-Vs (measured, issue 17).
+HANG_CACHE_ENTRIES = 1024
+
+
+def exact_key(value: Any) -> Any:
+    """A hashable key that tells apart every float bit pattern and every type.
+
+    Parameters
+    ----------
+    value : float, int, bool, str, None, a tuple/list of these, or an ndarray [-]
+
+    Raises
+    ------
+    TypeError
+        For any other type (so that nothing is keyed by identity or by a lossy repr).
+    """
+    if isinstance(value, float):  # numpy's float64 too: its type stays in the key
+        return (type(value), struct.pack("<d", value))
+    if isinstance(value, (bool, int, str)) or value is None:
+        return (type(value), value)
+    if isinstance(value, (tuple, list)):
+        return (type(value), tuple(exact_key(v) for v in value))
+    if isinstance(value, np.ndarray):
+        arr = np.ascontiguousarray(value)
+        return (np.ndarray, arr.dtype.str, arr.shape, arr.tobytes())
+    raise TypeError(f"no exact key for a {type(value).__name__}")
+
+
+def _read_only(result: Any) -> Any:
+    """The result with its array fields made read-only (it is shared by every caller)."""
+    if dataclasses.is_dataclass(result):
+        for f in dataclasses.fields(result):
+            v = getattr(result, f.name)
+            if isinstance(v, np.ndarray):
+                v.setflags(write=False)
+    return result
+
+
+class ExactCache:
+    """Least-recently-used store of a function's answers (or its HangError) by exact key."""
+
+    def __init__(self, entries: int) -> None:
+        self.entries = entries
+        self._store: OrderedDict[Any, tuple[bool, Any]] = OrderedDict()
+        self._lock = threading.Lock()
+        self.hits = 0
+        self.misses = 0
+
+    def get(self, key: Any) -> tuple[bool, Any] | None:
+        with self._lock:
+            got = self._store.get(key)
+            if got is None:
+                self.misses += 1
+                return None
+            self._store.move_to_end(key)
+            self.hits += 1
+            return got
+
+    def put(self, key: Any, entry: tuple[bool, Any]) -> None:
+        with self._lock:
+            self._store[key] = entry
+            self._store.move_to_end(key)
+            while len(self._store) > self.entries:
+                self._store.popitem(last=False)
+
+    def clear(self) -> None:
+        with self._lock:
+            self._store.clear()
+            self.hits = self.misses = 0
+
+    def __len__(self) -> int:
+        return len(self._store)
+
+
+def exact_memo(entries: int) -> Callable[[Callable[..., Any]], Callable[..., Any]]:
+    """Decorate a keyword-only pure function with an :class:`ExactCache` (as ``fn.cache``).
+
+    Only :class:`HangError` is cached among exceptions; any other error is raised uncached.
+    """
+
+    def decorate(fn: Callable[..., Any]) -> Callable[..., Any]:
+        cache = ExactCache(entries)
+
+        @functools.wraps(fn)
+        def wrapper(**kwargs: Any) -> Any:
+            key = exact_key(tuple(sorted(kwargs.items())))
+            got = cache.get(key)
+            if got is None:
+                try:
+                    got = (True, _read_only(fn(**kwargs)))
+                except HangError as e:
+                    got = (False, str(e))
+                cache.put(key, got)
+            ok, value = got
+            if not ok:
+                raise HangError(value)
+            return value
+
+        wrapper.cache = cache  # type: ignore[attr-defined]
+        return wrapper
+
+    return decorate
