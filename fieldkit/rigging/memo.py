@@ -32,6 +32,9 @@ from fieldkit.rigging.catenary import HangError
 HANG_CACHE_ENTRIES = 1024
 
 
+_PACK_DOUBLE = struct.Struct("<d").pack
+
+
 def exact_key(value: Any) -> Any:
     """A hashable key that tells apart every float bit pattern and every type.
 
@@ -44,16 +47,19 @@ def exact_key(value: Any) -> Any:
     TypeError
         For any other type (so that nothing is keyed by identity or by a lossy repr).
     """
-    if isinstance(value, float):  # numpy's float64 too: its type stays in the key
-        return (type(value), struct.pack("<d", value))
+    kind = type(value)
+    if kind is float:  # the common case first: a plain float is its 8 bytes
+        return _PACK_DOUBLE(value)
+    if kind is tuple or kind is list:
+        return (kind, tuple(map(exact_key, value)))
+    if isinstance(value, float):  # a float subclass (numpy's float64): its type stays in the key
+        return (kind, _PACK_DOUBLE(value))
     if isinstance(value, (bool, int, str)) or value is None:
-        return (type(value), value)
-    if isinstance(value, (tuple, list)):
-        return (type(value), tuple(exact_key(v) for v in value))
+        return (kind, value)
     if isinstance(value, np.ndarray):
         arr = np.ascontiguousarray(value)
         return (np.ndarray, arr.dtype.str, arr.shape, arr.tobytes())
-    raise TypeError(f"no exact key for a {type(value).__name__}")
+    raise TypeError(f"no exact key for a {kind.__name__}")
 
 
 def _read_only(result: Any) -> Any:
@@ -113,7 +119,7 @@ def exact_memo(entries: int) -> Callable[[Callable[..., Any]], Callable[..., Any
 
         @functools.wraps(fn)
         def wrapper(**kwargs: Any) -> Any:
-            key = exact_key(tuple(sorted(kwargs.items())))
+            key = tuple((name, exact_key(kwargs[name])) for name in sorted(kwargs))
             got = cache.get(key)
             if got is None:
                 try:
