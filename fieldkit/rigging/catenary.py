@@ -172,6 +172,11 @@ def point_load_sag_m(
     return a * (np.cosh(span_m / (2 * a) + np.arcsinh(q)) - np.hypot(1.0, q))
 
 
+# Below this |log(H/T)| the residual runs in plain floats (np.exp cannot overflow or reach 0 there,
+# so no step divides by zero and float arithmetic gives numpy's very bits); beyond it, numpy's.
+_EXP_SAFE = 700.0
+
+
 class HangError(ValueError):
     """The chain cannot hang between the given points at the given tension."""
 
@@ -203,7 +208,7 @@ def hang_between(
     """
     t = end_tension_n
 
-    def residual(x: np.ndarray) -> np.ndarray:
+    def probe(x: np.ndarray) -> np.ndarray:
         with np.errstate(all="ignore"):  # the solver may probe absurd tensions on the way
             h, v0, free = t * np.exp(x[0]), t * x[1], span_m * x[2]
             try:
@@ -213,6 +218,19 @@ def hang_between(
             tmax = max(math.hypot(h, v0), math.hypot(h, v1))
             out = np.array([(u - span_m) / span_m, (z - rise_m) / span_m, tmax / t - 1.0])
         return np.where(np.isfinite(out), out, 1e6)
+
+    def residual(x: np.ndarray) -> np.ndarray:
+        x0, x1, x2 = float(x[0]), float(x[1]), float(x[2])
+        if not (abs(x0) < _EXP_SAFE and math.isfinite(x1) and math.isfinite(x2)):
+            return probe(x)  # far out: numpy's overflow and division rules, warnings silenced
+        h, v0, free = t * float(np.exp(x0)), t * x1, span_m * x2
+        try:
+            u, z, v1 = _end_point(pieces_of(free), h, v0)
+        except (ZeroDivisionError, OverflowError, ValueError):
+            return np.full(3, 1e6)
+        tmax = max(math.hypot(h, v0), math.hypot(h, v1))
+        out = ((u - span_m) / span_m, (z - rise_m) / span_m, tmax / t - 1.0)
+        return np.array([c if math.isfinite(c) else 1e6 for c in out])
 
     starts = [
         np.array([np.log(guess_h), -0.15 + 0.5 * rise_m / max(span_m, 1e-9), free_guess / span_m])
