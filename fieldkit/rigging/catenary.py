@@ -269,13 +269,15 @@ def hang_to_height(
     if drop_m >= length:
         raise HangError("the leg is too short to reach that low")
 
+    # the far end carries the chain's weight less its own load (the same sum, once)
+    weight = sum(p.weight_n_per_m * p.length_m + p.load_after_n for p in pieces)
+    weight -= pieces[-1].load_after_n
+
     def z_end(h: float) -> tuple[float, float]:
-        # for a given H the far-end tension fixes its vertical component; integrate backwards
-        v1 = -np.sqrt(max(t * t - h * h, 0.0))  # leg descends toward the end: slope negative there
-        weight = (
-            sum(p.weight_n_per_m * p.length_m + p.load_after_n for p in pieces)
-            - pieces[-1].load_after_n
-        )
+        # for a given H the far-end tension fixes its vertical component; integrate backwards.
+        # The leg descends toward the end: slope negative there. (math.sqrt and np.sqrt both
+        # round correctly, IEEE 754: the same bits.)
+        v1 = -math.sqrt(max(t * t - h * h, 0.0))
         v0 = v1 - weight
         u, z, _ = _end_point(pieces, h, v0)
         return z, v0
@@ -284,9 +286,10 @@ def hang_to_height(
         return z_end(h)[0] + drop_m
 
     lo, hi = t * 1e-4, t * (1 - 1e-12)
-    if f(lo) * f(hi) > 0:
+    f_lo, f_hi = f(lo), f(hi)
+    if f_lo * f_hi > 0:
         raise HangError("the pull cannot hold the leg at that angle")
-    h = brent(f, lo, hi, xtol=1e-12 * t)
-    v0 = z_end(h)[1]
+    h = brent(f, lo, hi, xtol=1e-12 * t, fa=f_lo, fb=f_hi)
+    v0 = np.float64(z_end(h)[1])  # numpy's type, as np.sqrt gave it
     shape = integrate_chain(pieces, horizontal_tension_n=h, start_vertical_n=v0)
     return shape, float(shape.u_m[-1])

@@ -119,13 +119,11 @@ def hang_span(
     rise = b_height_m - a_height_m
     ww, wr = wire_weight_n_per_m, rope_weight_n_per_m
 
-    def with_ropes(r: float) -> tuple[Piece, ...]:
-        return (
-            Piece(r, wr, False),
-            Piece(leg_m, ww, True, feed_load_n),
-            Piece(leg_m, ww, True),
-            Piece(r, wr, False),
-        )
+    legs = (Piece(leg_m, ww, True, feed_load_n), Piece(leg_m, ww, True))
+
+    def with_ropes(r: float) -> tuple[Piece, ...]:  # the solver's inner loop: only the ropes change
+        rope = Piece(r, wr, False)
+        return (rope, *legs, rope)
 
     notes: list[str] = []
     tail = 0.0
