@@ -15,7 +15,6 @@ them. The size is bounded (least recently used entries go first).
 
 from __future__ import annotations
 
-import dataclasses
 import functools
 import struct
 import threading
@@ -64,11 +63,9 @@ def exact_key(value: Any) -> Any:
 
 def _read_only(result: Any) -> Any:
     """The result with its array fields made read-only (it is shared by every caller)."""
-    if dataclasses.is_dataclass(result):
-        for f in dataclasses.fields(result):
-            v = getattr(result, f.name)
-            if isinstance(v, np.ndarray):
-                v.setflags(write=False)
+    for v in getattr(result, "__dict__", {}).values():  # a dataclass's fields
+        if isinstance(v, np.ndarray):
+            v.setflags(write=False)
     return result
 
 
