@@ -1,10 +1,10 @@
 """A bounded cache for the hang geometry, keyed by the exact input numbers and shared across plans.
 
 Hanging a wire is a pure function of a handful of numbers (positions, heights, lengths, weights,
-pull). The service's plan cache answers only an input seen before as a whole; a re-plan after an
-edit that leaves the supports, the wire, the kit's weights and the channels alone (another date, a
-hazard, the radio) hangs the very same wires again, as does every later plan of one site in a
-running process. Each hang used to be solved afresh: 0.08–0.09 s of CPU of a warm demo plan
+pull). The service's plan cache answers only an input seen before as a whole; a re-plan of the demo
+after an edit of the radio, the schedule or a power line's height hangs the very same wires again
+(every hang a hit, measured), as does every later plan of one site in a running process. Another
+date re-orders the channels by the sky, and with them the legs: then nearly every hang is new. Each hang used to be solved afresh: 0.08–0.09 s of CPU of a warm demo plan
 (measured, issue 17). Within one plan hangs hardly repeat (2 of the demo's 134 spans), so a first
 plan gains nothing from the cache; it pays ~6 µs per hang for the key and ~1 MB for the entries.
 
