@@ -172,6 +172,11 @@ def point_load_sag_m(
     return a * (np.cosh(span_m / (2 * a) + np.arcsinh(q)) - np.hypot(1.0, q))
 
 
+# Below this |log(H/T)| the residual runs in plain floats (np.exp cannot overflow or reach 0 there,
+# so no step divides by zero and float arithmetic gives numpy's very bits); beyond it, numpy's.
+_EXP_SAFE = 700.0
+
+
 class HangError(ValueError):
     """The chain cannot hang between the given points at the given tension."""
 
@@ -203,7 +208,7 @@ def hang_between(
     """
     t = end_tension_n
 
-    def residual(x: np.ndarray) -> np.ndarray:
+    def probe(x: np.ndarray) -> np.ndarray:
         with np.errstate(all="ignore"):  # the solver may probe absurd tensions on the way
             h, v0, free = t * np.exp(x[0]), t * x[1], span_m * x[2]
             try:
@@ -213,6 +218,19 @@ def hang_between(
             tmax = max(math.hypot(h, v0), math.hypot(h, v1))
             out = np.array([(u - span_m) / span_m, (z - rise_m) / span_m, tmax / t - 1.0])
         return np.where(np.isfinite(out), out, 1e6)
+
+    def residual(x: np.ndarray) -> np.ndarray:
+        x0, x1, x2 = float(x[0]), float(x[1]), float(x[2])
+        if not (abs(x0) < _EXP_SAFE and math.isfinite(x1) and math.isfinite(x2)):
+            return probe(x)  # far out: numpy's overflow and division rules, warnings silenced
+        h, v0, free = t * float(np.exp(x0)), t * x1, span_m * x2
+        try:
+            u, z, v1 = _end_point(pieces_of(free), h, v0)
+        except (ZeroDivisionError, OverflowError, ValueError):
+            return np.full(3, 1e6)
+        tmax = max(math.hypot(h, v0), math.hypot(h, v1))
+        out = ((u - span_m) / span_m, (z - rise_m) / span_m, tmax / t - 1.0)
+        return np.array([c if math.isfinite(c) else 1e6 for c in out])
 
     starts = [
         np.array([np.log(guess_h), -0.15 + 0.5 * rise_m / max(span_m, 1e-9), free_guess / span_m])
@@ -251,13 +269,15 @@ def hang_to_height(
     if drop_m >= length:
         raise HangError("the leg is too short to reach that low")
 
+    # the far end carries the chain's weight less its own load (the same sum, once)
+    weight = sum(p.weight_n_per_m * p.length_m + p.load_after_n for p in pieces)
+    weight -= pieces[-1].load_after_n
+
     def z_end(h: float) -> tuple[float, float]:
-        # for a given H the far-end tension fixes its vertical component; integrate backwards
-        v1 = -np.sqrt(max(t * t - h * h, 0.0))  # leg descends toward the end: slope negative there
-        weight = (
-            sum(p.weight_n_per_m * p.length_m + p.load_after_n for p in pieces)
-            - pieces[-1].load_after_n
-        )
+        # for a given H the far-end tension fixes its vertical component; integrate backwards.
+        # The leg descends toward the end: slope negative there. (math.sqrt and np.sqrt both
+        # round correctly, IEEE 754: the same bits.)
+        v1 = -math.sqrt(max(t * t - h * h, 0.0))
         v0 = v1 - weight
         u, z, _ = _end_point(pieces, h, v0)
         return z, v0
@@ -266,9 +286,10 @@ def hang_to_height(
         return z_end(h)[0] + drop_m
 
     lo, hi = t * 1e-4, t * (1 - 1e-12)
-    if f(lo) * f(hi) > 0:
+    f_lo, f_hi = f(lo), f(hi)
+    if f_lo * f_hi > 0:
         raise HangError("the pull cannot hold the leg at that angle")
-    h = brent(f, lo, hi, xtol=1e-12 * t)
-    v0 = z_end(h)[1]
+    h = brent(f, lo, hi, xtol=1e-12 * t, fa=f_lo, fb=f_hi)
+    v0 = np.float64(z_end(h)[1])  # numpy's type, as np.sqrt gave it
     shape = integrate_chain(pieces, horizontal_tension_n=h, start_vertical_n=v0)
     return shape, float(shape.u_m[-1])

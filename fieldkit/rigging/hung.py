@@ -21,6 +21,7 @@ from fieldkit.rigging.catenary import (
     hang_between,
     hang_to_height,
 )
+from fieldkit.rigging.memo import HANG_CACHE_ENTRIES, ExactCache, exact_key, exact_memo
 
 # A drooping end runs outward and down at 45° to its stake: far enough from the trunk to keep the
 # wire off the bark, steep enough to keep the stake close (common practice, no single source).
@@ -80,6 +81,7 @@ def _plane_to_site(
     return np.column_stack([xy, z])
 
 
+@exact_memo(HANG_CACHE_ENTRIES)
 def hang_span(
     *,
     a_xy: tuple[float, float],
@@ -117,13 +119,11 @@ def hang_span(
     rise = b_height_m - a_height_m
     ww, wr = wire_weight_n_per_m, rope_weight_n_per_m
 
-    def with_ropes(r: float) -> tuple[Piece, ...]:
-        return (
-            Piece(r, wr, False),
-            Piece(leg_m, ww, True, feed_load_n),
-            Piece(leg_m, ww, True),
-            Piece(r, wr, False),
-        )
+    legs = (Piece(leg_m, ww, True, feed_load_n), Piece(leg_m, ww, True))
+
+    def with_ropes(r: float) -> tuple[Piece, ...]:  # the solver's inner loop: only the ropes change
+        rope = Piece(r, wr, False)
+        return (rope, *legs, rope)
 
     notes: list[str] = []
     tail = 0.0
@@ -213,6 +213,7 @@ def hang_span(
     )
 
 
+@exact_memo(HANG_CACHE_ENTRIES)
 def hang_inverted_v(
     *,
     centre_xy: tuple[float, float],
@@ -315,6 +316,9 @@ def truncate_about_feed(hung: HungDipole, leg_m: float) -> HungDipole:
     )
 
 
+_RECUT_CACHE = ExactCache(HANG_CACHE_ENTRIES)
+
+
 def recut(hung: HungDipole, *, max_chord_m: float) -> HungDipole:
     """The same hung wire with its polyline re-cut into equal chords no longer than ``max_chord_m``.
 
@@ -325,14 +329,28 @@ def recut(hung: HungDipole, *, max_chord_m: float) -> HungDipole:
     instead of several short ones per catenary sample.
     """
     pts = np.asarray(hung.points_m, dtype=float)
+    key = (exact_key(pts), exact_key(hung.feed_distance_m), exact_key(max_chord_m))
+    got = _RECUT_CACHE.get(key)
+    if got is None:
+        got = (True, _recut_points(pts, hung.feed_distance_m, max_chord_m))
+        got[1][0].setflags(write=False)  # shared by every caller of the cache
+        _RECUT_CACHE.put(key, got)
+    new, feed_distance = got[1]
+    return replace(hung, points_m=new, feed_distance_m=feed_distance)
+
+
+def _recut_points(
+    pts: np.ndarray, feed_distance_m: float, max_chord_m: float
+) -> tuple[np.ndarray, float]:
+    """:func:`recut` on the polyline alone: (new points, distance to the feedpoint) [m]."""
     d = np.diff(pts, axis=0)
     lengths = np.linalg.norm(d, axis=1)
     cum = np.concatenate([[0.0], np.cumsum(lengths)])
-    keep = {0, len(pts) - 1, int(np.argmin(np.abs(cum - hung.feed_distance_m)))}
+    keep = {0, len(pts) - 1, int(np.argmin(np.abs(cum - feed_distance_m)))}
     unit = d / np.maximum(lengths, 1e-12)[:, None]
     cos = np.einsum("ij,ij->i", unit[:-1], unit[1:])
     keep |= {i + 1 for i in np.flatnonzero(cos < math.cos(math.radians(CORNER_DEG)))}
-    feed_vertex = pts[int(np.argmin(np.abs(cum - hung.feed_distance_m)))]
+    feed_vertex = pts[int(np.argmin(np.abs(cum - feed_distance_m)))]
     corners = sorted(keep)
     out = [pts[:1]]
     for i, j in zip(corners[:-1], corners[1:], strict=True):
@@ -343,8 +361,4 @@ def recut(hung: HungDipole, *, max_chord_m: float) -> HungDipole:
         out.append(np.stack([np.interp(s, cum[i : j + 1], pts[i : j + 1, k]) for k in range(3)], 1))
     new = np.vstack(out)
     feed_at = int(np.argmin(np.linalg.norm(new - feed_vertex, axis=1)))
-    return replace(
-        hung,
-        points_m=new,
-        feed_distance_m=float(np.linalg.norm(np.diff(new[: feed_at + 1], axis=0), axis=1).sum()),
-    )
+    return new, float(np.linalg.norm(np.diff(new[: feed_at + 1], axis=0), axis=1).sum())

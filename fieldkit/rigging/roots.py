@@ -33,17 +33,21 @@ def brent(
     xtol: float,
     rtol: float = 4 * EPS,
     max_iter: int = 100,
+    fa: float | None = None,
+    fb: float | None = None,
 ) -> float:
     """A zero of ``f`` in [a, b], where f(a) and f(b) differ in sign (Brent 1973) [1].
 
     Converged when the bracket is shorter than 2·(xtol + rtol·|x|)/2 round the best estimate.
+    ``fa``, ``fb``: f(a) and f(b) when the caller has them already (not evaluated again).
 
     Raises
     ------
     ValueError
         When f(a) and f(b) have the same sign, or no convergence in ``max_iter`` steps.
     """
-    fa, fb = f(a), f(b)
+    fa = f(a) if fa is None else fa
+    fb = f(b) if fb is None else fb
     if fa == 0:
         return a
     if fb == 0:

@@ -85,7 +85,7 @@ def test_hang_between_agrees_with_the_minpack_solution(monkeypatch, span, rise, 
 def test_hang_to_height_agrees_with_scipys_brentq(monkeypatch):
     leg = (Piece(19.0, 0.0165, True), Piece(3.0, 0.02, False))
     shape, reach = hang_to_height(leg, drop_m=6.0, end_tension_n=30.0)
-    monkeypatch.setattr(catenary, "brent", lambda f, a, b, xtol: brentq(f, a, b, xtol=xtol))
+    monkeypatch.setattr(catenary, "brent", lambda f, a, b, xtol, **_: brentq(f, a, b, xtol=xtol))
     ref_shape, ref_reach = hang_to_height(leg, drop_m=6.0, end_tension_n=30.0)
     assert reach == pytest.approx(ref_reach, abs=1e-9)
     assert shape.z_m[-1] == pytest.approx(-6.0, abs=1e-9)
