@@ -174,7 +174,7 @@ def feedline_json(coax: Coax, *, frequency_hz: float, swr: float) -> dict[str, A
     """The option's feedline block."""
     ml = coax.matched_loss_db(frequency_hz)
     total = total_loss_db(matched_loss_db=ml, swr=swr)
-    return {
+    out = {
         "coax": coax.name,
         "length_m": coax.length_m,
         "matched_loss_db": round(ml, 3),
@@ -183,3 +183,6 @@ def feedline_json(coax: Coax, *, frequency_hz: float, swr: float) -> dict[str, A
         "mass_kg": round(coax.mass_kg_per_m * coax.length_m, 3),
         "note": "nominal class figures (one maker's datasheet); real cable and connectors add loss",
     }
+    if coax.velocity_factor is not None:  # the one a radio-end reading is moved with
+        out["velocity_factor"] = coax.velocity_factor
+    return out

@@ -119,3 +119,16 @@ def test_swr_at_the_radio_taken_back_through_the_loss():
     (swr_feed,) = feedpoint_swr([swr_radio], frequencies_hz=[3.6e6], coax=coax)
     assert swr_feed == pytest.approx(3.0, rel=1e-9)
     assert cmath.isclose(swr_radio, 1.669, rel_tol=1e-3)
+
+
+def test_the_feedline_block_shows_the_velocity_factor_it_uses():
+    from fieldkit.rigging.feedline import feedline_json
+
+    block = feedline_json(parse_coax({"class": "rg-8x", "length_m": 20}), frequency_hz=7e6, swr=1.2)
+    assert block["velocity_factor"] == VELOCITY_FACTORS["rg-8x"][0]
+    given = parse_coax({"class": "rg-8x", "length_m": 20, "velocity_factor": 0.82})
+    assert feedline_json(given, frequency_hz=7e6, swr=1.2)["velocity_factor"] == 0.82
+    explicit = parse_coax(
+        {"loss_db_per_100m_at_mhz": {"10": 4.0}, "mass_kg_per_m": 0.04, "length_m": 20}
+    )
+    assert "velocity_factor" not in feedline_json(explicit, frequency_hz=7e6, swr=1.2)
