@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from typing import Any
 
+from fieldkit.antenna import native
 from fieldkit.fields import Record, arr, nested, num, string
 from fieldkit.planning.inputs import PlanInput
 from fieldkit.planning.records import FinishedOption, SkyFit
@@ -114,8 +115,10 @@ def _sky_json(sky: SkyFit) -> dict[str, Any]:
 
 
 def engine_json(engine: EngineCounter, times: dict[str, float], total_s: float) -> dict[str, Any]:
-    """What the plan cost: engine solves and seconds per phase."""
+    """What the plan cost: engine solves, seconds per phase, and which kernels ran ("compiled", or
+    "numpy" when the C kernels are not built: the same numbers, slower; fieldkit/antenna/native)."""
     return {
+        "kernels": "compiled" if native.compiled() else "numpy",
         "solve_calls": engine.calls,
         "frequencies_solved": engine.frequencies,
         "solutions_reused": engine.reused,

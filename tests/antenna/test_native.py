@@ -180,3 +180,14 @@ def test_the_switch_selects_numpy():
         [sys.executable, "-c", code], env=env, capture_output=True, text=True, check=True
     )
     assert out.stdout.startswith("numpy kernels (FIELDKIT_NUMPY_KERNELS=1)")
+
+
+def test_the_plan_says_which_kernels_ran(monkeypatch):
+    from fieldkit.planning import result
+
+    engine = type("Counter", (), {"calls": 1, "frequencies": 1, "reused": 0})()
+    assert result.engine_json(engine, {}, 0.1)["kernels"] == (
+        "compiled" if native.compiled() else "numpy"
+    )
+    monkeypatch.setattr(native, "compiled", lambda: False)
+    assert result.engine_json(engine, {}, 0.1)["kernels"] == "numpy"
