@@ -191,3 +191,11 @@ def test_the_plan_says_which_kernels_ran(monkeypatch):
     )
     monkeypatch.setattr(native, "compiled", lambda: False)
     assert result.engine_json(engine, {}, 0.1)["kernels"] == "numpy"
+
+
+def test_empty_source_sums_are_zero():
+    _compiled_or_skip()
+    s0, s1 = native.smooth_potentials(1.0, np.ones((3, 2, 0)), np.ones((2, 0)), np.ones(0))
+    assert s0.shape == s1.shape == (3, 2) and not s0.any() and not s1.any()
+    want = kernel._smooth_sums_numpy(1.0, np.ones((3, 2, 0)), np.ones((2, 0)), np.ones(0))
+    np.testing.assert_array_equal(s0, want[0])

@@ -165,6 +165,11 @@ int fk_smooth_potentials(ptrdiff_t n_obs, ptrdiff_t n_src, ptrdiff_t n_q, double
                          const double *restrict u, double *restrict s0, double *restrict s1)
 {
     const ptrdiff_t row = n_src * n_q;
+    if (row == 0) { /* no source points: the sums are empty */
+        for (ptrdiff_t m = 0; m < 2 * n_obs * n_src; ++m)
+            s0[m] = s1[m] = 0.0;
+        return 0;
+    }
     double *buf = malloc(2 * (size_t)row * sizeof(double));
     if (buf == NULL)
         return -1;
