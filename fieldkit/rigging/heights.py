@@ -193,23 +193,23 @@ def choose(points: Sequence[HeightPoint]) -> int:
 
 def describe(q: HeightPoint, wavelength_m: float | None = None) -> str:
     """A swept point in the operator's words: which rope at what height, and the feedpoint."""
-    wl = f", {q.feedpoint_height_m / wavelength_m:.2f} wavelength" if wavelength_m else ""
-    feed = f"feedpoint {q.feedpoint_height_m:.1f} m{wl}"
+
+    def up(height_m: float) -> str:  # "9.3 m (30.4 ft, 0.11 wavelength)"
+        wl = f"{height_m / wavelength_m:.2f} wavelength" if wavelength_m else ""
+        return height_both(height_m, aside=wl)
+
+    feed = f"the feedpoint at {up(q.feedpoint_height_m)}"
     if q.axis == "ends":
-        return f"ends at {q.height_m:.1f} m"
+        return f"ends at {height_both(q.height_m)}"
     if q.axis == "apex":
-        wl = f"{q.height_m / wavelength_m:.2f} wavelength, " if wavelength_m else ""
         ends = q.rope_heights_m.get("ends")
-        return (
-            f"the apex at {q.height_m:.1f} m ({wl}ends at {ends:.1f} m)"
-            if ends
-            else (f"the apex at {q.height_m:.1f} m")
-        )
+        tail = f" and the ends at {height_both(ends)}" if ends else ""
+        return f"the apex at {up(q.height_m)}{tail}"
     if q.axis == "ropes":
-        return f"both ropes at {q.height_m:.1f} m ({feed})"
+        return f"both ropes at {height_both(q.height_m)} and {feed}"
     if q.axis:
-        return f"the {q.axis} rope at {q.height_m:.1f} m ({feed})"
-    return f"the feedpoint at {q.feedpoint_height_m:.1f} m{wl and f' ({wl[2:]})'}"
+        return f"the {q.axis} rope at {height_both(q.height_m)} and {feed}"
+    return feed
 
 
 def _worse_because(
