@@ -27,7 +27,7 @@ from typing import Any
 
 import numpy as np
 
-from fieldkit.readable import feet_text, height_both
+from fieldkit.readable import given_both, height_both
 
 NVIS_MAX_RANGE_KM = 300.0  # common practice: NVIS serves about 0–300 km
 NVIS_VIRTUAL_HEIGHT_KM = (
@@ -55,9 +55,8 @@ def low_end_words(lowest_m: float, min_end_height_m: float) -> str | None:
     if lowest_m >= MIN_END_HEIGHT_M - 1e-6:
         return None
     return (
-        f"the wire comes down to {height_both(lowest_m)} (the site allows ends down to "
-        f"{min_end_height_m:g} m, {feet_text(min_end_height_m)}): below {MIN_END_HEIGHT_M:g} m "
-        f"({feet_text(MIN_END_HEIGHT_M)}) a raised hand, a carried pole or a head walking under it "
+        f"the wire comes down to {height_both(lowest_m)}, the site allowing ends down to "
+        f"{given_both(min_end_height_m)}: below {given_both(MIN_END_HEIGHT_M)} a raised hand, a carried pole or a head walking under it "
         "reaches the wire, and touching a wire that is transmitting burns even "
         "at low power — fence or flag the low parts (the safety block's low-wire zone) and never "
         "transmit while anyone is near them"
