@@ -257,8 +257,9 @@ def _trunk_clash(centre, tips, limits: SiteLimits, apex_tree: Trunk | None) -> s
         if near is not None and near[1] < near[0].radius_m + limits.trunk_clearance_m:
             t, d = near
             return (
-                f"every direction of the legs passes near a trunk, e.g. {t.id}'s at "
-                f"{length_both(max(d - t.radius_m, 0.0))}; keep {given_both(limits.trunk_clearance_m)}"
+                "every direction of the legs passes near a trunk, e.g. "
+                f"{length_both(max(d - t.radius_m, 0.0))} from the trunk of {t.id}; "
+                f"keep {given_both(limits.trunk_clearance_m)}"
             )
     return None
 
