@@ -166,15 +166,15 @@ def mast_position(
         if who is not None and free < 0:
             raise InputError(
                 "site.mast_xy_m",
-                f"({p[0]:g}, {p[1]:g}) m is on {who.id}'s trunk (radius {who.radius_m:g} m): "
+                f"({p[0]:g}, {p[1]:g}) m is on {who.id}'s trunk, of radius {given_both(who.radius_m)}: "
                 "give a point in the open",
                 value=list(limits.mast_xy_m),
             )
         if not fits_clearing(p, limits):
             raise InputError(
                 "site.mast_xy_m",
-                f"({p[0]:g}, {p[1]:g}) m is outside the clearing ({limits.clearing_radius_m:g} m "
-                "from the site origin)",
+                f"({p[0]:g}, {p[1]:g}) m is outside the clearing, which reaches "
+                f"{given_both(limits.clearing_radius_m)} from the site origin",
                 value=list(limits.mast_xy_m),
             )
         words = f"stand {mast.id} at the given point ({p[0]:.1f}, {p[1]:.1f}) m"

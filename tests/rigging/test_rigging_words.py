@@ -5,9 +5,14 @@ them out (tests/plan/test_plan_words.py checks the texts of real plans).
 Feet are metres / 0.3048 (international foot, exact: international yard and pound agreement, 1959);
 inches are feet × 12."""
 
+import json
+from pathlib import Path
+
 import numpy as np
 import pytest
 
+from fieldkit.errors import InputError
+from fieldkit.planning import plan
 from fieldkit.readable import (
     droop_both,
     given_both,
@@ -16,16 +21,20 @@ from fieldkit.readable import (
     whole_both,
 )
 from fieldkit.rigging.catenary import HangError
-from fieldkit.rigging.clearing import SiteLimits, Trunk
+from fieldkit.rigging.clearing import SiteLimits, Trunk, mast_position
+from fieldkit.rigging.feedline import parse_coax
 from fieldkit.rigging.heights import HeightPoint, describe
 from fieldkit.rigging.hung import hang_inverted_v, hang_span
 from fieldkit.rigging.layout import Mechanics
+from fieldkit.rigging.line import line_words
+from fieldkit.rigging.mast import Mast
 from fieldkit.rigging.spans import _span_blocked
 from fieldkit.rigging.vee import _trunk_clash, _vee_builder, clearing_words
 from fieldkit.site import Support
 from tests.words import bare_metres, feet_disagree
 
 NBSP = "\u00a0"
+SITES = Path(__file__).resolve().parents[1] / "plan" / "sites"
 
 
 def _plain(text: str) -> str:
@@ -181,3 +190,29 @@ def test_vee_stakes_outside_the_clearing_give_both_units():
     words = str(e.value)
     assert "outside the clearing, which reaches 3 m (10 ft) from the site origin" in words  # 9.84
     _reads_in_both(words)
+
+
+def test_a_mast_point_on_a_trunk_gives_the_trunk_radius_in_feet():
+    tree = Support("T1", "tree", 14.0, 4.0, 4.0, trunk_radius_m=0.4)
+    with pytest.raises(InputError) as e:
+        mast_position(
+            Mast("M1", 9.0, 2.0, 3), [tree], SiteLimits.for_supports([tree], mast_xy_m=(4.1, 4.0))
+        )
+    assert "(4.1, 4) m is on T1's trunk, of radius 0.4 m (1 ft): " in e.value.detail  # 1.31 ft
+
+
+def test_a_mast_point_outside_the_clearing_gives_the_clearing_in_feet():
+    spec = json.loads((SITES / "one-tree-and-mast.json").read_text())
+    spec["site"]["clearing_radius_m"], spec["site"]["mast_xy_m"] = 20.0, [30.0, 0.0]
+    with pytest.raises(InputError) as e:
+        plan(spec)
+    assert e.value.field == "site.mast_xy_m"
+    # 20 m = 65.62 ft
+    assert "(30, 0) m is outside the clearing, which reaches 20 m (66 ft) from the site origin" in (
+        e.value.detail
+    )
+
+
+def test_the_reading_moved_through_the_coax_names_its_length_in_feet():
+    words = line_words(parse_coax({"class": "rg-58", "length_m": 25}), frequency_hz=7.1e6)
+    assert "through 25 m (82 ft) of RG-58 class coax" in words  # 82.02 ft
