@@ -133,6 +133,24 @@ def distance_both(distance_m: float) -> str:
     return f"{distance_text(distance_m)} ({feet_text(distance_m)})"
 
 
+def whole_both(length_m: float) -> str:
+    """ "35 m (115 ft)": a span, a run of wire, rope or coax in whole metres and whole feet, for the
+    texts that compare it with another (each unit rounded once, halves as Python's format rounds)."""
+    return f"{length_m:.0f} m ({feet_text(length_m)})"
+
+
+def given_both(length_m: float) -> str:
+    """ "30 m (98 ft)", "0.5 m (2 ft)": a length as the kit or site gives it (the metres as entered,
+    ``:g``) and in whole feet, for the texts that quote an input back beside a figure of the plan."""
+    return f"{length_m:g} m ({feet_text(length_m)})"
+
+
+def droop_both(length_m: float) -> str:
+    """ "0.37 m (1 ft 2½ in)": a short length to the centimetre with its tape reading in feet and
+    inches (quarter inch), for a piece of wire a person measures off by hand."""
+    return f"{length_m:.2f} m ({tape_imperial(length_m)})"
+
+
 def length_both(length_m: float) -> str:
     """ "13.1 m (43 ft)": a clearance or reach in metres to 0.1 m and whole feet, for the safety texts
     the service writes once (read in either unit; the decision is made on the metres)."""
@@ -144,15 +162,18 @@ def length_both(length_m: float) -> str:
 JSON_HEIGHT_DECIMALS = 2
 
 
-def height_both(height_m: float) -> str:
-    """ "13.5 m (44.3 ft)": a rope or feedpoint height in both units, as the app shows each."""
+def height_both(height_m: float, *, aside: str = "") -> str:
+    """ "13.5 m (44.3 ft)": a rope or feedpoint height in both units, as the app shows each; ``aside``
+    joins the feet inside the one pair of brackets ("9.3 m (30.4 ft, 0.11 wavelength)")."""
     h = round(height_m, JSON_HEIGHT_DECIMALS)
-    return f"{height_text(h)} ({height_feet_text(h)})"
+    more = f", {aside}" if aside else ""
+    return f"{height_text(h)} ({height_feet_text(h)}{more})"
 
 
 def height_text(height_m: float) -> str:
-    """A rope or feedpoint height in metres to 0.1 m ("13.5 m"), as the app shows it."""
-    return f"{fixed(height_m, 1)} m"
+    """A rope or feedpoint height in metres to 0.1 m ("13.5 m"), as the app shows it (from the value
+    the JSON carries, so that it reads as the metres of :func:`height_both`)."""
+    return f"{fixed(round(height_m, JSON_HEIGHT_DECIMALS), 1)} m"
 
 
 def height_feet_text(height_m: float) -> str:

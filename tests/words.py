@@ -62,3 +62,52 @@ def problems(text: str, *, exempt_numbers: tuple[str, ...] = ()) -> list[str]:
         if figures(n) > MAX_FIGURES:
             out.append(f"number {n!r} ({figures(n)} significant figures)")
     return out
+
+
+FOOT_M = 0.3048  # international foot, exact (international yard and pound agreement, 1959)
+QUARTER_INCH_FT = 1 / 48  # a quarter inch in feet: 12 in to the foot (common practice)
+_FRACTIONS = {"": 0.0, "¼": 0.25, "½": 0.5, "¾": 0.75}
+# "13.5 m (44.3 ft", "2.79 m (9 ft 2 in", "15 cm (6 in", "0.37 m (1 ft 2½ in" (no-break spaces made plain)
+_PAIR = re.compile(
+    r"(?<![\w.])(\d+(?:\.\d+)?) (m|cm) \("
+    r"(?:(\d+(?:\.\d+)?) ft(?: (\d+)([¼½¾]?) in)?|(\d*)([¼½¾]?) in)(?=[),;])"
+)
+# a metre figure with no feet beside it; "13.5 m + 3.05 m (10 ft)" spells out a sum, "60 m band" names
+# a band, "m/s" is a speed
+_BARE = re.compile(r"(?<![\w.])(\d+(?:\.\d+)?) (?:m|cm)(?![\w/])(?! \([\d¼½¾])(?! \+ )(?! band)")
+
+
+def _decimals(number: str) -> int:
+    return len(number.partition(".")[2])
+
+
+def feet_beside_metres(text: str) -> list[tuple[str, float, float, float, float]]:
+    """Every "metres (feet" pair in ``text``: (as written, metres, metres step, feet, feet step), the
+    steps being what each figure is rounded to [m, ft]."""
+    out = []
+    for m in _PAIR.finditer(text.replace("\u00a0", " ")):
+        number, unit, feet, inches, frac, only_in, only_frac = m.groups()
+        scale = 0.01 if unit == "cm" else 1.0
+        metres, m_step = float(number) * scale, 10.0 ** -_decimals(number) * scale
+        if feet is not None and inches is None:
+            out.append((m.group(0), metres, m_step, float(feet), 10.0 ** -_decimals(feet)))
+            continue
+        inch = float(inches or only_in or 0) + _FRACTIONS[frac or only_frac or ""]
+        whole = float(feet or 0.0) + inch / 12
+        out.append((m.group(0), metres, m_step, whole, QUARTER_INCH_FT))
+    return out
+
+
+def feet_disagree(text: str) -> list[str]:
+    """The pairs whose feet are not the metres / 0.3048 at the rounding of each: a length that reads
+    m metres (to ±half its step) and f feet (to ±half its step) must be one length in both."""
+    return [
+        shown
+        for shown, metres, m_step, feet, f_step in feet_beside_metres(text)
+        if abs(metres / FOOT_M - feet) > m_step / 2 / FOOT_M + f_step / 2 + 1e-9
+    ]
+
+
+def bare_metres(text: str) -> list[str]:
+    """Every metre figure in ``text`` without feet beside it."""
+    return [m.group(0) for m in _BARE.finditer(text.replace("\u00a0", " "))]

@@ -11,6 +11,7 @@ from typing import Any
 
 from fieldkit.errors import InputError, array, join
 from fieldkit.fields import Record, num
+from fieldkit.readable import given_both
 from fieldkit.rigging.clearing import SiteLimits
 from fieldkit.rigging.heights import LOWEST_END_HEIGHT_M, MIN_END_HEIGHT_M
 from fieldkit.site import POSITION_RANGE_M, Support
@@ -72,8 +73,8 @@ def parse_site_limits(
         if radius is not None and math.hypot(*mast_xy) > radius:
             raise InputError(
                 "site.mast_xy_m",
-                f"({mast_xy[0]:g}, {mast_xy[1]:g}) m is outside the clearing ({radius:g} m from the "
-                "site origin)",
+                f"({mast_xy[0]:g}, {mast_xy[1]:g}) m is outside the clearing, which reaches "
+                f"{given_both(radius)} from the site origin",
                 value=list(mast_xy),
             )
     return SiteLimits.for_supports(

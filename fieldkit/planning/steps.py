@@ -15,7 +15,7 @@ import numpy as np
 from fieldkit.errors import InputError, join
 from fieldkit.planning.inputs import PlanInput
 from fieldkit.planning.records import Candidate, FinishedOption, SkyFit, Workbench, channel_rank
-from fieldkit.readable import height_both
+from fieldkit.readable import given_both, height_both
 from fieldkit.rigging.cut import trim_cm_per_leg
 from fieldkit.rigging.heights import LOWEST_END_HEIGHT_M, MIN_END_HEIGHT_M, low_end_words
 from fieldkit.rigging.layouts import Layout, site_layouts
@@ -67,15 +67,16 @@ def _no_layout_reason(inp: PlanInput) -> str:
     if len(safe) < 2 and not inp.masts:
         return (
             "need at least two safe supports, a safe tree tall enough for an inverted-V apex "
-            f"({lowest + INVERTED_V_MIN_DROP_M:g} m or more), or a mast in kit.masts"
+            f"of {given_both(lowest + INVERTED_V_MIN_DROP_M)} or more, or a mast in kit.masts"
         )
     words = (
-        f"the supports are too low: every rope height is under the {lowest:g} m minimum end height"
+        f"the supports are too low: every rope height is under the {given_both(lowest)} minimum "
+        "end height"
     )
     if lowest > LOWEST_END_HEIGHT_M:
         words += (
-            f" (site.min_end_height_m may lower it to {LOWEST_END_HEIGHT_M:g} m for a low-power wire "
-            "where people are kept away from it)"
+            f"; site.min_end_height_m may lower it to {given_both(LOWEST_END_HEIGHT_M)} for a "
+            "low-power wire where people are kept away from it"
         )
     return words
 

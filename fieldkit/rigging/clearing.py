@@ -15,7 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from fieldkit.errors import InputError
-from fieldkit.readable import length_both
+from fieldkit.readable import given_both, length_both
 from fieldkit.rigging.heights import MIN_END_HEIGHT_M
 from fieldkit.rigging.mast import GUY_RADIUS_FRACTION, Mast
 from fieldkit.rigging.supports import Support
@@ -166,22 +166,22 @@ def mast_position(
         if who is not None and free < 0:
             raise InputError(
                 "site.mast_xy_m",
-                f"({p[0]:g}, {p[1]:g}) m is on {who.id}'s trunk (radius {who.radius_m:g} m): "
+                f"({p[0]:g}, {p[1]:g}) m is on {who.id}'s trunk, of radius {given_both(who.radius_m)}: "
                 "give a point in the open",
                 value=list(limits.mast_xy_m),
             )
         if not fits_clearing(p, limits):
             raise InputError(
                 "site.mast_xy_m",
-                f"({p[0]:g}, {p[1]:g}) m is outside the clearing ({limits.clearing_radius_m:g} m "
-                "from the site origin)",
+                f"({p[0]:g}, {p[1]:g}) m is outside the clearing, which reaches "
+                f"{given_both(limits.clearing_radius_m)} from the site origin",
                 value=list(limits.mast_xy_m),
             )
         words = f"stand {mast.id} at the given point ({p[0]:.1f}, {p[1]:.1f}) m"
         if who is not None and free < guy:
             words += (
                 f"; it is {length_both(free)} from {who.id}, inside its {length_both(guy)} guy "
-                f"circle at its full {mast.height_m:g} m: run that guy clear of the tree"
+                f"circle at its full {given_both(mast.height_m)}: run that guy clear of the tree"
             )
         return p, words
     if wanted_xy is None:
@@ -218,7 +218,7 @@ def mast_position(
     if who is not None:
         words += (
             f", {length_both(free)} from {who.id}: no point here clears every trunk by the "
-            f"{length_both(guy)} guy circle at its full {mast.height_m:g} m, so run the guys clear "
+            f"{length_both(guy)} guy circle at its full {given_both(mast.height_m)}, so run the guys clear "
             "of the trees"
         )
     return p, words
@@ -228,13 +228,13 @@ def _placed_words(mast: Mast, p: np.ndarray, limits: SiteLimits, guy: float, mov
     free, who = _clearance(p, limits.trunks)
     words = f"stand {mast.id} at ({p[0]:.1f}, {p[1]:.1f}) m"
     if who is not None:
-        words += (
-            f", {length_both(free)} from {who.id}'s trunk (at its full {mast.height_m:g} m its "
-            f"guys need {length_both(guy)} all round)"
-        )
+        words += f", {length_both(free)} from {who.id}'s trunk"
         if moved > 0:
             words += (
                 f", {length_both(moved)} off the middle of the supports so that the guys clear "
                 "the trunks"
             )
+        words += (
+            f"; at its full {given_both(mast.height_m)} its guys need {length_both(guy)} all round"
+        )
     return words

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+from fieldkit.readable import given_both, whole_both
 from fieldkit.rigging.feedline import COAX_CLASSES, Coax, parse_coax, total_loss_db
 from fieldkit.rigging.roots import brent
 
@@ -53,8 +54,8 @@ def feedline_words(coax: Coax, *, frequency_hz: float, swr: float) -> list[str]:
         return []
     kept = 100 * 10 ** (-loss / 10)
     head = (
-        f"the feedline loses {loss:.1f} dB at {frequency_hz / 1e6:g} MHz ({coax.length_m:g} m of "
-        f"{coax.words} coax, SWR {swr:.1f}): only {kept:.0f} % of the power reaches "
+        f"the feedline loses {loss:.1f} dB at {frequency_hz / 1e6:g} MHz over {given_both(coax.length_m)} "
+        f"of {coax.words} coax at SWR {swr:.1f}: only {kept:.0f} % of the power reaches "
         "the antenna"
     )
     better = []
@@ -64,7 +65,9 @@ def feedline_words(coax: Coax, *, frequency_hz: float, swr: float) -> list[str]:
         if other_loss < loss - 0.05:
             better.append((other_loss, other.words))
     run = longest_run_m(coax, frequency_hz=frequency_hz, swr=swr, limit_db=LOSS_WARNING_DB)
-    advice = [f"a run of at most {run:.0f} m of this coax stays within {LOSS_WARNING_DB:g} dB"]
+    advice = [
+        f"a run of at most {whole_both(run)} of this coax stays within {LOSS_WARNING_DB:g} dB"
+    ]
     if better:
         best_loss, best = min(better)
         advice.insert(0, f"{best} coax would lose {best_loss:.1f} dB over the same run")

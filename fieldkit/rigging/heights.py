@@ -27,7 +27,7 @@ from typing import Any
 
 import numpy as np
 
-from fieldkit.readable import feet_text, height_both
+from fieldkit.readable import given_both, height_both
 
 NVIS_MAX_RANGE_KM = 300.0  # common practice: NVIS serves about 0–300 km
 NVIS_VIRTUAL_HEIGHT_KM = (
@@ -55,9 +55,8 @@ def low_end_words(lowest_m: float, min_end_height_m: float) -> str | None:
     if lowest_m >= MIN_END_HEIGHT_M - 1e-6:
         return None
     return (
-        f"the wire comes down to {height_both(lowest_m)} (the site allows ends down to "
-        f"{min_end_height_m:g} m, {feet_text(min_end_height_m)}): below {MIN_END_HEIGHT_M:g} m "
-        f"({feet_text(MIN_END_HEIGHT_M)}) a raised hand, a carried pole or a head walking under it "
+        f"the wire comes down to {height_both(lowest_m)}, the site allowing ends down to "
+        f"{given_both(min_end_height_m)}: below {given_both(MIN_END_HEIGHT_M)} a raised hand, a carried pole or a head walking under it "
         "reaches the wire, and touching a wire that is transmitting burns even "
         "at low power — fence or flag the low parts (the safety block's low-wire zone) and never "
         "transmit while anyone is near them"
@@ -193,23 +192,23 @@ def choose(points: Sequence[HeightPoint]) -> int:
 
 def describe(q: HeightPoint, wavelength_m: float | None = None) -> str:
     """A swept point in the operator's words: which rope at what height, and the feedpoint."""
-    wl = f", {q.feedpoint_height_m / wavelength_m:.2f} wavelength" if wavelength_m else ""
-    feed = f"feedpoint {q.feedpoint_height_m:.1f} m{wl}"
+
+    def up(height_m: float) -> str:  # "9.3 m (30.4 ft, 0.11 wavelength)"
+        wl = f"{height_m / wavelength_m:.2f} wavelength" if wavelength_m else ""
+        return height_both(height_m, aside=wl)
+
+    feed = f"the feedpoint at {up(q.feedpoint_height_m)}"
     if q.axis == "ends":
-        return f"ends at {q.height_m:.1f} m"
+        return f"ends at {height_both(q.height_m)}"
     if q.axis == "apex":
-        wl = f"{q.height_m / wavelength_m:.2f} wavelength, " if wavelength_m else ""
         ends = q.rope_heights_m.get("ends")
-        return (
-            f"the apex at {q.height_m:.1f} m ({wl}ends at {ends:.1f} m)"
-            if ends
-            else (f"the apex at {q.height_m:.1f} m")
-        )
+        tail = f" and the ends at {height_both(ends)}" if ends else ""
+        return f"the apex at {up(q.height_m)}{tail}"
     if q.axis == "ropes":
-        return f"both ropes at {q.height_m:.1f} m ({feed})"
+        return f"both ropes at {height_both(q.height_m)} and {feed}"
     if q.axis:
-        return f"the {q.axis} rope at {q.height_m:.1f} m ({feed})"
-    return f"the feedpoint at {q.feedpoint_height_m:.1f} m{wl and f' ({wl[2:]})'}"
+        return f"the {q.axis} rope at {height_both(q.height_m)} and {feed}"
+    return feed
 
 
 def _worse_because(

@@ -14,6 +14,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from fieldkit.readable import droop_both, length_both, whole_both
 from fieldkit.rigging.catenary import (
     ChainShape,
     HangError,
@@ -130,7 +131,7 @@ def hang_span(
     weight = 2 * leg_m * ww + feed_load_n
     if 2 * tension_n <= weight:  # the two end pulls cannot even carry the weight straight up
         raise HangError(
-            f"a {tension_n:g} N pull cannot hold up {2 * leg_m:.0f} m of wire and the feedpoint "
+            f"a {tension_n:g} N pull cannot hold up {whole_both(2 * leg_m)} of wire and the feedpoint "
             f"({weight:.0f} N together): pull harder or lighten the feedpoint"
         )
     shape = None
@@ -164,14 +165,14 @@ def hang_span(
             )
         except HangError:
             raise HangError(
-                f"{2 * leg_m:.0f} m of wire will not hang between supports {span:.0f} m apart at a "
+                f"{whole_both(2 * leg_m)} of wire will not hang between supports {whole_both(span)} apart at a "
                 f"{tension_n:g} N pull"
             ) from None
         rope = 0.0
         tail = leg_m - half
         if tail < -1e-6:
             raise HangError(
-                f"{2 * leg_m:.0f} m of wire will not hang between supports {span:.0f} m apart at a "
+                f"{whole_both(2 * leg_m)} of wire will not hang between supports {whole_both(span)} apart at a "
                 f"{tension_n:g} N pull"
             )
         tail = max(tail, 0.0)
@@ -185,8 +186,8 @@ def hang_span(
         pts = np.vstack([start, pts, end])
         feed_idx += 1
         notes.append(
-            f"short span: {tail:.2f} m of each leg droops from its support to a stake "
-            f"at {DROOP_ANGLE_DEG:.0f}° (end {drop:.1f} m below the insulator point)"
+            f"short span: {droop_both(tail)} of each leg droops from its support to a stake "
+            f"at {DROOP_ANGLE_DEG:.0f}°, its end {length_both(drop)} below the insulator point"
         )
     feed_point = pts[feed_idx - wire_first]
     feed_distance = _polyline_length(pts[: feed_idx - wire_first + 1])

@@ -23,6 +23,7 @@ import itertools
 from collections.abc import Sequence
 
 from fieldkit.errors import InputError, join
+from fieldkit.readable import length_both
 from fieldkit.rigging.clearing import SiteLimits, Trunk
 from fieldkit.rigging.layout import (
     HEIGHT_STEP_M,
@@ -83,7 +84,7 @@ def check_positions(supports: Sequence[Support], field: str = "site.supports") -
         if d < SAME_PLACE_M:
             raise InputError(
                 join(join(field, j), "x_m"),
-                f"{b.id} stands {d:.1f} m from {a.id}: two supports at one place cannot hold a span; "
+                f"{b.id} stands {length_both(d)} from {a.id}: two supports at one place cannot hold a span; "
                 "give each support its own position (x_m, y_m), or list it once",
                 value=[b.x_m, b.y_m],
             )

@@ -22,6 +22,7 @@ import numpy as np
 
 from fieldkit.constants import SPEED_OF_LIGHT_M_S as C0
 from fieldkit.errors import InputError
+from fieldkit.readable import given_both
 from fieldkit.rigging.feedline import Coax
 
 NEPER_DB = 20 / math.log(10)  # 1 Np = 8.686 dB (definition of the neper)
@@ -119,7 +120,8 @@ def feedpoint_swr(swr_radio, *, frequencies_hz, coax: Coax) -> np.ndarray:
 def line_words(coax: Coax, *, frequency_hz: float) -> str:
     """How the reading was moved to the feedpoint, in words."""
     return (
-        f"moved from the radio end to the feedpoint through {coax.length_m:g} m of {coax.words} coax "
+        f"moved from the radio end to the feedpoint through {given_both(coax.length_m)} of "
+        f"{coax.words} coax "
         f"(velocity factor {coax.velocity_factor:.2f}, matched loss "
         f"{coax.matched_loss_db(frequency_hz):.2f} dB): the run is "
         f"{wavelengths(coax, frequency_hz=frequency_hz):.2f} wavelength long, so R and X at the "

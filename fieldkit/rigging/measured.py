@@ -14,6 +14,7 @@ from typing import Any
 
 import numpy as np
 
+from fieldkit.readable import given_both
 from fieldkit.rigging.analyser import Sweep
 from fieldkit.rigging.cut import REFERENCE_IMPEDANCE_OHM, retrim
 from fieldkit.rigging.feedline import Coax
@@ -180,8 +181,8 @@ def _passive(z_feed: np.ndarray, f: np.ndarray, coax: Coax, field: str) -> None:
         i = int(np.argmax(bad))
         raise InputError(
             field,
-            f"at {f[i] / 1e6:g} MHz this reading cannot have come through {coax.length_m:g} m of "
-            f"{coax.words} coax with {coax.matched_loss_db(f[i]):.2f} dB of loss: at the feedpoint it "
+            f"at {f[i] / 1e6:g} MHz this reading cannot have come through "
+            f"{given_both(coax.length_m)} of {coax.words} coax with {coax.matched_loss_db(f[i]):.2f} dB of loss: at the feedpoint it "
             "would have R < 0. Check kit.coax (class, length, velocity factor), or whether it "
             "was taken at the feedpoint",
         )

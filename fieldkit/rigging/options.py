@@ -16,7 +16,7 @@ from typing import Any
 import numpy as np
 
 from fieldkit.constants import SPEED_OF_LIGHT_M_S
-from fieldkit.readable import feet_text
+from fieldkit.readable import feet_text, given_both, length_both, whole_both
 from fieldkit.rigging.catenary import HangError
 from fieldkit.rigging.cut import (
     CURVE_OFFSETS,
@@ -231,8 +231,8 @@ def screen(
     rough = 2 * (FIRST_GUESS_FRACTION * rule_of_thumb_leg_m(f) * 0.95 + 2 * kit.wrap_allowance_m)
     if spool is not None and rough > spool:  # clearly short: say so before any engine work
         raise Refusal(
-            f"wire spool too short: a {f / 1e6:g} MHz dipole needs about {rough:.1f} m of wire, "
-            f"the spool holds {spool:g} m"
+            f"wire spool too short: a {f / 1e6:g} MHz dipole needs about {length_both(rough)} of "
+            f"wire, the spool holds {given_both(spool)}"
         )
     if not warm.by_frequency:  # nothing to scale from yet: one resonance to start the chain
         _seed(layout, f, kit, engine, warm)
@@ -300,8 +300,9 @@ def _short_span_words(layout: Layout, f: float, warm: Warm) -> str | None:
         return None
     a, b = layout.supports_used
     return (
-        f"{layout.span_m:.0f} m between {a} and {b}; a {f / 1e6:g} MHz dipole needs about {need:.0f} m: "
-        f"drooping the ends would bring them below {layout.min_end_height_m:g} m here, so use an inverted-V on "
+        f"{whole_both(layout.span_m)} between {a} and {b}; a {f / 1e6:g} MHz dipole needs about "
+        f"{whole_both(need)}: drooping the ends would bring them below "
+        f"{given_both(layout.min_end_height_m)} here, so use an inverted-V on "
         "a mast, or choose a higher channel"
     )
 
@@ -364,12 +365,12 @@ def _spool_words(res: Resonance, f: float, kit: Kit) -> list[str]:
     need, spare_need = wire_needed_m(leg_m=res.leg_m, wrap_allowance_m=kit.wrap_allowance_m)
     if need > spool:
         raise Refusal(
-            f"wire spool too short: the {f / 1e6:g} MHz dipole needs {need:.1f} m of wire "
-            f"({spare_need:.1f} m cut long) but the spool holds {spool:g} m"
+            f"wire spool too short: the {f / 1e6:g} MHz dipole needs {length_both(need)} of wire, "
+            f"{length_both(spare_need)} cut long, but the spool holds {given_both(spool)}"
         )
     if spare_need > spool:
         return [
-            f"the spool ({spool:g} m) holds both legs but not the full cut-long spare: the cut "
+            f"the spool of {given_both(spool)} holds both legs but not the full cut-long spare: the cut "
             "instruction keeps the spare the spool leaves; trim carefully"
         ]
     return []
@@ -393,8 +394,8 @@ def _droop_words(layout: Layout, res: Resonance, f: float) -> list[str]:
         return []
     a, b = layout.supports_used
     return [
-        f"{layout.span_m:.0f} m between {a} and {b}; a "
-        f"{f / 1e6:g} MHz dipole needs about {2 * res.leg_m:.0f} m: the ends droop toward stakes as modelled, "
+        f"{whole_both(layout.span_m)} between {a} and {b}; a "
+        f"{f / 1e6:g} MHz dipole needs about {whole_both(2 * res.leg_m)}: the ends droop toward stakes as modelled, "
         "or use an inverted-V on a mast, or choose a higher channel"
     ]
 

@@ -9,6 +9,7 @@ from collections.abc import Callable, Sequence
 
 import numpy as np
 
+from fieldkit.readable import given_both, height_both, length_both
 from fieldkit.rigging.catenary import HangError
 from fieldkit.rigging.clearing import SiteLimits, nearest_trunk
 from fieldkit.rigging.hung import HungDipole, hang_span
@@ -42,8 +43,9 @@ def _span_builder(
             feed_guess = hung.feedpoint_height_m
         if min(hung.end_heights_m) < lowest - 1e-6 or hung.feedpoint_height_m < lowest:
             raise HangError(
-                f"the wire would come down to {min(hung.end_heights_m + (hung.feedpoint_height_m,)):.1f} m, "
-                f"below the {lowest:g} m minimum end height (site.min_end_height_m)"
+                f"the wire would come down to "
+                f"{height_both(min(hung.end_heights_m + (hung.feedpoint_height_m,)))}, below the "
+                f"{given_both(lowest)} minimum end height (site.min_end_height_m)"
             )
         if hung.tail_m > 0 and others:  # drooping ends run on past the supports toward stakes
             p = np.asarray(hung.points_m)[:, :2]
@@ -51,8 +53,8 @@ def _span_builder(
                 near = nearest_trunk(seg, others)
                 if near is not None and near[1] < near[0].radius_m + limits.trunk_clearance_m:
                     raise HangError(
-                        f"the drooping end passes {near[1] - near[0].radius_m:.1f} m from {near[0].id}'s "
-                        f"trunk (keep {limits.trunk_clearance_m:g} m)"
+                        f"the drooping end passes {length_both(near[1] - near[0].radius_m)} from "
+                        f"{near[0].id}'s trunk; keep {given_both(limits.trunk_clearance_m)}"
                     )
         return hung
 
@@ -70,7 +72,8 @@ def _span_blocked(a: Support, b: Support, limits: SiteLimits) -> str | None:
         return None
     return (
         f"{trunk.id} stands between {a.id} and {b.id}: the wire would pass "
-        f"{max(d - trunk.radius_m, 0.0):.1f} m from its trunk (keep {limits.trunk_clearance_m:g} m)"
+        f"{length_both(max(d - trunk.radius_m, 0.0))} from its trunk; "
+        f"keep {given_both(limits.trunk_clearance_m)}"
     )
 
 

@@ -19,6 +19,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from fieldkit.constants import STANDARD_GRAVITY_M_S2
+from fieldkit.readable import given_both, height_both, length_both, whole_both
 from fieldkit.rigging.catenary import HangError
 from fieldkit.rigging.clearing import (
     SiteLimits,
@@ -201,10 +202,12 @@ def _vee_builder(
         apex = setting["apex"]
         end = end_height_m(setting["ends"], apex, leg_m)
         if end < limits.min_end_height_m - 1e-6:
-            raise HangError(f"the ends would hang below the {limits.min_end_height_m:g} m minimum")
+            raise HangError(
+                f"the ends would hang below the {given_both(limits.min_end_height_m)} minimum"
+            )
         if apex - end < INVERTED_V_MIN_DROP_M - 1e-6:
             raise HangError(
-                f"the ends must hang at least {INVERTED_V_MIN_DROP_M:g} m below the apex"
+                f"the ends must hang at least {given_both(INVERTED_V_MIN_DROP_M)} below the apex"
             )
         if mast is not None:
             _, local = mast_tension_n(mast, apex_m=apex, end_m=end, leg_m=leg_m, mech=mech)
@@ -218,9 +221,10 @@ def _vee_builder(
             rope += halyard_rope_m(rope_height_m=apex, span_rope_m=0.0)
         if strict and limits.rope_length_m is not None and rope > limits.rope_length_m + 1e-6:
             raise HangError(
-                f"with the apex at {apex:.1f} m and the ends at {end:.1f} m the V needs about "
-                f"{rope:.0f} m of rope (stake ropes{'' if mast is not None else ' and the apex halyard'}), "
-                f"the kit has {limits.rope_length_m:g} m"
+                f"with the apex at {height_both(apex)} and the ends at {height_both(end)} the V needs "
+                f"about {whole_both(rope)} of rope for the stake ropes"
+                f"{'' if mast is not None else ' and the apex halyard'}, "
+                f"the kit has {given_both(limits.rope_length_m)}"
             )
         why = "no direction fits"
         for clearing in (True, False) if not strict else (True,):
@@ -230,9 +234,9 @@ def _vee_builder(
                 tips = (centre - u * stake, centre + u * stake)
                 if clearing and not all(fits_clearing(t, limits) for t in (*tips, centre)):
                     why = (
-                        f"the stakes would stand {stake:.0f} m from the "
-                        f"{'mast' if mast is not None else 'apex'}, outside the clearing "
-                        f"({limits.clearing_radius_m:g} m from the site origin)"
+                        f"the stakes would stand {whole_both(stake)} from the "
+                        f"{'mast' if mast is not None else 'apex'}, outside the clearing, which "
+                        f"reaches {given_both(limits.clearing_radius_m)} from the site origin"
                     )
                     continue
                 clash = _trunk_clash(centre, tips, limits, apex_tree)
@@ -253,8 +257,9 @@ def _trunk_clash(centre, tips, limits: SiteLimits, apex_tree: Trunk | None) -> s
         if near is not None and near[1] < near[0].radius_m + limits.trunk_clearance_m:
             t, d = near
             return (
-                f"every direction of the legs passes near a trunk (e.g. {t.id}: "
-                f"{max(d - t.radius_m, 0.0):.1f} m, keep {limits.trunk_clearance_m:g} m)"
+                "every direction of the legs passes near a trunk, e.g. "
+                f"{length_both(max(d - t.radius_m, 0.0))} from the trunk of {t.id}; "
+                f"keep {given_both(limits.trunk_clearance_m)}"
             )
     return None
 
@@ -267,8 +272,8 @@ def clearing_words(hung: HungDipole, limits: SiteLimits) -> list[str]:
         return []
     far = max(math.hypot(st.x_m, st.y_m) for st in out)
     return [
-        f"a stake would stand {far:.1f} m from the site origin, just outside the "
-        f"{limits.clearing_radius_m:g} m clearing: lower the ends a little or shorten the stake ropes"
+        f"a stake would stand {length_both(far)} from the site origin, just outside the "
+        f"{given_both(limits.clearing_radius_m)} clearing: lower the ends a little or shorten the stake ropes"
     ]
 
 
@@ -386,7 +391,7 @@ def _branch_layout(safe: Sequence[Support], mech: Mechanics, limits: SiteLimits)
         apex_tree=trunk,
         top_why=f"no higher branch on {tree.id}",
         note=(
-            f"apex on a branch of {tree.id}, {off:.1f} m out from the trunk; the branch carries the "
+            f"apex on a branch of {tree.id}, {length_both(off)} out from the trunk; the branch carries the "
             "feedpoint and both legs' pull: choose a sound branch; tie each end's rope to a stake "
             "(see the stake positions)"
         ),
@@ -410,19 +415,20 @@ def no_apex_reason(
     need = min_end_height_m + INVERTED_V_MIN_DROP_M
     head = (
         "an inverted-V needs its apex on a kit mast (kit.masts) or on a tree's branch (a support of "
-        f'kind "tree") at least {need:g} m high — the ends hang {INVERTED_V_MIN_DROP_M:g} m or more '
-        f"below the apex and no lower than the {min_end_height_m:g} m minimum end height"
+        f'kind "tree") at least {given_both(need)} high — the ends hang '
+        f"{given_both(INVERTED_V_MIN_DROP_M)} or more below the apex and no lower than the "
+        f"{given_both(min_end_height_m)} minimum end height"
     )
     safe = [s for s in supports if not s.unsafe]
     trees = [s for s in safe if s.kind == "tree"]
     low_masts = [m for m in masts if m.height_m < need]
     if masts and len(low_masts) == len(masts):
-        head += "; " + ", ".join(f"{m.id} extends to {m.height_m:g} m" for m in masts)
+        head += "; " + ", ".join(f"{m.id} extends to {given_both(m.height_m)}" for m in masts)
     elif not masts:
         head += "; the kit has no mast"
     if trees:
         t = max(trees, key=lambda s: s.height_m)
-        head += f"; the highest safe tree, {t.id}, reaches {t.height_m:g} m"
+        head += f"; the highest safe tree, {t.id}, reaches {given_both(t.height_m)}"
     kinds: dict[str, list[str]] = {}
     for s in safe:
         if s.kind != "tree":

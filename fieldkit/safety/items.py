@@ -10,7 +10,14 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from fieldkit.readable import distance_both, height_both, length_both, power_text, tape_both
+from fieldkit.readable import (
+    distance_both,
+    given_both,
+    height_both,
+    length_both,
+    power_text,
+    tape_both,
+)
 from fieldkit.safety.checked_option import CheckedOption
 from fieldkit.safety.checklists import ChecklistItem, item_id, order_items, template_items
 from fieldkit.safety.duty import Radio
@@ -233,7 +240,8 @@ def _exposure_items(f: OptionFindings) -> list[ChecklistItem]:
                 "keep-out",
                 "none",
                 f"No keep-out zone at {label} under the {limit} for a person up to "
-                f"{PERSON_HEIGHT_M:g} m tall{more}; still keep hands off the wire while transmitting.",
+                f"{given_both(PERSON_HEIGHT_M)} tall{more}; still keep hands off the wire while "
+                "transmitting.",
                 required=False,
                 title=f"No keep-out zone at {label}",
             )

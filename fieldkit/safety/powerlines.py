@@ -29,7 +29,14 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from fieldkit.readable import distance_both, length_both
+from fieldkit.readable import (
+    distance_both,
+    feet_text,
+    height_both,
+    height_text,
+    length_both,
+    whole_both,
+)
 from fieldkit.safety.hazards import ASSUMED_LINE_VOLTAGE_KV, PowerLine
 from fieldkit.safety.plan_view import compass_word, densify, distance_to_polyline
 
@@ -117,8 +124,8 @@ def _fall(index: int, name: str, points: np.ndarray, line: PowerLine) -> Clearan
     required = reach + LINE_CLEARANCE_M
     verdict = "clear" if margin[worst] >= -TOLERANCE_M else "TOO CLOSE"
     why = (
-        f"{name} is {length_both(d[worst])} from the line; falling from {reach:.1f} m it needs "
-        f"{length_both(required)}, {reach:.1f} m + 3.05 m (10 ft) — {verdict}"
+        f"{name} is {length_both(d[worst])} from the line; falling from {height_both(reach)} it needs "
+        f"{length_both(required)}, {height_text(reach)} + 3.05 m (10 ft) — {verdict}"
     )
     return Clearance(index, name, "fall", float(d[worst]), required, why)
 
@@ -142,7 +149,7 @@ def line_clearances(index: int, line: PowerLine, rig: Rig) -> list[Clearance]:
                 c.distance_m,
                 c.required_m,
                 c.why
-                + f"; many utilities ask for {advice:.0f} m (1.5 × its height) — ask the utility",
+                + f"; many utilities ask for {whole_both(advice)}, 1.5 × its height — ask the utility",
             )
         out.append(c)
     out.append(_fall(index, "wire", densify(rig.wire_m, step_m=STEP_M), line))
@@ -159,8 +166,8 @@ def line_clearances(index: int, line: PowerLine, rig: Rig) -> list[Clearance]:
         required = reach + LINE_CLEARANCE_M
         verdict = "clear" if d >= required - TOLERANCE_M else "TOO CLOSE: do not throw here"
         why = (
-            f"throw line over {s.id} at {s.rope_height_m:.1f} m: the weight can fly about "
-            f"{reach:.1f} m past the branch; the tree is {length_both(d)} from the line, needs "
+            f"throw line over {s.id} at {height_both(s.rope_height_m)}: the weight can fly about "
+            f"{length_both(reach)} past the branch; the tree is {length_both(d)} from the line, needs "
             f"{length_both(required)} — {verdict}"
         )
         out.append(Clearance(index, f"throw line at {s.id}", "throw", d, required, why))
@@ -192,8 +199,8 @@ def _approach(index: int, line: PowerLine, rig: Rig, required: float) -> Clearan
     verdict = "clear" if d >= required - TOLERANCE_M else "TOO CLOSE"
     why = (
         f"people, ropes and wire come within {length_both(d)} of the conductor at "
-        f"{line.height_m:.1f} m; "
-        f"approach distance {required:.2f} m ({volts}; 29 CFR 1910.333(c)(3)) — {verdict}"
+        f"{length_both(line.height_m)}; approach distance {required:.2f} m "
+        f"({feet_text(required)}, {volts}; 29 CFR 1910.333(c)(3)) — {verdict}"
     )
     return Clearance(index, "people and handled objects", "approach", d, required, why)
 
@@ -218,7 +225,7 @@ def line_summary(
         head += (
             f": nearest support {near.object.removeprefix('support ')} is "
             f"{length_both(near.distance_m)} from it and needs {length_both(near.required_m)}: "
-            f"its falling reach of {reach:.1f} m plus 3.05 m (10 ft)"
+            f"its falling reach of {height_both(reach)} plus 3.05 m (10 ft)"
         )
     if bad:
         return head + " — TOO CLOSE, do not raise: " + "; ".join(c.why for c in bad)

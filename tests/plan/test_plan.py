@@ -82,7 +82,8 @@ def test_short_span_gets_the_plain_answer():
     s["form"] = "flat"
     with pytest.raises(InputError) as e:
         plan(s)
-    assert "18 m between A and B; a 3.8 MHz dipole needs about 3" in e.value.detail
+    # 18 m / 0.3048 m per ft (international foot, exact) = 59.1 ft
+    assert "18 m (59 ft) between A and B; a 3.8 MHz dipole needs about 3" in e.value.detail
     assert "inverted-V" in e.value.detail and "higher channel" in e.value.detail
 
 
@@ -91,7 +92,7 @@ def test_droop_warning_names_the_span_and_the_way_out():
     s["form"] = "flat"
     opt = plan(s)["options"][0]
     text = " ".join(opt["warnings"])
-    assert "30 m between A and B; a 3.8 MHz dipole needs about" in text
+    assert "30 m (98 ft) between A and B; a 3.8 MHz dipole needs about" in text  # 98.4 ft
     assert "inverted-V" in text and "higher channel" in text
 
 
@@ -107,7 +108,7 @@ def test_spool_too_short():
     s["kit"]["wire"]["spool_m"] = 30
     with pytest.raises(InputError) as e:
         plan(s)
-    assert "spool too short" in e.value.detail and "30 m" in e.value.detail
+    assert "spool too short" in e.value.detail and "30 m (98 ft)" in e.value.detail  # 98.4 ft
 
 
 def test_mast_too_weak_is_refused():

@@ -173,5 +173,5 @@ def test_lower_minimum_end_height_lets_short_poles_hang():
     s = swept(s0, "flat", limits={"min_end_height_m": 2.0})
     hung = s.hung(s.sweep.chosen)
     assert min(min(hung.end_heights_m), hung.feedpoint_height_m) >= 2.0 - 1e-6
-    with pytest.raises(Exception, match="below the 3 m minimum"):
+    with pytest.raises(Exception, match=r"below the 3 m \(10 ft\) minimum"):
         swept(s0, "flat")
