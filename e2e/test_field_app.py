@@ -257,17 +257,10 @@ def test_phone_newcomer_walk(open_app, service):
     assert sketch.locator("line.power-line").count() == 1
 
     page.get_by_test_id("save-plan").tap()
-    # planning takes seconds: the progress bar must show (anything over 0.25 s)
-    page.get_by_test_id("busy").wait_for(state="visible")
-    assert "planning" in page.get_by_test_id("busy").inner_text()
-    # a real progress bar with the stage in words, from the plan job (GET /api/plans/<id>)
-    page.get_by_test_id("plan-progress").wait_for(state="attached", timeout=PLAN_TIMEOUT_MS)
-    busy_text = page.get_by_test_id("busy").inner_text()
-    assert "Saving and planning: " in busy_text, busy_text
-    assert 0 <= float(page.get_by_test_id("plan-progress").get_attribute("value") or 0) <= 1
-    shot(page, "phone-plan-progress")
+    # the demo's site plans in well under a second on a warm service, before the progress bar's
+    # first poll: the bar is checked on a long plan (e2e/test_plan_progress.py)
     wait_plan(page)
-    assert page.get_by_test_id("plan-progress").count() == 0  # gone with the answer
+    assert page.get_by_test_id("plan-progress").count() == 0  # no bar left behind
     status = page.get_by_test_id("plan-status").inner_text()
     assert "T3" not in status.split("rope heights")[0], "the unsafe snag must not be used"
     assert page.get_by_test_id("site-sketch").locator("[data-testid=sketch-wire]").count() == 1
