@@ -15,6 +15,7 @@ from pathlib import Path
 import pytest
 
 from e2e.conftest import PLAN_TIMEOUT_MS, shot
+from tests.robustness.helpers import long_variant
 
 pytestmark = [pytest.mark.browser, pytest.mark.slow]
 
@@ -22,17 +23,8 @@ DEMO = Path(__file__).resolve().parents[1] / "assets" / "demo" / "larch-basin-pl
 
 
 def _long_site() -> dict:
-    spec = json.loads(DEMO.read_text())
-    spec["name"] = "Ten trees, twelve channels (test)"
-    channels = [round(2.0 + 0.7 * i, 4) for i in range(12)]
-    spec["channels_mhz"] = channels
-    spec["sky"] = {**spec["sky"], "channels_mhz": channels}
-    extra = [
-        {"id": f"X{i}", "kind": "tree", "height_m": 9.0 + i, "x_m": -40.0 + 16 * i, "y_m": 45.0}
-        for i in range(6)
-    ]
-    spec["site"] = {**spec["site"], "supports": [*spec["site"]["supports"], *extra]}
-    return spec
+    spec = long_variant(json.loads(DEMO.read_text()), 0)
+    return {**spec, "name": "Ten trees, twelve channels (test)"}
 
 
 def _create(service) -> str:

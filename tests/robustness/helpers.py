@@ -55,6 +55,32 @@ SMALL_PLAN = {
     "radio": {"power_w": 100, "mode": "ssb"},
 }
 
+
+def demo_variant(demo_input: dict, n: int) -> dict:
+    """The demo plan input with a channel moved by n kHz: a different input, so no cache answers."""
+    spec = {k: v for k, v in demo_input.items() if k != "name"}
+    spec["channels_mhz"] = [round(3.605 + 0.001 * n, 4), *spec["channels_mhz"][1:]]
+    spec["sky"] = {**spec["sky"], "channels_mhz": spec["channels_mhz"]}
+    return spec
+
+
+def long_variant(demo_input: dict, n: int) -> dict:
+    """The longest plan a site may ask for: the demo variant with six more trees (ten supports, 45
+    pairs to sweep: the most a plan takes) and twelve channels from 2 to 9.7 MHz (the most a plan
+    takes): ~150 engine solves, ~1.9 s of work on the team's machine with the compiled kernels (the
+    demo alone plans in ~0.3 s warm, and six more trees alone in ~1 s: too close to a deadline)."""
+    spec = demo_variant(demo_input, n)
+    channels = [round(2.0 + 0.7 * i + 0.001 * n, 4) for i in range(12)]
+    spec["channels_mhz"] = channels
+    spec["sky"] = {**spec["sky"], "channels_mhz": channels}
+    extra = [
+        {"id": f"X{i}", "kind": "tree", "height_m": 9.0 + i, "x_m": -40.0 + 16 * i, "y_m": 45.0}
+        for i in range(6)
+    ]
+    spec["site"] = {**spec["site"], "supports": [*spec["site"]["supports"], *extra]}
+    return spec
+
+
 # A half-wave dipole 10 m over perfect ground at 3.6 MHz: the base of the model-spec mutations.
 DIPOLE = {
     "frequency_mhz": 3.6,

@@ -19,32 +19,7 @@ from fieldkit.planning import STAGES
 from fieldkit.service import create_app
 from fieldkit.service.plan_jobs import KILL_GRACE_S, PlanBoard
 from fieldkit.service.server import start_in_thread
-from tests.robustness.helpers import SMALL_PLAN, stop_server
-
-
-def demo_variant(demo_input: dict, n: int) -> dict:
-    """The demo plan input with a channel moved by n kHz: a different input, so no cache answers."""
-    spec = {k: v for k, v in demo_input.items() if k != "name"}
-    spec["channels_mhz"] = [round(3.605 + 0.001 * n, 4), *spec["channels_mhz"][1:]]
-    spec["sky"] = {**spec["sky"], "channels_mhz": spec["channels_mhz"]}
-    return spec
-
-
-def long_variant(demo_input: dict, n: int) -> dict:
-    """The demo variant with six more trees (45 pairs to sweep, the most a plan takes) and twelve
-    channels from 2 to 9.7 MHz (the most a plan takes): ~150 engine solves, ~1.9 s of work on the
-    team's machine with the compiled kernels (the demo alone plans in ~0.3 s warm, and six more
-    trees alone in ~1 s: too close to a deadline)."""
-    spec = demo_variant(demo_input, n)
-    channels = [round(2.0 + 0.7 * i + 0.001 * n, 4) for i in range(12)]
-    spec["channels_mhz"] = channels
-    spec["sky"] = {**spec["sky"], "channels_mhz": channels}
-    extra = [
-        {"id": f"X{i}", "kind": "tree", "height_m": 9.0 + i, "x_m": -40.0 + 16 * i, "y_m": 45.0}
-        for i in range(6)
-    ]
-    spec["site"] = {**spec["site"], "supports": [*spec["site"]["supports"], *extra]}
-    return spec
+from tests.robustness.helpers import SMALL_PLAN, demo_variant, long_variant, stop_server
 
 
 def poll(client, job_id: str, *, until=("done", "failed", "cancelled"), timeout_s: float = 120.0):
