@@ -223,15 +223,25 @@ def _image_sums(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) -> np.ndarray:
     Σa_v·G2·z². The compiled kernel (:mod:`fieldkit.antenna.native`) when it is built, else
     :func:`_image_sums_numpy`.
     """
-    a_hd = a_h - a_d
-    weights = np.stack([a_h, a_v, a_d, a_c, a_hd, a_hd, a_v, a_v])
-    out = native.image_sums(k, rho2, zeta, beta, weights)
+    out = native.image_sums(k, rho2, zeta, beta, _row_weights(a_h, a_v, a_d, a_c))
     return _image_sums_numpy(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) if out is None else out
+
+
+def _row_weights(a_h, a_v, a_d, a_c, *, field: bool = False) -> np.ndarray:
+    """The residues per row of the image sums (8 or 12, I), in the compiled kernel's row order:
+    the matrix's eight, then the near field's four more."""
+    a_hd = a_h - a_d
+    rows = [a_h, a_v, a_d, a_c, a_hd, a_hd, a_v, a_v] + ([a_h, a_v, a_c, a_h] if field else [])
+    return np.stack(rows)
 
 
 def _image_sums_numpy(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) -> np.ndarray:
     """:func:`_image_sums` in numpy: the reference the compiled kernel is tested against."""
-    z, kg, g1, g2 = _image_kernels_numpy(k, rho2, zeta, beta)
+    return _matrix_rows(*_image_kernels_numpy(k, rho2, zeta, beta), a_h, a_v, a_d, a_c)
+
+
+def _matrix_rows(z, kg, g1, g2, a_h, a_v, a_d, a_c) -> np.ndarray:
+    """The matrix's eight image sums (8, n) from the images' kernels (I, n), numpy."""
     g2z = g2 * z
     a_hd = a_h - a_d
     return np.concatenate(
@@ -309,40 +319,28 @@ def _image_kernels_numpy(k, rho2, zeta, beta):
     return z, kg, g1, g2
 
 
-# the compiled kernel's row order (native.image_sums) → _field_sums_numpy's
-_FIELD_ROW_ORDER = np.array([0, 1, 2, 3, 8, 9, 4, 10, 5, 6, 7, 11])
-
-
 def _field_sums(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) -> np.ndarray:
     """The image sums (12, n) of the reflected E and H at paired (ρ², ζ) points.
 
-    Rows: Σa_h·kg, Σa_v·kg, Σa_d·G1, Σa_c·G1, Σa_h·G1, Σa_v·G1, Σ(a_h − a_d)·G2, Σa_c·G2,
-    Σ(a_h − a_d)·G2·z, Σa_v·G2·z, Σa_v·G2·z², Σa_h·G1·z with kg = k²G + G1 and z = ζ + β. The
-    compiled kernel (:mod:`fieldkit.antenna.native`) when it is built, else
-    :func:`_field_sums_numpy`.
+    Rows: the matrix's eight (:func:`_image_sums`: Σa_h·kg, Σa_v·kg, Σa_d·G1, Σa_c·G1,
+    Σ(a_h − a_d)·G2, Σ(a_h − a_d)·G2·z, Σa_v·G2·z, Σa_v·G2·z²), then Σa_h·G1, Σa_v·G1, Σa_c·G2,
+    Σa_h·G1·z, with kg = k²G + G1 and z = ζ + β. The compiled kernel
+    (:mod:`fieldkit.antenna.native`) when it is built, else :func:`_field_sums_numpy`.
     """
-    a_hd = a_h - a_d
-    weights = np.stack([a_h, a_v, a_d, a_c, a_hd, a_hd, a_v, a_v, a_h, a_v, a_c, a_h])
+    weights = _row_weights(a_h, a_v, a_d, a_c, field=True)
     out = native.image_sums(k, rho2, zeta, beta, weights)
-    if out is None:
-        return _field_sums_numpy(k, rho2, zeta, beta, a_h, a_v, a_d, a_c)
-    return out[_FIELD_ROW_ORDER]
+    return _field_sums_numpy(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) if out is None else out
 
 
 def _field_sums_numpy(k, rho2, zeta, beta, a_h, a_v, a_d, a_c) -> np.ndarray:
     """:func:`_field_sums` in numpy: the reference the compiled kernel is tested against."""
     z, kg, g1, g2 = _image_kernels_numpy(k, rho2, zeta, beta)
-    g2z = g2 * z
-    g1z = g1 * z
-    a_hd = a_h - a_d
     return np.concatenate(
         [
-            np.stack([a_h, a_v]) @ kg,
-            np.stack([a_d, a_c, a_h, a_v]) @ g1,
-            np.stack([a_hd, a_c]) @ g2,
-            np.stack([a_hd, a_v]) @ g2z,
-            (a_v @ (g2z * z))[None],
-            (a_h @ g1z)[None],
+            _matrix_rows(z, kg, g1, g2, a_h, a_v, a_d, a_c),
+            np.stack([a_h, a_v]) @ g1,
+            (a_c @ g2)[None],
+            (a_h @ (g1 * z))[None],
         ]
     )
 
@@ -384,7 +382,7 @@ def reflected_fields(obs, src, moment, im: ComplexImages) -> tuple[np.ndarray, n
         s = _field_sums(k, rho2.ravel(), zeta.ravel(), beta, a_h, a_v, a_d, a_c).reshape(
             (12,) + shape
         )
-        kgh, kgv, g1d, g1c, g1h, g1v, g2hd, g2c, g2z_hd, g2z_v, g2zz_v, g1z_h = s
+        kgh, kgv, g1d, g1c, g2hd, g2z_hd, g2z_v, g2zz_v, g1h, g1v, g2c, g1z_h = s
         ph_x = px * dx + py * dy  # (P, S), moments broadcast over the source axis
         a = kgh - g1d
         b = g2hd * ph_x + g2z_v * pz

@@ -91,7 +91,7 @@ def image_sums(k: float, rho2, zeta, beta, weights: np.ndarray, *, lib=None):
 
     The kernel quantity of row r is, in order, kg, kg, G1, G1, G2, G2·z, G2·z, G2·z² (the
     matrix's eight rows, ``sommerfeld._image_sums_numpy``) and, with twelve rows, G1, G1, G2, G1·z
-    (the near field's, ``sommerfeld._field_sums_numpy`` in another row order).
+    (the near field's, ``sommerfeld._field_sums_numpy``).
 
     Parameters
     ----------
